@@ -1,0 +1,130 @@
+// The contract of `landscape.json`, written by `sift` and read by the report, `diff` and `locate`.
+// Everything here is plain JSON data. Structure indices are positions in `structures` (input order).
+
+export type Status = 'kept' | 'duplicate' | 'rejected' | 'outside-window';
+
+export type EnergyUnit = 'kJ/mol' | 'kcal/mol' | 'eV';
+
+export type HydrogenPolicy = 'keep' | 'drop';
+
+export interface SiftParameters {
+  /** PDD depth (neighbours per row). */
+  k: number;
+  hydrogens: HydrogenPolicy;
+  /** Duplicate tolerance: EMD in Å to the kept structure of a group. */
+  toleranceAngstrom: number;
+  /** HDBSCAN minimum family size. */
+  minFamilySize: number;
+  /** HDBSCAN minimum samples (core distance neighbour count). */
+  minSamples: number;
+  /** Energy window above the lowest energy, in `energyUnit`; null for no window. */
+  energyWindow: number | null;
+  /** Unit of every energy in this file. */
+  energyUnit: EnergyUnit;
+  /** Number of nearest kept neighbours stored per kept structure in `edges`. */
+  neighbours: number;
+  /** The inputs as given on the command line. */
+  inputs: string[];
+  /** The energies CSV, if any, and the CIF data item, if any. */
+  energiesFile: string | null;
+  energyItem: string | null;
+}
+
+export interface StructureRow {
+  /** Position in input order, 0-based; the key used everywhere in this file. */
+  index: number;
+  id: string;
+  /** `file#block`. */
+  source: string;
+  file: string;
+  block: string;
+  /** 1-based line of the block's `data_` line. */
+  line: number;
+  status: Status;
+  /** Why a structure was rejected (empty otherwise). */
+  reason: string;
+  /** Energy in `parameters.energyUnit`, null when none was given. */
+  energy: number | null;
+  /** Energy above the lowest energy among usable structures. */
+  energyRel: number | null;
+  densityGPerCm3: number | null;
+  /** Atoms per cell used for the invariants (after the hydrogen policy). */
+  atoms: number | null;
+  spaceGroup: string | null;
+  z: number | null;
+  zPrime: number | null;
+  formulas: string[];
+  /** Structure index of the kept structure of its group (itself for kept ones, null for rejected/outside-window). */
+  keptIndex: number | null;
+  /** Id of the kept structure it was collapsed into (duplicates only). */
+  duplicateOf: string | null;
+  /** EMD in Å to the kept structure of its group (0 for kept ones). */
+  distanceToKept: number | null;
+  /** HDBSCAN family of its kept structure, -1 when unassigned or not applicable. */
+  family: number;
+  /** Nearest other kept structure (index and id) and its EMD in Å. */
+  nearestIndex: number | null;
+  nearest: string | null;
+  nearestDistance: number | null;
+  /** EMD in Å to the nearest other usable structure of any status (kept or duplicate): the noise-versus-distinct distribution. */
+  nnDistance: number | null;
+  /** Group size (itself included) for kept structures, 0 otherwise. */
+  members: number;
+  /** Reader and energy notes a user should see (disorder policy applied, hydrogens dropped, no energy, ...). */
+  notes: string[];
+}
+
+export interface Family {
+  id: number;
+  /** Structure indices of the kept structures in the family, lowest energy first. */
+  members: number[];
+}
+
+export interface Embedding {
+  /** Name of the method, e.g. "classical MDS + stress majorisation (SMACOF)". */
+  method: string;
+  /** Quality measure name ("Kruskal stress-1", "trustworthiness@10", ...) and value. */
+  quality: Array<{ name: string; value: number }>;
+  /** One [x, y] per entry of `Landscape.kept`, in that order, in Å. */
+  coords: Array<[number, number]>;
+}
+
+export interface KeptInvariants {
+  /** Structure index of the kept structure. */
+  index: number;
+  amd: number[];
+  /** PDD weights (n) and rows (n*k, row-major). */
+  pddWeights: number[];
+  pddRows: number[];
+}
+
+export interface ConvergenceCurve {
+  /** Windows above the lowest energy, in `parameters.energyUnit`. */
+  windows: number[];
+  /** After `processed` candidates in input order: distinct kept structures found within each window. */
+  points: Array<{ processed: number; counts: number[] }>;
+  /** A plain sentence on whether the low-energy part is still growing. */
+  statement: string;
+  stillGrowing: boolean;
+}
+
+export interface Landscape {
+  format: 'polysift-landscape';
+  formatVersion: 1;
+  tool: { name: 'polysift'; version: string };
+  /** The only field that differs between two runs on the same inputs and options. */
+  run: { createdAt: string; timingsSeconds: Record<string, number> };
+  parameters: SiftParameters;
+  counts: { input: number; kept: number; duplicate: number; rejected: number; outsideWindow: number };
+  /** Lowest energy among usable structures (null without energies). */
+  lowestEnergy: number | null;
+  structures: StructureRow[];
+  /** Structure indices of kept structures, lowest energy first (input order without energies). */
+  kept: number[];
+  /** Nearest-neighbour edges among kept structures: [index, index, EMD Å], each pair once, smaller index first. */
+  edges: Array<[number, number, number]>;
+  families: Family[];
+  embedding: Embedding | null;
+  invariants: { k: number; hydrogens: HydrogenPolicy; kept: KeptInvariants[] };
+  convergence: ConvergenceCurve | null;
+}

@@ -1,0 +1,122 @@
+// Data shared between the stages of the pipeline (see DEVELOPERS.md for the data flow).
+// Plain data only: a type holds data, free functions in the stage modules transform it.
+
+/** Cell lengths in Å and angles in degrees, as a CIF gives them. */
+export interface CellParams {
+  a: number;
+  b: number;
+  c: number;
+  alpha: number;
+  beta: number;
+  gamma: number;
+}
+
+/**
+ * A symmetry operation x' = R x + t on fractional coordinates.
+ * `rot` is the 3x3 matrix R in row-major order, `trans` the translation t (not wrapped).
+ */
+export interface SymOp {
+  rot: number[];
+  trans: number[];
+}
+
+/** One atom site as listed in the CIF (before symmetry expansion). */
+export interface Site {
+  label: string;
+  /** Element symbol with standard capitalisation ("C", "Cl"); deuterium is reported as "H". */
+  element: string;
+  /** Fractional coordinates. */
+  frac: [number, number, number];
+  /** Site occupancy, 1 when the file gives none. */
+  occupancy: number;
+  /** `_atom_site_disorder_group` (null when absent or "."). */
+  disorderGroup: string | null;
+  /** `_atom_site_disorder_assembly` (null when absent or "."). */
+  disorderAssembly: string | null;
+}
+
+/** Where operations came from: listed in the block, built from the space-group symbol, or none (P1 assumed). */
+export type OpsOrigin = 'listed' | 'symbol' | 'identity';
+
+/** One data block read into a crystal record. */
+export interface CrystalRecord {
+  /** Block name without `data_`. */
+  id: string;
+  /** Path of the file as the user gave it (or as found in a folder). */
+  file: string;
+  /** Block name as written. */
+  block: string;
+  /** `file#block`. */
+  source: string;
+  /** 1-based line of the `data_` line. */
+  line: number;
+  cell: CellParams;
+  ops: SymOp[];
+  opsOrigin: OpsOrigin;
+  /** Declared space-group symbol (Hermann–Mauguin) or null. */
+  spaceGroup: string | null;
+  sites: Site[];
+  /** Energy from `--energy-item`, in the file's unit, or null. */
+  energy: number | null;
+  /** The block's text exactly as read (for unique.cif). */
+  text: string;
+  /** Things the reader noticed and a user should know (ambiguous labels, settings, ...). */
+  notes: string[];
+}
+
+/** A block that could not be used, with what a user needs to find and fix it. */
+export interface RejectedBlock {
+  id: string;
+  file: string;
+  block: string;
+  source: string;
+  line: number;
+  reason: string;
+  /** The block's text when it could be delimited, else "". */
+  text: string;
+}
+
+export type BlockResult =
+  | { kind: 'record'; record: CrystalRecord }
+  | { kind: 'rejected'; rejected: RejectedBlock };
+
+/**
+ * A periodic point set: a lattice plus a motif, dimension-generic (1, 2 or 3).
+ * Hot loops read the typed arrays directly.
+ */
+export interface PeriodicSet {
+  dim: number;
+  /** dim*dim, row r is lattice vector r in Cartesian Å. */
+  basis: Float64Array;
+  /** m*dim Cartesian coordinates of every motif point in one unit cell. */
+  motif: Float64Array;
+  /** Atomic number per motif point (0 for abstract points). */
+  atomicNumbers: Uint8Array;
+  /** Index into the motif of one representative per symmetry orbit (all points when no operations are known). */
+  asym: Int32Array;
+  /** Orbit size per `asym` entry; the sizes add up to the motif size. */
+  multiplicity: Int32Array;
+}
+
+/** Facts about a crystal that do not need the PDD. */
+export interface CrystalFacts {
+  volumeA3: number;
+  atomsPerCell: number;
+  densityGPerCm3: number;
+  /** Molecules per cell. */
+  z: number;
+  /** Molecules per asymmetric unit (null when operations are unknown). */
+  zPrime: number | null;
+  /** Each distinct molecule's formula in Hill order, e.g. "C6H6". */
+  formulas: string[];
+  notes: string[];
+}
+
+/** Pointwise distance distribution: n weighted rows of k ascending distances (Å). */
+export interface Pdd {
+  k: number;
+  /** n*k, row-major; rows sorted lexicographically. */
+  rows: Float64Array;
+  /** n weights adding up to 1. */
+  weights: Float64Array;
+}
