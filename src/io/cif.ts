@@ -1,0 +1,419 @@
+// CIF 1.1 syntax (IUCr, "Crystallographic Information File" version 1.1 syntax specification, open standard):
+// parses the text of ONE data block into data items and loops. Splitting a file into blocks is done by
+// ./cif-split.ts; turning items into a crystal record by ./crystal-record.ts.
+//
+// Rules implemented (each pinned by test/cif-syntax.test.ts):
+// - tokens are separated by white space (space, tab, CR, LF); `#` outside a value starts a comment to end of line;
+// - `'...'` / `"..."` quoted strings: the closing quote counts only when followed by white space or end of
+//   text, so `'a'b'` is the string `a'b` (doubled quotes `''` are NOT an escape in CIF 1.1);
+//   a quoted string cannot span lines;
+// - `;` in column 1 opens a text field that ends at the next line beginning with `;`;
+// - reserved words `data_`, `loop_`, `save_`, `global_`, `stop_` are case-insensitive; save frames are skipped;
+// - `?` (unknown) and `.` (inapplicable) are special only when unquoted;
+// - data names are matched case-insensitively (stored lower-cased);
+// - numbers may carry a standard uncertainty in parentheses, `1.2345(6)` -> 1.2345 (see `cifNumber`).
+// The scanner walks char codes; no regular expression runs per character.
+
+/** How a value was written: bare, quoted or text field, or the special unquoted `?` / `.`. */
+export enum ValueKind {
+  Bare = 0,
+  Quoted = 1,
+  TextField = 2,
+  Unknown = 3,
+  Inapplicable = 4,
+}
+
+/** A loop: `names.length` columns, values stored row-major in flat arrays (no object per value). */
+export interface CifLoop {
+  /** Lower-cased data names, in the order written. */
+  names: string[];
+  values: string[];
+  kinds: ValueKind[];
+  /** 1-based line of each value in the file. */
+  lines: number[];
+  /** 1-based line of `loop_`. */
+  line: number;
+}
+
+/** Where one data name's value(s) live: a loop column or a single item. */
+export interface CifItem {
+  /** The loop holding this name, or null for a single item. */
+  loop: CifLoop | null;
+  /** Column within the loop (0 for single items). */
+  col: number;
+  /** Single item: its value, kind and line (unused for loop items). */
+  value: string;
+  kind: ValueKind;
+  line: number;
+}
+
+export interface CifBlock {
+  /** Block name as written after `data_`. */
+  name: string;
+  /** 1-based line of the `data_` line. */
+  line: number;
+  /** Data name (lower-cased) -> where its values are. */
+  items: Map<string, CifItem>;
+  loops: CifLoop[];
+  /** Things that are not fatal but a user should hear about (duplicate names, skipped save frames). */
+  warnings: string[];
+}
+
+/** A syntax error with the 1-based line it was found on. */
+export class CifSyntaxError extends Error {
+  constructor(
+    message: string,
+    readonly line: number,
+  ) {
+    super(message);
+    this.name = 'CifSyntaxError';
+  }
+}
+
+/** A column of values: the loop column or a single item seen as a one-value column. */
+export interface CifColumn {
+  values: string[];
+  kinds: ValueKind[];
+  lines: number[];
+  /** Stride through the arrays (loop width; 1 for single items) and starting offset. */
+  stride: number;
+  offset: number;
+  /** Number of values. */
+  length: number;
+}
+
+/** The values of `name` (case-insensitive) as a column, or null when the block does not have it. */
+export function cifColumn(block: CifBlock, name: string): CifColumn | null {
+  const item = block.items.get(name.toLowerCase());
+  if (!item) return null;
+  if (item.loop === null) {
+    return { values: [item.value], kinds: [item.kind], lines: [item.line], stride: 1, offset: 0, length: 1 };
+  }
+  const w = item.loop.names.length;
+  return {
+    values: item.loop.values,
+    kinds: item.loop.kinds,
+    lines: item.loop.lines,
+    stride: w,
+    offset: item.col,
+    length: item.loop.values.length / w,
+  };
+}
+
+/**
+ * Parse a CIF number, dropping a trailing standard uncertainty: `1.2345(6)` -> 1.2345, `-.5` -> -0.5, `1e3`.
+ * Returns NaN when the text is not a CIF number (CIF 1.1 numeric form: optional sign, digits with an optional
+ * point, optional exponent, optional `(su)`).
+ */
+export function cifNumber(text: string): number {
+  const n = text.length;
+  let i = 0;
+  if (i < n && (text.charCodeAt(i) === 43 || text.charCodeAt(i) === 45)) i++; // + -
+  let digits = 0;
+  while (i < n && isDigit(text.charCodeAt(i))) {
+    i++;
+    digits++;
+  }
+  if (i < n && text.charCodeAt(i) === 46) {
+    i++;
+    while (i < n && isDigit(text.charCodeAt(i))) {
+      i++;
+      digits++;
+    }
+  }
+  if (digits === 0) return NaN;
+  if (i < n && (text.charCodeAt(i) === 101 || text.charCodeAt(i) === 69)) {
+    // e / E exponent
+    let j = i + 1;
+    if (j < n && (text.charCodeAt(j) === 43 || text.charCodeAt(j) === 45)) j++;
+    const start = j;
+    while (j < n && isDigit(text.charCodeAt(j))) j++;
+    if (j === start) return NaN;
+    i = j;
+  }
+  const end = i;
+  if (i < n && text.charCodeAt(i) === 40) {
+    // standard uncertainty "(digits)" must close the value
+    i++;
+    const start = i;
+    while (i < n && isDigit(text.charCodeAt(i))) i++;
+    if (i === start || i >= n || text.charCodeAt(i) !== 41) return NaN;
+    i++;
+  }
+  if (i !== n) return NaN;
+  return Number(end === n ? text : text.slice(0, end));
+}
+
+/**
+ * Parse the text of one data block (starting at its `data_` token) into items and loops.
+ * `firstLine` is the 1-based line of the text's first character in the file, so errors name file lines.
+ * Throws CifSyntaxError (with the line) on text that is not CIF 1.1.
+ */
+export function parseCifBlock(text: string, firstLine = 1): CifBlock {
+  const t = new Tokenizer(text, firstLine);
+  let tok = t.next();
+  // A block may be preceded by comments only; its first token must be data_.
+  if (tok !== TokenType.DataHeader) {
+    throw new CifSyntaxError(tok === TokenType.End ? 'no data_ block found' : `expected a data_ line, found '${t.value}'`, t.line);
+  }
+  const block: CifBlock = { name: t.value, line: t.line, items: new Map(), loops: [], warnings: [] };
+  if (block.name.length === 0) throw new CifSyntaxError("'data_' must be followed by a block name", t.line);
+
+  tok = t.next();
+  while (tok !== TokenType.End) {
+    switch (tok) {
+      case TokenType.Name: {
+        const name = t.value.toLowerCase();
+        const nameLine = t.line;
+        tok = t.next();
+        if (!isValue(tok)) {
+          throw new CifSyntaxError(`data name ${name} has no value`, nameLine);
+        }
+        addItem(block, name, { loop: null, col: 0, value: t.value, kind: t.kind, line: t.line }, nameLine);
+        tok = t.next();
+        break;
+      }
+      case TokenType.Loop: {
+        const loop: CifLoop = { names: [], values: [], kinds: [], lines: [], line: t.line };
+        tok = t.next();
+        while (tok === TokenType.Name) {
+          loop.names.push(t.value.toLowerCase());
+          tok = t.next();
+        }
+        if (loop.names.length === 0) throw new CifSyntaxError('loop_ has no data names', loop.line);
+        while (isValue(tok)) {
+          loop.values.push(t.value);
+          loop.kinds.push(t.kind);
+          loop.lines.push(t.line);
+          tok = t.next();
+        }
+        const w = loop.names.length;
+        if (loop.values.length === 0) {
+          throw new CifSyntaxError(`loop_ (${loop.names[0]} ...) has names but no values`, loop.line);
+        }
+        if (loop.values.length % w !== 0) {
+          throw new CifSyntaxError(
+            `loop_ (${loop.names[0]} ...) has ${loop.values.length} values for ${w} names, not a whole number of rows ` +
+              `(${loop.values.length % w} values too many or ${w - (loop.values.length % w)} missing); ` +
+              `check for a value with spaces that needs quotes, or a missing value (write ? for unknown)`,
+            loop.line,
+          );
+        }
+        block.loops.push(loop);
+        for (let c = 0; c < w; c++) {
+          addItem(block, loop.names[c]!, { loop, col: c, value: '', kind: ValueKind.Bare, line: loop.line }, loop.line);
+        }
+        break;
+      }
+      case TokenType.SaveHeader: {
+        // Save frames hold dictionary definitions, not structures: skip to the closing save_.
+        const frameLine = t.line;
+        const frameName = t.value;
+        if (frameName.length === 0) throw new CifSyntaxError("'save_' closes a frame that was never opened", frameLine);
+        for (;;) {
+          tok = t.next();
+          if (tok === TokenType.End) throw new CifSyntaxError(`save frame save_${frameName} is never closed (no 'save_' line)`, frameLine);
+          if (tok === TokenType.SaveHeader && t.value.length === 0) break;
+          if (tok === TokenType.SaveHeader) {
+            throw new CifSyntaxError(`save frame save_${frameName} opens another frame before it is closed`, t.line);
+          }
+        }
+        block.warnings.push(`save frame save_${frameName} (line ${frameLine}) skipped`);
+        tok = t.next();
+        break;
+      }
+      case TokenType.DataHeader:
+        throw new CifSyntaxError(`a second data_ line inside one block (data_${t.value})`, t.line);
+      case TokenType.Global:
+      case TokenType.Stop:
+        throw new CifSyntaxError(`'${t.value}' is a reserved word not allowed in CIF 1.1 data`, t.line);
+      default:
+        // A value with no data name before it.
+        throw new CifSyntaxError(`value '${clip(t.value)}' has no data name before it`, t.line);
+    }
+  }
+  return block;
+}
+
+// ---- tokenizer -------------------------------------------------------------------------------------
+
+const enum TokenType {
+  End,
+  DataHeader,
+  Loop,
+  SaveHeader,
+  Global,
+  Stop,
+  Name,
+  Value,
+}
+
+function isValue(tok: TokenType): boolean {
+  return tok === TokenType.Value;
+}
+
+/** Walks the block text once; `next()` returns the token type and leaves its text in `value`. */
+class Tokenizer {
+  private pos = 0;
+  /** Line of the current position. */
+  private curLine: number;
+  /** Text, kind and line of the last token. */
+  value = '';
+  kind: ValueKind = ValueKind.Bare;
+  line: number;
+
+  constructor(
+    private readonly s: string,
+    firstLine: number,
+  ) {
+    this.curLine = firstLine;
+    this.line = firstLine;
+  }
+
+  next(): TokenType {
+    const s = this.s;
+    const n = s.length;
+    let i = this.pos;
+    // Skip white space and comments, counting lines.
+    for (;;) {
+      if (i >= n) {
+        this.pos = i;
+        this.line = this.curLine;
+        return TokenType.End;
+      }
+      const c = s.charCodeAt(i);
+      if (c === 10) {
+        this.curLine++;
+        i++;
+      } else if (c === 32 || c === 9 || c === 13 || c === 12 || c === 11) {
+        i++;
+      } else if (c === 35) {
+        // # comment to end of line
+        const e = s.indexOf('\n', i);
+        i = e < 0 ? n : e;
+      } else {
+        break;
+      }
+    }
+    this.line = this.curLine;
+    const c = s.charCodeAt(i);
+    const atLineStart = i === 0 || s.charCodeAt(i - 1) === 10 || s.charCodeAt(i - 1) === 13;
+
+    if (c === 59 && atLineStart) {
+      // ; text field: runs to the next line that begins with ;
+      let j = i + 1;
+      for (;;) {
+        const e = s.indexOf('\n', j);
+        if (e < 0) {
+          throw new CifSyntaxError("text field opened with ';' is never closed (no line starting with ';')", this.line);
+        }
+        this.curLine++;
+        if (s.charCodeAt(e + 1) === 59) {
+          // Value is everything after the opening ; up to the line break before the closing ;
+          let end = e;
+          if (end > i + 1 && s.charCodeAt(end - 1) === 13) end--;
+          this.value = s.slice(i + 1, end);
+          this.kind = ValueKind.TextField;
+          this.pos = e + 2;
+          return TokenType.Value;
+        }
+        j = e + 1;
+      }
+    }
+
+    if (c === 39 || c === 34) {
+      // quoted string: the closing quote must be followed by white space or end of text
+      let j = i + 1;
+      for (;;) {
+        if (j >= n) throw new CifSyntaxError(`quoted string ${clip(s.slice(i, j))} is never closed`, this.line);
+        const d = s.charCodeAt(j);
+        if (d === 10 || d === 13) throw new CifSyntaxError(`quoted string ${clip(s.slice(i, j))} is not closed on its line`, this.line);
+        if (d === c && (j + 1 >= n || isSpace(s.charCodeAt(j + 1)))) break;
+        j++;
+      }
+      this.value = s.slice(i + 1, j);
+      this.kind = ValueKind.Quoted;
+      this.pos = j + 1;
+      return TokenType.Value;
+    }
+
+    // Bare token: runs to white space.
+    let j = i + 1;
+    while (j < n && !isSpace(s.charCodeAt(j))) j++;
+    this.pos = j;
+    const len = j - i;
+    if (c === 95) {
+      // _name
+      this.value = s.slice(i, j);
+      return TokenType.Name;
+    }
+    if (len === 1 && c === 63) {
+      this.value = '?';
+      this.kind = ValueKind.Unknown;
+      return TokenType.Value;
+    }
+    if (len === 1 && c === 46) {
+      this.value = '.';
+      this.kind = ValueKind.Inapplicable;
+      return TokenType.Value;
+    }
+    // Reserved words (case-insensitive): data_, loop_, save_, global_, stop_
+    const c0 = c | 32;
+    if (len >= 5 && (c0 === 100 || c0 === 108 || c0 === 115 || c0 === 103)) {
+      if (c0 === 100 && startsWithCi(s, i, 'data_')) {
+        this.value = s.slice(i + 5, j);
+        return TokenType.DataHeader;
+      }
+      if (c0 === 108 && len === 5 && startsWithCi(s, i, 'loop_')) {
+        this.value = 'loop_';
+        return TokenType.Loop;
+      }
+      if (c0 === 115 && startsWithCi(s, i, 'save_')) {
+        this.value = s.slice(i + 5, j);
+        return TokenType.SaveHeader;
+      }
+      if (c0 === 115 && len === 5 && startsWithCi(s, i, 'stop_')) {
+        this.value = 'stop_';
+        return TokenType.Stop;
+      }
+      if (c0 === 103 && len === 7 && startsWithCi(s, i, 'global_')) {
+        this.value = 'global_';
+        return TokenType.Global;
+      }
+    }
+    this.value = s.slice(i, j);
+    this.kind = ValueKind.Bare;
+    return TokenType.Value;
+  }
+}
+
+function addItem(block: CifBlock, name: string, item: CifItem, line: number): void {
+  if (block.items.has(name)) {
+    // CIF 1.1 forbids a name twice in a block; keep the first and say so.
+    block.warnings.push(`data name ${name} appears twice (line ${line}); the first value is used`);
+    return;
+  }
+  block.items.set(name, item);
+}
+
+function isSpace(c: number): boolean {
+  return c === 32 || c === 10 || c === 13 || c === 9 || c === 12 || c === 11;
+}
+
+function isDigit(c: number): boolean {
+  return c >= 48 && c <= 57;
+}
+
+/** Case-insensitive match of an ASCII lower-case word at position i. */
+function startsWithCi(s: string, i: number, word: string): boolean {
+  for (let k = 0; k < word.length; k++) {
+    const c = s.charCodeAt(i + k);
+    const w = word.charCodeAt(k);
+    if (c !== w && (c | 32) !== w) return false;
+  }
+  return true;
+}
+
+function clip(v: string): string {
+  return v.length > 40 ? `${v.slice(0, 37)}...` : v;
+}

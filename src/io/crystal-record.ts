@@ -1,0 +1,475 @@
+// One CIF data block -> a CrystalRecord (cell, symmetry operations, sites, space group, energy) or a
+// RejectedBlock that says, in words a user can act on, what is wrong and on which line.
+// Data names follow the CIF core dictionary (IUCr, open standard), with both the current
+// (`_space_group_symop_operation_xyz`) and the older (`_symmetry_equiv_pos_as_xyz`) spellings.
+import type { BlockResult, CellParams, CrystalRecord, Site, SymOp } from '../types.js';
+import { opsFromSymbol, opKey, parseSymopXyz, SUPPORTED_SYMBOLS } from '../geometry/symmetry.js';
+import { elementFromSite, type ElementReading } from '../geometry/elements.js';
+import { cifColumn, cifNumber, CifSyntaxError, parseCifBlock, ValueKind, type CifBlock, type CifColumn } from './cif.js';
+import type { RawBlock } from './cif-split.js';
+
+export interface ReadOptions {
+  /** Data name of a numeric item holding the energy (with or without the leading `_`); null for none. */
+  energyItem?: string | null;
+}
+
+/** Spellings of the operation list, in order of preference (CIF core dictionary; DDLm form last). */
+const OP_NAMES = ['_space_group_symop_operation_xyz', '_symmetry_equiv_pos_as_xyz', '_space_group_symop.operation_xyz'];
+const HM_NAMES = ['_space_group_name_h-m_alt', '_symmetry_space_group_name_h-m', '_space_group.name_h-m_alt'];
+const HALL_NAMES = ['_space_group_name_hall', '_symmetry_space_group_name_hall', '_space_group.name_hall'];
+const NUMBER_NAMES = ['_space_group_it_number', '_symmetry_int_tables_number', '_space_group.it_number'];
+const CELL_NAMES: Array<[keyof CellParams, string]> = [
+  ['a', '_cell_length_a'],
+  ['b', '_cell_length_b'],
+  ['c', '_cell_length_c'],
+  ['alpha', '_cell_angle_alpha'],
+  ['beta', '_cell_angle_beta'],
+  ['gamma', '_cell_angle_gamma'],
+];
+
+/** A stated `_cell_volume` further than this from the one computed from the cell is worth a note (0.5 %). */
+const VOLUME_NOTE_FRACTION = 0.005;
+/** Smallest cell volume taken as a real cell, Å³ (no crystal has a cell this small). */
+const MIN_VOLUME_A3 = 1e-3;
+
+/** Turn a block's text into a record or a rejection. Never throws. */
+export function blockResult(raw: RawBlock, file: string, opts: ReadOptions = {}): BlockResult {
+  if (raw.beforeFirstBlock) {
+    return reject(raw, file, `line ${raw.line}: text before the first data_ line is not inside any data block; start the file with a data_NAME line`);
+  }
+  let block: CifBlock;
+  try {
+    block = parseCifBlock(raw.text, raw.line);
+  } catch (e) {
+    if (e instanceof CifSyntaxError) return reject(raw, file, `line ${e.line}: ${e.message}`);
+    return reject(raw, file, `unexpected failure while parsing: ${(e as Error).message}`);
+  }
+  try {
+    const r = recordFromBlock(block, raw.text, file, opts);
+    if (typeof r === 'string') return reject(raw, file, r);
+    return { kind: 'record', record: r };
+  } catch (e) {
+    // Defensive: a bug here must not stop the other blocks from being read.
+    return reject(raw, file, `unexpected failure while reading the block: ${(e as Error).message}`);
+  }
+}
+
+/** Build the record from a parsed block; a string return is the rejection reason. */
+export function recordFromBlock(block: CifBlock, text: string, file: string, opts: ReadOptions = {}): CrystalRecord | string {
+  const notes: string[] = [...block.warnings];
+
+  // ---- cell ----
+  const cell = { a: 0, b: 0, c: 0, alpha: 0, beta: 0, gamma: 0 } as CellParams;
+  for (const [key, name] of CELL_NAMES) {
+    const v = single(block, name);
+    if (v === null) return `no ${name}: the cell is incomplete (add ${name})`;
+    if (v.kind === ValueKind.Unknown || v.kind === ValueKind.Inapplicable) {
+      return `line ${v.line}: ${name} is '${v.value}' (unknown); the cell must be given`;
+    }
+    const x = cifNumber(v.value);
+    if (!Number.isFinite(x)) return `line ${v.line}: ${name} is '${clip(v.value)}', not a number`;
+    if (key.length === 1 ? x <= 0 : x <= 0 || x >= 180) {
+      return `line ${v.line}: ${name} is ${v.value}, outside the possible range (${key.length === 1 ? 'lengths must be > 0 Å' : 'angles must lie between 0 and 180 degrees'})`;
+    }
+    cell[key] = x;
+  }
+  const volumeA3 = cellVolumeA3(cell);
+  if (!(volumeA3 > MIN_VOLUME_A3)) {
+    return `the cell angles alpha=${cell.alpha} beta=${cell.beta} gamma=${cell.gamma} give zero or negative volume; check the _cell_angle_* values`;
+  }
+  const statedVolume = single(block, '_cell_volume');
+  if (statedVolume !== null && statedVolume.kind !== ValueKind.Unknown && statedVolume.kind !== ValueKind.Inapplicable) {
+    const v = cifNumber(statedVolume.value);
+    if (Number.isFinite(v) && Math.abs(v - volumeA3) > VOLUME_NOTE_FRACTION * volumeA3) {
+      notes.push(
+        `stated _cell_volume ${statedVolume.value} differs from ${volumeA3.toFixed(2)} Å³ computed from the cell by more than 0.5 %; the cell parameters are used`,
+      );
+    }
+  }
+
+  // ---- space group and operations ----
+  const hm = firstText(block, HM_NAMES);
+  const hall = firstText(block, HALL_NAMES);
+  const spaceGroup = hm ?? hall;
+  const listed = readListedOps(block, notes);
+  if (typeof listed === 'string') return listed;
+  let ops: SymOp[];
+  let opsOrigin: CrystalRecord['opsOrigin'];
+  if (listed !== null) {
+    ops = listed;
+    opsOrigin = 'listed';
+    if (spaceGroup !== null) compareWithSymbol(ops, spaceGroup, hm !== null ? 'H-M' : 'Hall', notes);
+  } else if (spaceGroup !== null) {
+    const built = symbolOps(hm) ?? symbolOps(hall);
+    if (built === null) {
+      return (
+        `no symmetry operations are listed and the space-group symbol '${spaceGroup}' is not one this reader can expand ` +
+        `(supported: ${SUPPORTED_SYMBOLS.join(', ')}); list the operations with _space_group_symop_operation_xyz`
+      );
+    }
+    ops = built;
+    opsOrigin = 'symbol';
+    notes.push(`operations built from the space-group symbol '${spaceGroup}' (standard setting; no operations were listed)`);
+  } else {
+    const num = firstText(block, NUMBER_NAMES);
+    if (num !== null && cifNumber(num) !== 1) {
+      return `only a space-group number (${num}) is given, with no symbol and no operations; list the operations with _space_group_symop_operation_xyz`;
+    }
+    ops = [{ rot: [1, 0, 0, 0, 1, 0, 0, 0, 1], trans: [0, 0, 0] }];
+    opsOrigin = 'identity';
+    notes.push('no symmetry operations and no space-group symbol: P1 (identity only) assumed');
+  }
+
+  // ---- sites ----
+  const sites = readSites(block, notes);
+  if (typeof sites === 'string') return sites;
+
+  // ---- energy ----
+  const energy = readEnergy(block, opts.energyItem ?? null, notes);
+
+  return {
+    id: block.name,
+    file,
+    block: block.name,
+    source: `${file}#${block.name}`,
+    line: block.line,
+    cell,
+    ops,
+    opsOrigin,
+    spaceGroup,
+    sites,
+    energy,
+    text,
+    notes: dedupe(notes),
+  };
+}
+
+/** Cell volume in Å³ from lengths and angles (International Tables for Crystallography Vol. B; common practice). */
+export function cellVolumeA3(cell: CellParams): number {
+  const d = Math.PI / 180;
+  const ca = Math.cos(cell.alpha * d);
+  const cb = Math.cos(cell.beta * d);
+  const cg = Math.cos(cell.gamma * d);
+  const r = 1 - ca * ca - cb * cb - cg * cg + 2 * ca * cb * cg;
+  return r > 0 ? cell.a * cell.b * cell.c * Math.sqrt(r) : 0;
+}
+
+// ---- symmetry ----
+
+/**
+ * The listed operations (null when none are listed), or a rejection reason.
+ * A one-column loop whose operations were written unquoted with spaces (`-x, y, -z`) arrives split into
+ * several values; values on the same line are joined until they form three comma-separated parts.
+ */
+function readListedOps(block: CifBlock, notes: string[]): SymOp[] | string | null {
+  let col: CifColumn | null = null;
+  let name = '';
+  for (const n of OP_NAMES) {
+    col = cifColumn(block, n);
+    if (col !== null) {
+      name = n;
+      break;
+    }
+  }
+  if (col === null) return null;
+  const ops: SymOp[] = [];
+  const bareLoop = col.stride === 1;
+  let joined = false;
+  for (let r = 0; r < col.length; r++) {
+    const idx = col.offset + r * col.stride;
+    const kind = col.kinds[idx]!;
+    if (kind === ValueKind.Unknown || kind === ValueKind.Inapplicable) continue;
+    let text = col.values[idx]!;
+    const line = col.lines[idx]!;
+    if (bareLoop && kind === ValueKind.Bare) {
+      // Join split pieces on the same line: `-x,` `y,` `-z` -> `-x,y,-z`.
+      while (needsMore(text) && r + 1 < col.length) {
+        const nx = col.offset + (r + 1) * col.stride;
+        if (col.lines[nx] !== line || col.kinds[nx] !== ValueKind.Bare) break;
+        r++;
+        text += col.values[nx]!;
+        joined = true;
+      }
+    }
+    let op: SymOp;
+    try {
+      op = cachedOp(text);
+    } catch (e) {
+      return `line ${line}: symmetry operation ${ops.length + 1} of ${name} ('${clip(text)}') cannot be read: ${(e as Error).message}`;
+    }
+    ops.push(op);
+  }
+  if (joined) notes.push(`operations written with spaces and without quotes were joined (${name})`);
+  if (ops.length === 0) return null;
+  return ops;
+}
+
+/** True when an operation text still lacks parts (fewer than two commas, or ends or starts with a comma). */
+function needsMore(text: string): boolean {
+  let commas = 0;
+  for (let i = 0; i < text.length; i++) if (text.charCodeAt(i) === 44) commas++;
+  return commas < 2 || text.charCodeAt(text.length - 1) === 44;
+}
+
+/** Operation text -> parsed op; prediction files repeat the same few texts in every block. */
+const opCache = new Map<string, SymOp>();
+const OP_CACHE_MAX = 4096;
+
+function cachedOp(text: string): SymOp {
+  let op = opCache.get(text);
+  if (op === undefined) {
+    op = parseSymopXyz(text);
+    if (opCache.size >= OP_CACHE_MAX) opCache.clear();
+    opCache.set(text, op);
+  }
+  // Each record gets its own arrays, so no caller can change another record's operations.
+  return { rot: op.rot.slice(), trans: op.trans.slice() };
+}
+
+function symbolOps(symbol: string | null): SymOp[] | null {
+  if (symbol === null) return null;
+  return opsFromSymbol(symbol);
+}
+
+/** Note when listed operations are not the default setting of the declared symbol (the listed ones are used). */
+function compareWithSymbol(ops: SymOp[], symbol: string, kind: string, notes: string[]): void {
+  const fromSymbol = opsFromSymbol(symbol);
+  if (fromSymbol === null) return;
+  const listedKeys = new Set(ops.map(opKey));
+  const symbolKeys = new Set(fromSymbol.map(opKey));
+  let same = listedKeys.size === symbolKeys.size;
+  if (same) for (const k of listedKeys) if (!symbolKeys.has(k)) same = false;
+  if (!same) {
+    notes.push(
+      `the ${ops.length} listed operations are not the default setting of the declared ${kind} symbol '${symbol}' ` +
+        `(${fromSymbol.length} operations there); the listed operations are used`,
+    );
+  }
+}
+
+// ---- sites ----
+
+const siteElementCache = new Map<string, ElementReading>();
+const SITE_CACHE_MAX = 8192;
+
+function readSites(block: CifBlock, notes: string[]): Site[] | string {
+  const xs = cifColumn(block, '_atom_site_fract_x');
+  const ys = cifColumn(block, '_atom_site_fract_y');
+  const zs = cifColumn(block, '_atom_site_fract_z');
+  if (xs === null || ys === null || zs === null) {
+    if (cifColumn(block, '_atom_site_cartn_x') !== null) {
+      return 'atom sites are given only in Cartesian coordinates (_atom_site_Cartn_x); fractional coordinates (_atom_site_fract_x/y/z) are needed';
+    }
+    const missing = xs === null ? '_atom_site_fract_x' : ys === null ? '_atom_site_fract_y' : '_atom_site_fract_z';
+    return `no atom sites: ${missing} is missing (a structure needs _atom_site_label and _atom_site_fract_x/y/z)`;
+  }
+  const n = xs.length;
+  if (ys.length !== n || zs.length !== n || !sameLoop(xs, ys) || !sameLoop(xs, zs)) {
+    return `line ${xs.lines[xs.offset]}: _atom_site_fract_x, _y and _z are not in the same loop`;
+  }
+  const labels = sameLoopColumn(block, '_atom_site_label', xs);
+  const types = sameLoopColumn(block, '_atom_site_type_symbol', xs);
+  const occs = sameLoopColumn(block, '_atom_site_occupancy', xs);
+  const groups = sameLoopColumn(block, '_atom_site_disorder_group', xs);
+  const assemblies = sameLoopColumn(block, '_atom_site_disorder_assembly', xs);
+  const calc = sameLoopColumn(block, '_atom_site_calc_flag', xs);
+  if (labels === null && types === null) {
+    return `line ${xs.lines[xs.offset]}: the atom-site loop has neither _atom_site_label nor _atom_site_type_symbol, so no element can be read`;
+  }
+
+  // Elements named in _chemical_formula_sum settle labels such as 'NA1' (Na, not N) when no type symbol is given.
+  const formula = types === null ? formulaElements(block) : null;
+  const sites: Site[] = [];
+  const unknownH: string[] = [];
+  const dummies: string[] = [];
+  let partial = 0;
+  for (let i = 0; i < n; i++) {
+    const label = labels !== null ? value(labels, i) : `${value(types!, i)}${i + 1}`;
+    const line = xs.lines[xs.offset + i * xs.stride]!;
+    if (calc !== null && value(calc, i).toLowerCase() === 'dum') {
+      dummies.push(label);
+      continue;
+    }
+    const typeText = types !== null && kindAt(types, i) !== ValueKind.Unknown && kindAt(types, i) !== ValueKind.Inapplicable ? value(types, i) : null;
+    const elKey = `${typeText ?? ''}\u0000${label}`;
+    let el = siteElementCache.get(elKey);
+    if (el === undefined) {
+      el = elementFromSite(typeText, label);
+      if (siteElementCache.size >= SITE_CACHE_MAX) siteElementCache.clear();
+      siteElementCache.set(elKey, el);
+    }
+    if (typeText === null && formula !== null && !('error' in el) && !formula.has(el.element)) {
+      el = labelByFormula(label, formula) ?? el;
+    }
+    if ('error' in el) {
+      if (kindAt(xs, i) === ValueKind.Unknown) {
+        return `line ${line}: atom-site row ${i + 1} ('${label}') has '?' in place of its coordinates and no readable element; complete or remove the row`;
+      }
+      return `line ${line}: ${el.error}`;
+    }
+    if (el.note !== undefined) notes.push(el.note);
+
+    const frac: [number, number, number] = [0, 0, 0];
+    let unknownCoord = false;
+    for (let d = 0; d < 3; d++) {
+      const col = d === 0 ? xs : d === 1 ? ys : zs;
+      const k = col.offset + i * col.stride;
+      const kind = col.kinds[k]!;
+      if (kind === ValueKind.Unknown || kind === ValueKind.Inapplicable) {
+        unknownCoord = true;
+        break;
+      }
+      const v = cifNumber(col.values[k]!);
+      if (!Number.isFinite(v)) {
+        return `line ${col.lines[k]}: ${'xyz'[d]} coordinate of site ${label} is '${clip(col.values[k]!)}', not a number`;
+      }
+      frac[d] = v;
+    }
+    if (unknownCoord) {
+      if (el.element === 'H') {
+        unknownH.push(label);
+        continue;
+      }
+      return `line ${line}: site ${label} (${el.element}) has '?' in place of its coordinates; the structure would be incomplete without it`;
+    }
+
+    let occupancy = 1;
+    if (occs !== null) {
+      const k = kindAt(occs, i);
+      if (k !== ValueKind.Unknown && k !== ValueKind.Inapplicable) {
+        occupancy = cifNumber(value(occs, i));
+        if (!Number.isFinite(occupancy) || occupancy < 0) {
+          return `line ${line}: occupancy of site ${label} is '${clip(value(occs, i))}', not a number between 0 and 1`;
+        }
+        if (occupancy > 1.0001) notes.push(`site ${label} has occupancy ${value(occs, i)} > 1`);
+        if (occupancy < 0.9999) partial++;
+      }
+    }
+    sites.push({
+      label,
+      element: el.element,
+      frac,
+      occupancy,
+      disorderGroup: groups !== null ? textOrNull(groups, i) : null,
+      disorderAssembly: assemblies !== null ? textOrNull(assemblies, i) : null,
+    });
+  }
+  if (dummies.length > 0) notes.push(`dummy sites (calc flag 'dum') left out: ${listLabels(dummies)}`);
+  if (unknownH.length > 0) notes.push(`hydrogen sites with '?' coordinates left out: ${listLabels(unknownH)}`);
+  if (partial > 0) notes.push(`${partial} site(s) with partial occupancy`);
+  if (sites.length === 0) return `line ${xs.lines[xs.offset]}: the atom-site loop lists no site with coordinates`;
+  return sites;
+}
+
+/** Element symbols of `_chemical_formula_sum` ('C9 H18 N2 O2' -> {C, H, N, O}), or null when absent. */
+function formulaElements(block: CifBlock): Set<string> | null {
+  const v = single(block, '_chemical_formula_sum');
+  if (v === null || v.kind === ValueKind.Unknown || v.kind === ValueKind.Inapplicable) return null;
+  const out = new Set<string>();
+  for (const part of v.value.split(/\s+/)) {
+    const m = /^([A-Z][a-z]?)/.exec(part);
+    if (m !== null) out.add(m[1]!);
+  }
+  return out.size > 0 ? out : null;
+}
+
+/** Re-read a label whose first reading is not in the formula: try its one- and two-letter prefixes. */
+function labelByFormula(label: string, formula: Set<string>): ElementReading | null {
+  for (const len of [2, 1]) {
+    if (label.length < len) continue;
+    const r = elementFromSite(label.slice(0, len), label);
+    if (!('error' in r) && formula.has(r.element)) {
+      return { element: r.element, note: `label '${label}' read as ${r.element}, the element _chemical_formula_sum names` };
+    }
+  }
+  return null;
+}
+
+/** The column `name` if it exists and sits in the same loop as `ref` (else null). */
+function sameLoopColumn(block: CifBlock, name: string, ref: CifColumn): CifColumn | null {
+  const col = cifColumn(block, name);
+  if (col === null) return null;
+  return sameLoop(col, ref) ? col : null;
+}
+
+function sameLoop(a: CifColumn, b: CifColumn): boolean {
+  return a.values === b.values && a.length === b.length;
+}
+
+function value(col: CifColumn, i: number): string {
+  return col.values[col.offset + i * col.stride]!;
+}
+
+function kindAt(col: CifColumn, i: number): ValueKind {
+  return col.kinds[col.offset + i * col.stride]!;
+}
+
+function textOrNull(col: CifColumn, i: number): string | null {
+  const k = kindAt(col, i);
+  if (k === ValueKind.Unknown || k === ValueKind.Inapplicable) return null;
+  return value(col, i);
+}
+
+// ---- energy ----
+
+function readEnergy(block: CifBlock, item: string | null, notes: string[]): number | null {
+  if (item === null || item === '') return null;
+  const name = item.startsWith('_') ? item : `_${item}`;
+  const col = cifColumn(block, name);
+  if (col === null) {
+    notes.push(`no energy: the block has no ${name}`);
+    return null;
+  }
+  if (col.length !== 1) {
+    notes.push(`no energy: ${name} is a loop with ${col.length} values, not a single value`);
+    return null;
+  }
+  const k = col.kinds[col.offset]!;
+  const text = col.values[col.offset]!;
+  if (k === ValueKind.Unknown || k === ValueKind.Inapplicable) {
+    notes.push(`no energy: ${name} is '${text}' (line ${col.lines[col.offset]})`);
+    return null;
+  }
+  const v = cifNumber(text.trim());
+  if (!Number.isFinite(v)) {
+    notes.push(`no energy: ${name} is '${clip(text)}' (line ${col.lines[col.offset]}), not a number`);
+    return null;
+  }
+  return v;
+}
+
+// ---- helpers ----
+
+function single(block: CifBlock, name: string): { value: string; kind: ValueKind; line: number } | null {
+  const col = cifColumn(block, name);
+  if (col === null) return null;
+  return { value: col.values[col.offset]!, kind: col.kinds[col.offset]!, line: col.lines[col.offset]! };
+}
+
+/** First of several spellings present with a real value (not ? or .), trimmed. */
+function firstText(block: CifBlock, names: string[]): string | null {
+  for (const n of names) {
+    const v = single(block, n);
+    if (v !== null && v.kind !== ValueKind.Unknown && v.kind !== ValueKind.Inapplicable && v.value.trim() !== '') return v.value.trim();
+  }
+  return null;
+}
+
+function reject(raw: RawBlock, file: string, reason: string): BlockResult {
+  return {
+    kind: 'rejected',
+    rejected: { id: raw.name, file, block: raw.name, source: `${file}#${raw.name}`, line: raw.line, reason, text: raw.text },
+  };
+}
+
+function listLabels(labels: string[]): string {
+  return labels.length <= 8 ? labels.join(', ') : `${labels.slice(0, 8).join(', ')} and ${labels.length - 8} more`;
+}
+
+function dedupe(notes: string[]): string[] {
+  return notes.length < 2 ? notes : [...new Set(notes)];
+}
+
+function clip(v: string): string {
+  return v.length > 40 ? `${v.slice(0, 37)}...` : v;
+}

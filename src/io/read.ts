@@ -1,0 +1,176 @@
+// Inputs -> a stream of BlockResults: files as given, folders searched recursively for `*.cif` / `*.cif.gz`,
+// gzip read directly (recognised by its magic bytes), multi-block files read block by block so that memory
+// stays flat however large the file. File-level failures (missing, unreadable, empty, binary, not gzip)
+// become one RejectedBlock with block "" so they still appear in every output.
+import { createReadStream } from 'node:fs';
+import { open, readdir, stat } from 'node:fs/promises';
+import { join } from 'node:path';
+import { StringDecoder } from 'node:string_decoder';
+import { createGunzip } from 'node:zlib';
+import type { Readable } from 'node:stream';
+import type { BlockResult } from '../types.js';
+import { CifBlockSplitter, type RawBlock } from './cif-split.js';
+import { blockResult, type ReadOptions } from './crystal-record.js';
+
+export type { ReadOptions } from './crystal-record.js';
+
+/** Bytes read per chunk from disk. */
+const CHUNK_BYTES = 1 << 20;
+/** Share of control characters in the first chunk above which a file is taken as binary. */
+const BINARY_CONTROL_SHARE = 0.05;
+
+/**
+ * Files as given; folders searched recursively for `*.cif` and `*.cif.gz` (case-insensitive), each folder's
+ * files sorted by name (code-point order) so that runs are repeatable. A missing path throws a one-line error.
+ */
+export async function expandInputs(paths: string[]): Promise<string[]> {
+  const out: string[] = [];
+  for (const p of paths) {
+    let st;
+    try {
+      st = await stat(p);
+    } catch {
+      throw new Error(`input not found: ${p}`);
+    }
+    if (st.isDirectory()) await walk(p, out);
+    else out.push(p);
+  }
+  return out;
+}
+
+async function walk(dir: string, out: string[]): Promise<void> {
+  const entries = await readdir(dir, { withFileTypes: true });
+  const names = entries.map((e) => e.name).sort(codePointOrder);
+  const byName = new Map(entries.map((e) => [e.name, e]));
+  for (const name of names) {
+    const e = byName.get(name)!;
+    const full = join(dir, name);
+    if (e.isDirectory()) await walk(full, out);
+    else if (isCifName(name) && (e.isFile() || e.isSymbolicLink())) out.push(full);
+  }
+}
+
+function isCifName(name: string): boolean {
+  const l = name.toLowerCase();
+  return l.endsWith('.cif') || l.endsWith('.cif.gz');
+}
+
+function codePointOrder(a: string, b: string): number {
+  return a < b ? -1 : a > b ? 1 : 0;
+}
+
+/** Every block of every input, in input order, one BlockResult each. */
+export async function* readStructures(paths: string[], opts: ReadOptions = {}): AsyncGenerator<BlockResult> {
+  const files = await expandInputs(paths);
+  for (const file of files) yield* readCifFile(file, opts);
+}
+
+/** Every block of one file (plain or gzip), streamed. Never throws for bad content. */
+export async function* readCifFile(file: string, opts: ReadOptions = {}): AsyncGenerator<BlockResult> {
+  // Look at the first bytes: empty, gzip or not.
+  let head: Buffer;
+  try {
+    const fh = await open(file, 'r');
+    try {
+      const buf = Buffer.alloc(2);
+      const { bytesRead } = await fh.read(buf, 0, 2, 0);
+      head = buf.subarray(0, bytesRead);
+    } finally {
+      await fh.close();
+    }
+  } catch (e) {
+    yield fileRejected(file, `cannot be read: ${(e as Error).message}`);
+    return;
+  }
+  if (head.length === 0) {
+    yield fileRejected(file, 'the file is empty');
+    return;
+  }
+  const gzip = head.length === 2 && head[0] === 0x1f && head[1] === 0x8b;
+  if (!gzip && file.toLowerCase().endsWith('.gz')) {
+    yield fileRejected(file, 'the name ends in .gz but the file is not gzip-compressed; rename it or compress it');
+    return;
+  }
+
+  let source: Readable = createReadStream(file, { highWaterMark: CHUNK_BYTES });
+  if (gzip) source = source.pipe(createGunzip());
+  const decoder = new StringDecoder('utf8');
+  const splitter = new CifBlockSplitter();
+  const out: RawBlock[] = [];
+  let first = true;
+  let emitted = 0;
+  try {
+    for await (const chunk of source as AsyncIterable<Buffer>) {
+      const text = decoder.write(chunk);
+      const bad = binaryAt(text, first);
+      if (bad) {
+        source.destroy();
+        yield fileRejected(file, `binary data (not CIF text) near line ${splitter.linesRead}; the rest of the file is not read`);
+        return;
+      }
+      first = false;
+      splitter.push(text, out);
+      for (const raw of out) {
+        emitted++;
+        yield blockResult(raw, file, opts);
+      }
+      out.length = 0;
+    }
+  } catch (e) {
+    source.destroy();
+    const cur = splitter.current;
+    const what = gzip ? 'the gzip data is damaged or cut short' : 'reading failed';
+    yield {
+      kind: 'rejected',
+      rejected: {
+        id: cur?.name ?? '',
+        file,
+        block: cur?.name ?? '',
+        source: `${file}#${cur?.name ?? ''}`,
+        line: cur?.line ?? splitter.linesRead,
+        reason: `${what} near line ${splitter.linesRead} (${(e as Error).message}); blocks before this one were read, the rest of the file was not`,
+        text: '',
+      },
+    };
+    return;
+  }
+  splitter.push(decoder.end(), out);
+  splitter.end(out);
+  for (const raw of out) {
+    emitted++;
+    yield blockResult(raw, file, opts);
+  }
+  if (emitted === 0) yield fileRejected(file, 'the file holds no data_ block (only white space or comments)');
+}
+
+/** All blocks of a CIF text held in memory (tests, small inputs). Never throws for bad content. */
+export function readCifText(text: string, file: string, opts: ReadOptions = {}): BlockResult[] {
+  if (text.length === 0) return [fileRejected(file, 'the file is empty')];
+  if (binaryAt(text, true)) return [fileRejected(file, 'binary data (not CIF text); the file is not read')];
+  const splitter = new CifBlockSplitter();
+  const out: RawBlock[] = [];
+  splitter.push(text, out);
+  splitter.end(out);
+  if (out.length === 0) return [fileRejected(file, 'the file holds no data_ block (only white space or comments)')];
+  return out.map((raw) => blockResult(raw, file, opts));
+}
+
+/**
+ * True when text looks binary: any NUL character, or (in the first chunk) many control characters or
+ * undecodable bytes. CIF 1.1 text is printable ASCII plus tab, CR, LF (IUCr CIF 1.1 syntax, character set).
+ */
+function binaryAt(text: string, firstChunk: boolean): boolean {
+  if (text.indexOf('\u0000') >= 0) return true;
+  if (!firstChunk) return false;
+  const n = Math.min(text.length, 65536);
+  let bad = 0;
+  for (let i = 0; i < n; i++) {
+    const c = text.charCodeAt(i);
+    if ((c < 32 && c !== 9 && c !== 10 && c !== 13 && c !== 12) || c === 0xfffd) bad++;
+  }
+  return n > 0 && bad > BINARY_CONTROL_SHARE * n;
+}
+
+function fileRejected(file: string, reason: string): BlockResult {
+  return { kind: 'rejected', rejected: { id: '', file, block: '', source: `${file}#`, line: 1, reason, text: '' } };
+}
