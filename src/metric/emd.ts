@@ -1,0 +1,533 @@
+// Earth mover's distance between two PDDs (Rubner, Tomasi & Guibas, "The Earth Mover's Distance as a Metric
+// for Image Retrieval", IJCV 2000): rows are weighted points, the ground distance between two rows is their
+// L-infinity distance, and the distance is the cost of the cheapest transport of one weight distribution onto
+// the other. The transportation problem is solved exactly by a primal network simplex on the bipartite graph
+// rows(a) -> rows(b), kept on strongly feasible spanning trees so that degenerate pivots cannot cycle
+// (Cunningham, "A network simplex method", Math. Programming 1976; Ahuja, Magnanti & Orlin, "Network Flows",
+// 1993, sections 11.5-11.6). The first basis comes from the matrix-minimum rule (cheapest cells first).
+//
+// Also here: the AMD distance, the L-infinity distance between AMD vectors, which never exceeds the EMD
+// ("Average minimum distances of periodic point sets", MATCH Commun. Math. Comput. Chem. 2022).
+import type { Pdd } from '../types.js';
+
+/** Weights at or above this (negative) value are rounding residue and count as 0; below it they are an error. */
+export const NEGATIVE_WEIGHT_TOLERANCE = -1e-9;
+
+/**
+ * EMD in Å between two PDDs with the L-infinity ground distance between rows.
+ * Weights are renormalised to add up to 1 on each side; zero-weight rows carry no mass.
+ * Identical PDDs give exactly 0, and `emd(a, b) === emd(b, a)` bit for bit.
+ */
+export function emd(a: Pdd, b: Pdd): number {
+  checkPdd(a, 'first');
+  checkPdd(b, 'second');
+  if (a.k !== b.k) throw new Error(`EMD needs PDDs of the same depth k, got k = ${a.k} and k = ${b.k}`);
+  return emdPacked(a.rows, a.weights, 0, a.weights.length, b.rows, b.weights, 0, b.weights.length, a.k);
+}
+
+/**
+ * The AMD distance: max_j |a_j - b_j| (Å), a lower bound of the EMD between the PDDs the AMDs come from.
+ */
+export function amdDistance(a: Float64Array, b: Float64Array): number {
+  if (a.length !== b.length) throw new Error(`AMD distance needs vectors of the same length, got ${a.length} and ${b.length}`);
+  let max = 0;
+  for (let j = 0; j < a.length; j++) {
+    const d = Math.abs(a[j] - b[j]);
+    if (d > max || d !== d) max = d;
+  }
+  return max;
+}
+
+/** Throw a clear message when a PDD cannot be compared (shape, non-finite values, negative or zero total weight). */
+export function checkPdd(p: Pdd, which = 'a'): void {
+  const n = p.weights.length;
+  if (!Number.isInteger(p.k) || p.k < 1) throw new Error(`the ${which} PDD has depth k = ${p.k}; k must be a positive integer`);
+  if (n < 1) throw new Error(`the ${which} PDD has no rows`);
+  if (p.rows.length !== n * p.k) {
+    throw new Error(`the ${which} PDD has ${p.rows.length} row values for ${n} weights at k = ${p.k} (expected ${n * p.k})`);
+  }
+  let total = 0;
+  for (let i = 0; i < n; i++) {
+    const w = p.weights[i];
+    if (!Number.isFinite(w)) throw new Error(`the ${which} PDD has a non-finite weight in row ${i}`);
+    if (w < NEGATIVE_WEIGHT_TOLERANCE) throw new Error(`the ${which} PDD has a negative weight ${w} in row ${i}`);
+    if (w > 0) total += w;
+  }
+  if (!(total > 0)) throw new Error(`the ${which} PDD has no positive weight`);
+  for (let t = 0; t < p.rows.length; t++) {
+    if (!Number.isFinite(p.rows[t])) throw new Error(`the ${which} PDD has a non-finite distance in row ${Math.floor(t / p.k)}`);
+  }
+}
+
+/**
+ * EMD between PDD A (rows aFirst..aFirst+aCount-1 of `aRows`/`aWeights`) and PDD B, both of depth k.
+ * Row r of A is aRows[(aFirst + r) * k .. + k). Inputs are assumed checked (see `checkPdd`).
+ * This is the single code path used by `emd` and by the neighbour search, so both give identical numbers.
+ */
+export function emdPacked(
+  aRows: Float64Array,
+  aWeights: Float64Array,
+  aFirst: number,
+  aCount: number,
+  bRows: Float64Array,
+  bWeights: Float64Array,
+  bFirst: number,
+  bCount: number,
+  k: number,
+): number {
+  // Solve in a canonical order so that the result does not depend on the argument order.
+  const c = comparePacked(aRows, aWeights, aFirst, aCount, bRows, bWeights, bFirst, bCount, k);
+  if (c === 0) return 0;
+  if (c > 0) return solve(bRows, bWeights, bFirst, bCount, aRows, aWeights, aFirst, aCount, k);
+  return solve(aRows, aWeights, aFirst, aCount, bRows, bWeights, bFirst, bCount, k);
+}
+
+/** Statistics of the last solve on this thread (for benchmarks and tests of the pivoting). */
+export const lastSolve = { pivots: 0, degeneratePivots: 0, rows: 0, cols: 0 };
+
+// ---- scratch buffers, grown to the largest problem seen and reused (nothing allocated per solve) ----
+// They live in one object and every function copies the arrays it uses into local constants: reads of
+// module-level `let` bindings in hot loops are much slower in V8.
+class Workspace {
+  capRows = 0;
+  capCols = 0;
+  capNodes = 0;
+  supply = new Float64Array(0);
+  demand = new Float64Array(0);
+  rowOf = new Int32Array(0);
+  colOf = new Int32Array(0);
+  cost = new Float64Array(0);
+  order = new Int32Array(0);
+  sortStack = new Int32Array(0);
+  arcTail = new Int32Array(0);
+  arcHead = new Int32Array(0);
+  arcFlow = new Float64Array(0);
+  arcCost = new Float64Array(0);
+  parent = new Int32Array(0);
+  parentArc = new Int32Array(0);
+  depth = new Int32Array(0);
+  potential = new Float64Array(0);
+  adjStart = new Int32Array(0);
+  adjFill = new Int32Array(0);
+  adjArc = new Int32Array(0);
+  queue = new Int32Array(0);
+  unionParent = new Int32Array(0);
+  componentArc = new Int32Array(0);
+
+  ensure(m: number, n: number): void {
+    if (m > this.capRows || n > this.capCols) {
+      this.capRows = Math.max(m, this.capRows);
+      this.capCols = Math.max(n, this.capCols);
+      this.supply = new Float64Array(this.capRows);
+      this.rowOf = new Int32Array(this.capRows);
+      this.demand = new Float64Array(this.capCols);
+      this.colOf = new Int32Array(this.capCols);
+      this.cost = new Float64Array(this.capRows * this.capCols);
+      this.order = new Int32Array(this.capRows * this.capCols);
+      this.sortStack = new Int32Array(2 * Math.ceil(Math.log2(this.capRows * this.capCols + 2)) + 8);
+    }
+    const nodes = m + n + 1;
+    if (nodes > this.capNodes) {
+      this.capNodes = nodes;
+      this.arcTail = new Int32Array(nodes);
+      this.arcHead = new Int32Array(nodes);
+      this.arcFlow = new Float64Array(nodes);
+      this.arcCost = new Float64Array(nodes);
+      this.parent = new Int32Array(nodes);
+      this.parentArc = new Int32Array(nodes);
+      this.depth = new Int32Array(nodes);
+      this.potential = new Float64Array(nodes);
+      this.adjStart = new Int32Array(nodes + 1);
+      this.adjFill = new Int32Array(nodes + 1);
+      this.adjArc = new Int32Array(2 * nodes);
+      this.queue = new Int32Array(nodes);
+      this.unionParent = new Int32Array(nodes);
+      this.componentArc = new Int32Array(nodes);
+    }
+  }
+}
+
+const ws = new Workspace();
+
+/**
+ * Transportation problem A -> B. Rows of A with positive weight become supply nodes 0..m-1, rows of B demand
+ * nodes m..m+n-1, and an artificial root R = m+n closes the spanning tree. Every arc row -> column exists with
+ * cost = L-infinity distance between the rows; artificial arcs node -> R start at zero flow and can never gain
+ * flow (any cycle through R passes one of them backwards), so the optimum found is that of the real problem.
+ */
+function solve(
+  aRows: Float64Array,
+  aWeights: Float64Array,
+  aFirst: number,
+  aCount: number,
+  bRows: Float64Array,
+  bWeights: Float64Array,
+  bFirst: number,
+  bCount: number,
+  k: number,
+): number {
+  ws.ensure(aCount, bCount);
+  const { supply, demand, rowOf, colOf, cost, order, arcTail, arcHead, arcFlow, arcCost, potential, unionParent, componentArc } = ws;
+  // Keep the rows that carry mass; renormalise each side to total 1 (negative rounding residue counts as 0).
+  let totalA = 0;
+  for (let r = 0; r < aCount; r++) {
+    const w = aWeights[aFirst + r];
+    if (w > 0) totalA += w;
+  }
+  let totalB = 0;
+  for (let r = 0; r < bCount; r++) {
+    const w = bWeights[bFirst + r];
+    if (w > 0) totalB += w;
+  }
+  let m = 0;
+  for (let r = 0; r < aCount; r++) {
+    const w = aWeights[aFirst + r];
+    if (w > 0) {
+      supply[m] = w / totalA;
+      rowOf[m++] = aFirst + r;
+    }
+  }
+  let n = 0;
+  for (let r = 0; r < bCount; r++) {
+    const w = bWeights[bFirst + r];
+    if (w > 0) {
+      demand[n] = w / totalB;
+      colOf[n++] = bFirst + r;
+    }
+  }
+  lastSolve.pivots = 0;
+  lastSolve.degeneratePivots = 0;
+  lastSolve.rows = m;
+  lastSolve.cols = n;
+
+  // Ground distances: L-infinity between rows.
+  for (let i = 0; i < m; i++) {
+    const ao = rowOf[i] * k;
+    for (let j = 0; j < n; j++) {
+      const bo = colOf[j] * k;
+      let max = 0;
+      for (let t = 0; t < k; t++) {
+        const d = aRows[ao + t] - bRows[bo + t];
+        if (d > max) max = d;
+        else if (-d > max) max = -d;
+      }
+      cost[i * n + j] = max;
+    }
+  }
+
+  // One row on either side: the only feasible transport sends everything to (or from) it.
+  if (m === 1) {
+    let s = 0;
+    for (let j = 0; j < n; j++) s += demand[j] * cost[j];
+    return s;
+  }
+  if (n === 1) {
+    let s = 0;
+    for (let i = 0; i < m; i++) s += supply[i] * cost[i];
+    return s;
+  }
+
+  const cells = m * n;
+  const root = m + n;
+  const nodes = m + n + 1;
+
+  // ---- first basis: matrix minimum (allocate to the cheapest open cells first) ----
+  for (let c = 0; c < cells; c++) order[c] = c;
+  sortByCost(order, cells, cost, ws.sortStack);
+  for (let v = 0; v < nodes; v++) unionParent[v] = v;
+  let arcs = 0;
+  let rowsLeft = m;
+  let colsLeft = n;
+  for (let t = 0; t < cells && rowsLeft > 0 && colsLeft > 0; t++) {
+    const c = order[t];
+    const i = (c / n) | 0;
+    const j = c - i * n;
+    const s = supply[i];
+    const d = demand[j];
+    if (s <= 0 || d <= 0) continue;
+    // Each allocation empties its row or its column, which then takes no more: the positive arcs form a forest.
+    const x = s < d ? s : d;
+    supply[i] = s - x;
+    demand[j] = d - x;
+    if (supply[i] <= 0) rowsLeft--;
+    if (demand[j] <= 0) colsLeft--;
+    arcTail[arcs] = i;
+    arcHead[arcs] = m + j;
+    arcFlow[arcs] = x;
+    arcCost[arcs] = cost[c];
+    arcs++;
+    unite(unionParent, i, m + j);
+  }
+  // Hang each component of the forest from the root by a zero-flow arc pointing to the root: the tree is then
+  // strongly feasible (every zero-flow arc points towards the root).
+  for (let v = 0; v < root; v++) componentArc[v] = -1;
+  for (let v = 0; v < root; v++) {
+    const r = find(unionParent, v);
+    if (componentArc[r] >= 0) continue;
+    componentArc[r] = arcs;
+    arcTail[arcs] = v;
+    arcHead[arcs] = root;
+    arcFlow[arcs] = 0;
+    arcCost[arcs] = 0;
+    arcs++;
+  }
+  if (arcs !== nodes - 1) throw new Error(`EMD solver: first basis has ${arcs} arcs for ${nodes} nodes (internal error)`);
+
+  // Reduced costs below -tolerance mean "improving"; the tolerance absorbs rounding in the potentials.
+  let maxCost = 0;
+  for (let c = 0; c < cells; c++) if (cost[c] > maxCost) maxCost = cost[c];
+  const tolerance = 1e-13 * (maxCost > 1 ? maxCost : 1);
+
+  // Partial pricing: scan blocks of about sqrt(cells) arcs, enter the most negative of the first improving block.
+  const block = Math.max(Math.min(cells, 16), Math.ceil(Math.sqrt(cells)));
+  let next = 0;
+  const pivotLimit = 50 * cells + 10_000;
+  rebuildTree(ws, nodes, root);
+  for (;;) {
+    let enter = -1;
+    let best = -tolerance;
+    let scanned = 0;
+    while (scanned < cells) {
+      const end = Math.min(scanned + block, cells);
+      for (; scanned < end; scanned++) {
+        const c = next;
+        next = next + 1 === cells ? 0 : next + 1;
+        const i = (c / n) | 0;
+        const j = c - i * n;
+        const rc = cost[c] + potential[i] - potential[m + j];
+        if (rc < best) {
+          best = rc;
+          enter = c;
+        }
+      }
+      if (enter >= 0) break;
+    }
+    if (enter < 0) break;
+    if (++lastSolve.pivots > pivotLimit) {
+      throw new Error(`EMD solver did not converge within ${pivotLimit} pivots (${m} x ${n} rows); please report this input`);
+    }
+    pivot(ws, enter, m, n);
+    rebuildTree(ws, nodes, root);
+  }
+
+  let total = 0;
+  for (let a = 0; a < nodes - 1; a++) {
+    if (arcHead[a] !== root) total += arcFlow[a] * arcCost[a];
+  }
+  return total;
+}
+
+/**
+ * Bring cell `enter` (row i -> column j) into the tree. The cycle is oriented along the entering arc; the leaving
+ * arc is the last blocking arc met when walking the cycle from its apex in that orientation, which keeps the tree
+ * strongly feasible (Ahuja, Magnanti & Orlin 1993, section 11.6).
+ */
+function pivot(w0: Workspace, enter: number, m: number, n: number): void {
+  const { arcTail, arcHead, arcFlow, arcCost, parent, parentArc, depth, cost } = w0;
+  const i = (enter / n) | 0;
+  const j = enter - i * n;
+  const u = i;
+  const v = m + j;
+  // Apex: the nearest common ancestor of u and v.
+  let x = u;
+  let y = v;
+  while (depth[x] > depth[y]) x = parent[x];
+  while (depth[y] > depth[x]) y = parent[y];
+  while (x !== y) {
+    x = parent[x];
+    y = parent[y];
+  }
+  const apex = x;
+
+  // Walk order along the orientation: apex -> ... -> u, then u -> v, then v -> ... -> apex.
+  // On the u side (walked downwards) an arc loses flow when it points up (child -> parent); climbing from u
+  // visits it in reverse walk order, so among equal flows the first one met (nearest u) is the last in walk order.
+  let theta = Infinity;
+  let leave = -1;
+  for (let w = u; w !== apex; w = parent[w]) {
+    const a = parentArc[w];
+    if (arcTail[a] === w && arcFlow[a] < theta) {
+      theta = arcFlow[a];
+      leave = a;
+    }
+  }
+  // On the v side (walked upwards) an arc loses flow when it points down (parent -> child); climbing from v is walk
+  // order, so later ones win ties, and they also beat ties from the u side.
+  for (let w = v; w !== apex; w = parent[w]) {
+    const a = parentArc[w];
+    if (arcHead[a] === w && arcFlow[a] <= theta) {
+      theta = arcFlow[a];
+      leave = a;
+    }
+  }
+  if (leave < 0) throw new Error('EMD solver: pivot cycle has no blocking arc (internal error)');
+  lastSolve.degeneratePivots += theta === 0 ? 1 : 0;
+
+  if (theta > 0) {
+    for (let w = u; w !== apex; w = parent[w]) {
+      const a = parentArc[w];
+      if (arcTail[a] === w) arcFlow[a] -= theta;
+      else arcFlow[a] += theta;
+    }
+    for (let w = v; w !== apex; w = parent[w]) {
+      const a = parentArc[w];
+      if (arcHead[a] === w) arcFlow[a] -= theta;
+      else arcFlow[a] += theta;
+    }
+  }
+  // The entering arc takes the leaving arc's slot.
+  arcTail[leave] = u;
+  arcHead[leave] = v;
+  arcFlow[leave] = theta;
+  arcCost[leave] = cost[enter];
+}
+
+/** Parent pointers, depths and node potentials of the current tree, by breadth-first search from the root. */
+function rebuildTree(w0: Workspace, nodes: number, root: number): void {
+  const { arcTail, arcHead, arcCost, parent, parentArc, depth, potential, adjStart, adjFill, adjArc, queue } = w0;
+  const arcs = nodes - 1;
+  for (let v = 0; v <= nodes; v++) adjStart[v] = 0;
+  for (let a = 0; a < arcs; a++) {
+    adjStart[arcTail[a] + 1]++;
+    adjStart[arcHead[a] + 1]++;
+  }
+  for (let v = 0; v < nodes; v++) adjStart[v + 1] += adjStart[v];
+  for (let v = 0; v < nodes; v++) adjFill[v] = adjStart[v];
+  for (let a = 0; a < arcs; a++) {
+    adjArc[adjFill[arcTail[a]]++] = a;
+    adjArc[adjFill[arcHead[a]]++] = a;
+  }
+  // Potentials p with cost(t -> h) + p[t] - p[h] = 0 on every tree arc; p[root] = 0.
+  parent[root] = -1;
+  parentArc[root] = -1;
+  depth[root] = 0;
+  potential[root] = 0;
+  let head = 0;
+  let tail = 0;
+  queue[tail++] = root;
+  while (head < tail) {
+    const w = queue[head++];
+    for (let e = adjStart[w]; e < adjStart[w + 1]; e++) {
+      const a = adjArc[e];
+      if (a === parentArc[w]) continue;
+      const child = arcTail[a] === w ? arcHead[a] : arcTail[a];
+      parent[child] = w;
+      parentArc[child] = a;
+      depth[child] = depth[w] + 1;
+      potential[child] = arcTail[a] === w ? potential[w] + arcCost[a] : potential[w] - arcCost[a];
+      queue[tail++] = child;
+    }
+  }
+  if (tail !== nodes) throw new Error('EMD solver: basis is not a spanning tree (internal error)');
+}
+
+function find(unionParent: Int32Array, v: number): number {
+  while (unionParent[v] !== v) {
+    unionParent[v] = unionParent[unionParent[v]];
+    v = unionParent[v];
+  }
+  return v;
+}
+
+function unite(unionParent: Int32Array, a: number, b: number): void {
+  const ra = find(unionParent, a);
+  const rb = find(unionParent, b);
+  if (ra !== rb) unionParent[ra] = rb;
+}
+
+/**
+ * Order two packed PDDs: by row count, then row values, then weights. 0 means identical content.
+ * Used to solve every pair in one fixed orientation.
+ */
+function comparePacked(
+  aRows: Float64Array,
+  aWeights: Float64Array,
+  aFirst: number,
+  aCount: number,
+  bRows: Float64Array,
+  bWeights: Float64Array,
+  bFirst: number,
+  bCount: number,
+  k: number,
+): number {
+  if (aCount !== bCount) return aCount < bCount ? -1 : 1;
+  const ao = aFirst * k;
+  const bo = bFirst * k;
+  const len = aCount * k;
+  for (let t = 0; t < len; t++) {
+    const x = aRows[ao + t];
+    const y = bRows[bo + t];
+    if (x !== y) return x < y ? -1 : 1;
+  }
+  for (let r = 0; r < aCount; r++) {
+    const x = aWeights[aFirst + r];
+    const y = bWeights[bFirst + r];
+    if (x !== y) return x < y ? -1 : 1;
+  }
+  return 0;
+}
+
+/** In-place sort of cell indices by ascending cost, ties by index (iterative quicksort + insertion sort). */
+function sortByCost(idx: Int32Array, count: number, key: Float64Array, sortStack: Int32Array): void {
+  let sp = 0;
+  sortStack[sp++] = 0;
+  sortStack[sp++] = count - 1;
+  while (sp > 0) {
+    let hi = sortStack[--sp];
+    let lo = sortStack[--sp];
+    while (hi - lo > 16) {
+      // Median of three as pivot.
+      const mid = (lo + hi) >> 1;
+      if (less(idx[mid], idx[lo], key)) swap(idx, mid, lo);
+      if (less(idx[hi], idx[lo], key)) swap(idx, hi, lo);
+      if (less(idx[hi], idx[mid], key)) swap(idx, hi, mid);
+      const p = idx[mid];
+      let l = lo;
+      let r = hi;
+      while (l <= r) {
+        while (less(idx[l], p, key)) l++;
+        while (less(p, idx[r], key)) r--;
+        if (l <= r) {
+          swap(idx, l, r);
+          l++;
+          r--;
+        }
+      }
+      // Push the larger part, keep working on the smaller one (stack depth stays logarithmic).
+      if (r - lo < hi - l) {
+        if (l < hi) {
+          sortStack[sp++] = l;
+          sortStack[sp++] = hi;
+        }
+        hi = r;
+      } else {
+        if (lo < r) {
+          sortStack[sp++] = lo;
+          sortStack[sp++] = r;
+        }
+        lo = l;
+      }
+    }
+    for (let s = lo + 1; s <= hi; s++) {
+      const v = idx[s];
+      let t = s - 1;
+      while (t >= lo && less(v, idx[t], key)) {
+        idx[t + 1] = idx[t];
+        t--;
+      }
+      idx[t + 1] = v;
+    }
+  }
+}
+
+function less(a: number, b: number, key: Float64Array): boolean {
+  const ka = key[a];
+  const kb = key[b];
+  return ka < kb || (ka === kb && a < b);
+}
+
+function swap(idx: Int32Array, a: number, b: number): void {
+  const t = idx[a];
+  idx[a] = idx[b];
+  idx[b] = t;
+}

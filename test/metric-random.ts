@@ -1,0 +1,54 @@
+// Random PDDs for the metric tests: seeded, so every run checks the same instances.
+// A PDD here follows the data contract in src/types.ts: each row ascending, rows in lexicographic order.
+import type { Pdd } from '../src/types.js';
+
+/** Small seeded generator (mulberry32, common practice for reproducible test data). */
+export function rng(seed: number): () => number {
+  let s = seed >>> 0;
+  return () => {
+    s = (s + 0x6d2b79f5) >>> 0;
+    let t = s;
+    t = Math.imul(t ^ (t >>> 15), t | 1);
+    t ^= t + Math.imul(t ^ (t >>> 7), t | 61);
+    return ((t ^ (t >>> 14)) >>> 0) / 4294967296;
+  };
+}
+
+/** Build a PDD from row arrays and weights: sorts each row, then the rows lexicographically (weights follow). */
+export function makePdd(rowList: number[][], weights: number[]): Pdd {
+  const k = rowList[0].length;
+  const idx = rowList.map((r, i) => ({ r: [...r].sort((x, y) => x - y), w: weights[i] }));
+  idx.sort((p, q) => {
+    for (let t = 0; t < k; t++) if (p.r[t] !== q.r[t]) return p.r[t] - q.r[t];
+    return 0;
+  });
+  const rows = new Float64Array(idx.length * k);
+  idx.forEach((e, i) => rows.set(e.r, i * k));
+  return { k, rows, weights: Float64Array.from(idx.map((e) => e.w)) };
+}
+
+/** n rows of k distances drawn by `value`, weights drawn by `weight` and normalised to add up to 1. */
+export function randomPdd(rand: () => number, n: number, k: number, value: () => number, weight: () => number = rand): Pdd {
+  const rows: number[][] = [];
+  const w: number[] = [];
+  for (let i = 0; i < n; i++) {
+    rows.push(Array.from({ length: k }, value));
+    w.push(weight() + 1e-3);
+  }
+  const s = w.reduce((x, y) => x + y, 0);
+  return makePdd(rows, w.map((x) => x / s));
+}
+
+/** AMD as defined in "Average minimum distances of periodic point sets" (MATCH 2022): weighted column means. */
+export function amdOf(p: Pdd): Float64Array {
+  const n = p.weights.length;
+  let total = 0;
+  for (let i = 0; i < n; i++) total += p.weights[i];
+  const out = new Float64Array(p.k);
+  for (let i = 0; i < n; i++) for (let j = 0; j < p.k; j++) out[j] += (p.weights[i] / total) * p.rows[i * p.k + j];
+  return out;
+}
+
+export function pddToJson(p: Pdd): { k: number; rows: number[]; weights: number[] } {
+  return { k: p.k, rows: Array.from(p.rows), weights: Array.from(p.weights) };
+}
