@@ -45,7 +45,8 @@ export function pdd(set: PeriodicSet, k: number, opts: PddOptions = {}): Pdd {
  * Sort weighted rows lexicographically and merge rows that agree within `toleranceAngstrom` in every
  * column (L-infinity), adding their weights. A row joins the first earlier kept row it is close to
  * (rows equal up to rounding need not be adjacent in the sorted order, so the scan looks back over
- * every kept row whose first entry is within the tolerance). The kept row keeps its own values.
+ * every kept row whose first entry is within the tolerance). The kept row keeps its own values. The
+ * output order is lexicographic with entries closer than the tolerance treated as equal.
  */
 export function collapseRows(rows: Float64Array, weights: Float64Array, k: number, toleranceAngstrom: number): Pdd {
   const n = weights.length;
@@ -86,7 +87,25 @@ export function collapseRows(rows: Float64Array, weights: Float64Array, k: numbe
       nKept++;
     }
   }
+  // Final order: lexicographic with entries within the tolerance counted as equal, so that rows whose
+  // leading entries differ only by rounding come out in the same order for every description of the set.
+  const final = new Int32Array(nKept);
+  for (let t = 0; t < nKept; t++) final[t] = t;
+  final.sort((a, b) => {
+    const ra = kept[a] * k;
+    const rb = kept[b] * k;
+    for (let j = 0; j < k; j++) {
+      const d = rows[ra + j] - rows[rb + j];
+      if (d > toleranceAngstrom || d < -toleranceAngstrom) return d;
+    }
+    return a - b;
+  });
   const outRows = new Float64Array(nKept * k);
-  for (let t = 0; t < nKept; t++) outRows.set(rows.subarray(kept[t] * k, kept[t] * k + k), t * k);
-  return { k, rows: outRows, weights: keptWeight.slice(0, nKept) };
+  const outWeights = new Float64Array(nKept);
+  for (let t = 0; t < nKept; t++) {
+    const src = kept[final[t]];
+    outRows.set(rows.subarray(src * k, src * k + k), t * k);
+    outWeights[t] = keptWeight[final[t]];
+  }
+  return { k, rows: outRows, weights: outWeights };
 }
