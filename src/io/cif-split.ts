@@ -21,7 +21,7 @@ export class CifBlockSplitter {
   /** Text of the current block from earlier chunks. */
   private parts: string[] = [];
   private name = '';
-  private line = 1;
+  private line: number;
   /** False until the first data_ line: text is then the prologue. */
   private inBlock = false;
   private prologueHasContent = false;
@@ -29,7 +29,7 @@ export class CifBlockSplitter {
   private inTextField = false;
   /** Partial last line of the previous chunk and the line number where it starts. */
   private carry = '';
-  private lineNo = 1;
+  private lineNo: number;
   /** Blocks seen so far (data_ lines). */
   blockCount = 0;
 
@@ -49,13 +49,34 @@ export class CifBlockSplitter {
     this.carry = pos < s.length ? s.slice(pos) : '';
   }
 
-  /** Flush at end of input: the last line (without a final newline) and the last block. */
+  constructor(firstLine = 1) {
+    this.lineNo = firstLine;
+    this.line = firstLine;
+  }
+
+  /**
+   * Flush at end of input: the last line (without a final newline) and the last block.
+   * A text field still open at the end has swallowed everything after it; the data_ lines it swallowed are
+   * taken as block starts again so that one unclosed `;` costs one block, not the rest of the file.
+   */
   end(out: RawBlock[]): void {
     const s = this.carry;
     this.carry = '';
     let segStart = 0;
     if (s.length > 0) segStart = this.examineLine(s, 0, 0, out);
     this.keep(s, segStart, s.length);
+    if (this.inTextField && this.inBlock) {
+      const text = this.parts.join('');
+      const cut = swallowedBlockStart(text);
+      if (cut !== null) {
+        this.parts = [text.slice(0, cut.offset)];
+        this.finish(out);
+        const rest = new CifBlockSplitter(this.line + cut.lines);
+        rest.push(text.slice(cut.offset), out);
+        rest.end(out);
+        return;
+      }
+    }
     this.finish(out);
   }
 
@@ -129,6 +150,42 @@ export class CifBlockSplitter {
       out.push({ name: '', line: 1, text, beforeFirstBlock: true });
       this.prologueHasContent = false;
     }
+  }
+}
+
+/**
+ * In a block whose last text field never closes: the offset (and line count before it) of the first data_ line
+ * after the unmatched opening `;`, or null when there is none.
+ */
+function swallowedBlockStart(text: string): { offset: number; lines: number } | null {
+  let open = -1;
+  let openLine = 0;
+  let pos = 0;
+  let line = 0;
+  while (pos < text.length) {
+    if (text.charCodeAt(pos) === 59) {
+      if (open < 0) {
+        open = pos;
+        openLine = line;
+      } else open = -1;
+    }
+    const e = text.indexOf('\n', pos);
+    if (e < 0) break;
+    pos = e + 1;
+    line++;
+  }
+  if (open < 0) return null;
+  pos = open;
+  line = openLine;
+  for (;;) {
+    const e = text.indexOf('\n', pos);
+    if (e < 0) return null;
+    pos = e + 1;
+    line++;
+    let k = pos;
+    while (k < text.length && (text.charCodeAt(k) === 32 || text.charCodeAt(k) === 9)) k++;
+    const d = text.charCodeAt(k);
+    if ((d === 100 || d === 68) && isDataWord(text, k)) return { offset: pos, lines: line };
   }
 }
 
