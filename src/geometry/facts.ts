@@ -1,0 +1,141 @@
+// Facts about a crystal that need no invariants: volume, atoms per cell, density, molecules, Z, Z'.
+// Always computed on the full structure with hydrogens, so they do not depend on the hydrogen option.
+//
+// Density = sum over atoms in the cell of occupancy * standard atomic weight / (N_A * V)
+// (IUPAC 2021 abridged weights, see ./elements.ts; N_A = 6.02214076e23 /mol exactly, SI 2019).
+import type { CrystalFacts, CrystalRecord } from '../types.js';
+import { cellVolume } from './cell.js';
+import { selectOrderedSites } from './disorder.js';
+import { atomicNumber, atomicWeight } from './elements.js';
+import { findMolecules } from './molecules.js';
+import { expandSites } from './periodic-set.js';
+
+const AVOGADRO_PER_MOL = 6.02214076e23;
+const CUBIC_ANGSTROM_IN_CM3 = 1e-24;
+/** Declared and computed values that differ by more than this fraction get a note. */
+const AGREEMENT_FRACTION = 0.005;
+
+export function crystalFacts(record: CrystalRecord): CrystalFacts {
+  const volumeA3 = cellVolume(record.cell);
+  const notes: string[] = [];
+  if (record.sites.length === 0) {
+    throw new Error(`${record.source}: the block lists no atom sites, so there is no density or Z to compute`);
+  }
+
+  // Mass: every listed site, weighted by its occupancy (disorder alternatives add up to one atom).
+  const all = expandSites(record, record.sites.map((_, i) => i), { sharedPositions: 'keep-all' });
+  let massPerCell = 0;
+  let hydrogenMass = 0;
+  for (let p = 0; p < all.count; p++) {
+    const w = all.occupancy[p]! * atomicWeight(all.atomicNumbers[p]!);
+    massPerCell += w;
+    if (all.atomicNumbers[p] === 1) hydrogenMass += w;
+  }
+  const densityGPerCm3 = massPerCell / (AVOGADRO_PER_MOL * volumeA3 * CUBIC_ANGSTROM_IN_CM3);
+
+  // Atoms and molecules: the one ordered structure the disorder policy picks, hydrogens included.
+  const selection = selectOrderedSites(record.sites);
+  notes.push(...selection.notes);
+  const ordered = expandSites(record, selection.kept);
+  notes.push(...ordered.notes);
+  const molecules = findMolecules(ordered);
+  notes.push(...molecules.notes);
+  const opsKnown = record.opsOrigin !== 'identity';
+  const nOps = Math.max(1, record.ops.length);
+  const zPrime = opsKnown ? molecules.z / nOps : null;
+
+  notes.push(...consistencyNotes(record, volumeA3, densityGPerCm3, massPerCell, hydrogenMass, molecules.z));
+  return {
+    volumeA3,
+    atomsPerCell: ordered.count,
+    densityGPerCm3,
+    z: molecules.z,
+    zPrime,
+    formulas: molecules.formulas,
+    notes,
+  };
+}
+
+/**
+ * Compare with what the file itself states (`_cell_volume`, `_exptl_crystal_density_diffrn`,
+ * `_chemical_formula_sum`, `_cell_formula_units_Z`) and say why they disagree when we can tell.
+ */
+function consistencyNotes(
+  record: CrystalRecord, volumeA3: number, densityGPerCm3: number, massPerCell: number, hydrogenMass: number, z: number,
+): string[] {
+  const notes: string[] = [];
+  const text = record.text;
+  const declaredVolume = numberItem(text, '_cell_volume');
+  if (declaredVolume !== null && Math.abs(declaredVolume - volumeA3) > AGREEMENT_FRACTION * declaredVolume) {
+    notes.push(`_cell_volume says ${declaredVolume} Å³, the cell parameters give ${volumeA3.toFixed(2)} Å³`);
+  }
+  const formula = textItem(text, '_chemical_formula_sum');
+  const composition = formula === null ? null : parseFormulaSum(formula);
+  const hasHydrogenSites = record.sites.some((s) => s.element === 'H');
+  if (composition !== null && (composition.get(1) ?? 0) > 0 && !hasHydrogenSites) {
+    notes.push(`_chemical_formula_sum (${formula}) has hydrogen but no hydrogen sites are listed: the density leaves out their mass`);
+  }
+  const declaredDensity = numberItem(text, '_exptl_crystal_density_diffrn');
+  if (declaredDensity !== null && Math.abs(declaredDensity - densityGPerCm3) > AGREEMENT_FRACTION * declaredDensity) {
+    let why = 'reason unknown';
+    const zDeclared = numberItem(text, '_cell_formula_units_z');
+    if (composition !== null && zDeclared !== null) {
+      let formulaMass = 0;
+      for (const [zc, n] of composition) formulaMass += n * atomicWeight(zc);
+      const fromFormula = (formulaMass * zDeclared) / (AVOGADRO_PER_MOL * volumeA3 * CUBIC_ANGSTROM_IN_CM3);
+      if (Math.abs(fromFormula - declaredDensity) <= AGREEMENT_FRACTION * declaredDensity) {
+        why =
+          `the listed sites do not add up to Z x formula (${zDeclared} x ${formula}: ${(formulaMass * zDeclared).toFixed(1)} g/mol ` +
+          `per cell, sites give ${massPerCell.toFixed(1)})` +
+          (!hasHydrogenSites && (composition.get(1) ?? 0) > 0 ? ', hydrogens are missing from the sites' : ', check occupancies and missing atoms');
+      } else {
+        why = `the formula and Z in the file give ${fromFormula.toFixed(3)} g/cm³, so the stated density does not follow from the file either`;
+      }
+    } else if (!hasHydrogenSites && hydrogenMass === 0) {
+      why = 'no hydrogen sites are listed';
+    }
+    notes.push(`_exptl_crystal_density_diffrn says ${declaredDensity} g/cm³, computed ${densityGPerCm3.toFixed(3)} g/cm³: ${why}`);
+  }
+  const zDeclared = numberItem(text, '_cell_formula_units_z');
+  if (zDeclared !== null && Number.isInteger(zDeclared) && zDeclared !== z && zDeclared > 0) {
+    notes.push(`_cell_formula_units_Z says ${zDeclared}, the bond graph gives ${z} molecules per cell`);
+  }
+  return notes;
+}
+
+/** A single-valued data item's raw text in a block (same line or next line), or null. */
+export function textItem(blockText: string, name: string): string | null {
+  const re = new RegExp(`^[ \\t]*${name.replace(/[.*+?^${}()|[\]\\]/g, '\\$&')}(?=\\s)[ \\t]*(\\r?\\n)?[ \\t]*('([^'\\n]*)'|"([^"\\n]*)"|([^\\s'";][^\\s]*))`, 'im');
+  const m = re.exec(blockText);
+  if (m === null) return null;
+  const value = m[3] ?? m[4] ?? m[5] ?? '';
+  if (value.startsWith('_') || value === '?' || value === '.' || value === '') return null;
+  return value;
+}
+
+/** A single-valued numeric item with its standard uncertainty stripped (`1.234(5)`), or null. */
+export function numberItem(blockText: string, name: string): number | null {
+  const t = textItem(blockText, name);
+  if (t === null) return null;
+  const v = Number(t.replace(/\(\d+\)$/, ''));
+  return Number.isFinite(v) ? v : null;
+}
+
+/** `C12 H10 N2 O` -> atomic number -> count; null when a part is not element + count. */
+export function parseFormulaSum(formula: string): Map<number, number> | null {
+  const out = new Map<number, number>();
+  const re = /([A-Z][a-z]?)(\d*\.?\d*)/g;
+  const compact = formula.replace(/\s+/g, '');
+  let consumed = 0;
+  for (const m of compact.matchAll(re)) {
+    if (m[0] === '') continue;
+    const zc = atomicNumber(m[1]!);
+    if (zc === 0) return null;
+    const n = m[2] === '' ? 1 : Number(m[2]);
+    if (!Number.isFinite(n)) return null;
+    out.set(zc, (out.get(zc) ?? 0) + n);
+    consumed += m[0].length;
+  }
+  return consumed === compact.length && out.size > 0 ? out : null;
+}
+
