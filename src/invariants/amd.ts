@@ -13,10 +13,4 @@ export function amd(p: Pdd): Float64Array {
   return out;
 }
 
-/** L-infinity distance between two AMD vectors of equal length (Å): a lower bound on the EMD of their PDDs. */
-export function amdDistance(a: Float64Array, b: Float64Array): number {
-  if (a.length !== b.length) throw new Error(`AMD vectors have different lengths (${a.length} and ${b.length})`);
-  let d = 0;
-  for (let j = 0; j < a.length; j++) d = Math.max(d, Math.abs(a[j] - b[j]));
-  return d;
-}
+// The AMD distance (L-infinity between AMD vectors, a lower bound on the EMD) lives beside the EMD in src/metric/emd.ts.
