@@ -1,12 +1,175 @@
-// Placeholder: the `inspect` command is being built (see the open issues); it says so instead of pretending.
+// `polysift inspect <files...>`: what polysift reads from each structure (cell, symmetry, atoms,
+// density, Z, Z', molecule formulas, notes) and every block it could not use, with the reason.
+// The per-structure JSON object is built in one place, `inspectEntryJson`, so that further fields
+// (invariants) are added there.
 import type { Command } from 'commander';
+import type { CellParams, CrystalFacts, CrystalRecord, OpsOrigin, PeriodicSet, RejectedBlock } from '../types.js';
+import type { HydrogenPolicy } from '../landscape/schema.js';
+import { readStructures } from '../io/read.js';
+import { crystalFacts } from '../geometry/facts.js';
+import { toPeriodicSet } from '../geometry/periodic-set.js';
+
+/** Default hydrogen handling: left out, since X-ray hydrogen positions are short and uncertain (common practice). */
+export const DEFAULT_HYDROGENS: HydrogenPolicy = 'drop';
+
+export interface InspectOptions {
+  hydrogens: HydrogenPolicy;
+  energyItem?: string | null;
+}
+
+/** One structure as `inspect --json` reports it. */
+export interface InspectEntry {
+  id: string;
+  source: string;
+  line: number;
+  cell: CellParams;
+  volumeA3: number;
+  spaceGroup: string | null;
+  operations: number;
+  operationsFrom: OpsOrigin;
+  atomsPerCell: number;
+  densityGPerCm3: number;
+  z: number;
+  zPrime: number | null;
+  formulas: string[];
+  energy: number | null;
+  hydrogens: HydrogenPolicy;
+  /** Points of the periodic set after the hydrogen option (what invariants are computed on). */
+  setPoints: number;
+  /** Symmetry orbits among those points (points of the asymmetric unit). */
+  asymmetricUnitPoints: number;
+  notes: string[];
+}
+
+export interface InspectRejected {
+  id: string;
+  source: string;
+  line: number;
+  reason: string;
+}
+
+export interface InspectReport {
+  structures: InspectEntry[];
+  rejected: InspectRejected[];
+}
+
+/** The JSON object for one structure; the single place to extend the `--json` output. */
+export function inspectEntryJson(
+  record: CrystalRecord, facts: CrystalFacts, set: PeriodicSet, setNotes: string[], opts: InspectOptions,
+): InspectEntry {
+  return {
+    id: record.id,
+    source: record.source,
+    line: record.line,
+    cell: { ...record.cell },
+    volumeA3: facts.volumeA3,
+    spaceGroup: record.spaceGroup,
+    operations: record.ops.length,
+    operationsFrom: record.opsOrigin,
+    atomsPerCell: facts.atomsPerCell,
+    densityGPerCm3: facts.densityGPerCm3,
+    z: facts.z,
+    zPrime: facts.zPrime,
+    formulas: facts.formulas,
+    energy: record.energy,
+    hydrogens: opts.hydrogens,
+    setPoints: set.atomicNumbers.length,
+    asymmetricUnitPoints: set.asym.length,
+    notes: uniqueNotes([...record.notes, ...facts.notes, ...setNotes]),
+  };
+}
+
+/** Inspect one record; a structure that cannot be used becomes a rejection with the reason. */
+export function inspectRecord(record: CrystalRecord, opts: InspectOptions): { entry: InspectEntry } | { rejected: InspectRejected } {
+  try {
+    const { set, notes } = toPeriodicSet(record, { hydrogens: opts.hydrogens });
+    const facts = crystalFacts(record);
+    return { entry: inspectEntryJson(record, facts, set, notes, opts) };
+  } catch (e) {
+    const message = (e as Error).message;
+    const reason = message.startsWith(record.source) ? message.slice(record.source.length).replace(/^:\s*/, '') : message;
+    return { rejected: { id: record.id, source: record.source, line: record.line, reason } };
+  }
+}
+
+/** Read every input and inspect every block. */
+export async function inspectInputs(paths: string[], opts: InspectOptions): Promise<InspectReport> {
+  const report: InspectReport = { structures: [], rejected: [] };
+  for await (const r of readStructures(paths, { energyItem: opts.energyItem ?? null })) {
+    if (r.kind === 'rejected') {
+      report.rejected.push(rejectedFromBlock(r.rejected));
+      continue;
+    }
+    const out = inspectRecord(r.record, opts);
+    if ('entry' in out) report.structures.push(out.entry);
+    else report.rejected.push(out.rejected);
+  }
+  return report;
+}
+
+/** Human-readable form of the report. */
+export function formatInspectText(report: InspectReport): string {
+  const lines: string[] = [];
+  for (const s of report.structures) {
+    const c = s.cell;
+    lines.push(`${s.id}  (${s.source}, line ${s.line})`);
+    lines.push(`  cell          a ${fmt(c.a, 4)}  b ${fmt(c.b, 4)}  c ${fmt(c.c, 4)} Å   alpha ${fmt(c.alpha, 3)}  beta ${fmt(c.beta, 3)}  gamma ${fmt(c.gamma, 3)}°`);
+    lines.push(`  volume        ${fmt(s.volumeA3, 2)} Å³`);
+    lines.push(`  space group   ${s.spaceGroup ?? '(not stated)'}; ${s.operations} operation(s) ${describeOrigin(s.operationsFrom)}`);
+    lines.push(`  atoms/cell    ${s.atomsPerCell} (hydrogens included); periodic set ${s.setPoints} points, ${s.asymmetricUnitPoints} in the asymmetric unit (hydrogens ${s.hydrogens === 'keep' ? 'kept' : 'dropped'})`);
+    lines.push(`  density       ${fmt(s.densityGPerCm3, 4)} g/cm³`);
+    lines.push(`  Z             ${s.z}${s.zPrime === null ? '' : `   Z' ${Math.round(s.zPrime * 1000) / 1000}`}`);
+    lines.push(`  molecules     ${s.formulas.join(', ')}`);
+    if (s.energy !== null) lines.push(`  energy        ${s.energy}`);
+    for (const n of s.notes) lines.push(`  note: ${n}`);
+    lines.push('');
+  }
+  if (report.rejected.length > 0) {
+    lines.push(`rejected (${report.rejected.length}):`);
+    for (const r of report.rejected) lines.push(`  ${r.source}, line ${r.line}: ${r.reason}`);
+    lines.push('');
+  }
+  lines.push(`${report.structures.length} structure(s) read, ${report.rejected.length} rejected`);
+  return `${lines.join('\n')}\n`;
+}
+
+export function parseHydrogens(value: string): HydrogenPolicy {
+  if (value === 'keep' || value === 'drop') return value;
+  throw new Error(`--hydrogens must be keep or drop, not '${value}'`);
+}
 
 export function registerInspect(program: Command): void {
   program
     .command('inspect')
-    .description('(not built yet)')
-    .allowUnknownOption(true)
-    .action(() => {
-      throw new Error('the inspect command is not built yet');
+    .description('show what polysift reads from each structure: cell, symmetry, atoms, density, Z, Z\', molecules, notes')
+    .argument('<inputs...>', 'CIF files (.cif, .cif.gz, multi-block) or folders searched for them')
+    .option('--json', 'print one JSON document instead of text')
+    .option('--hydrogens <keep|drop>', 'keep or drop hydrogen (and deuterium) atoms in the periodic set', DEFAULT_HYDROGENS)
+    .option('--energy-item <name>', 'CIF data item that holds each structure\'s energy')
+    .action(async (inputs: string[], o: { json?: boolean; hydrogens: string; energyItem?: string }) => {
+      const opts: InspectOptions = { hydrogens: parseHydrogens(o.hydrogens), energyItem: o.energyItem ?? null };
+      const report = await inspectInputs(inputs, opts);
+      process.stdout.write(o.json ? `${JSON.stringify(report, null, 2)}\n` : formatInspectText(report));
+      if (report.structures.length === 0) {
+        throw new Error(`no structure could be used from ${inputs.join(', ')} (${report.rejected.length} block(s) rejected, reasons above)`);
+      }
     });
+}
+
+// ---- helpers ----
+
+function rejectedFromBlock(b: RejectedBlock): InspectRejected {
+  return { id: b.id, source: b.source, line: b.line, reason: b.reason };
+}
+
+function describeOrigin(o: OpsOrigin): string {
+  return o === 'listed' ? 'listed in the file' : o === 'symbol' ? 'built from the space-group symbol' : '(none given: P1 assumed)';
+}
+
+function fmt(v: number, digits: number): string {
+  return v.toFixed(digits);
+}
+
+function uniqueNotes(notes: string[]): string[] {
+  return [...new Set(notes)];
 }
