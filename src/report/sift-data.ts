@@ -1,0 +1,228 @@
+// The sift report's page data: the landscape reshaped into columns (one array per field, indexed by
+// structure index) so that 10,000 structures stay a few MB and parse quickly, plus what the page
+// would otherwise compute: EMD colour classes of the neighbourhood lines, the nearest-neighbour
+// histogram, and the kept structures' AMD vectors packed as little-endian Float32 in base64.
+import type { ConvergenceCurve, Embedding, Landscape, SiftParameters, Status } from '../landscape/schema.js';
+import { colourClasses, FAMILY_COLOURS, stepColourscale, UNASSIGNED_COLOUR, VIRIDIS_STOPS } from './colours.js';
+import { logHistogram, type LogHistogram } from './log-histogram.js';
+
+/** Number of colour classes the neighbourhood lines are binned into (one plot trace each). */
+export const EDGE_CLASSES = 8;
+
+export const STATUS_CODES: readonly Status[] = ['kept', 'duplicate', 'rejected', 'outside-window'];
+
+export interface StructureColumns {
+  id: string[];
+  /** Index into `SiftPageData.files`. */
+  file: number[];
+  block: string[];
+  line: number[];
+  /** Index into `STATUS_CODES`. */
+  status: number[];
+  reason: string[];
+  energy: Array<number | null>;
+  energyRel: Array<number | null>;
+  density: Array<number | null>;
+  atoms: Array<number | null>;
+  spaceGroup: Array<string | null>;
+  z: Array<number | null>;
+  zPrime: Array<number | null>;
+  /** Index into `SiftPageData.formulas` (the structure's formulas joined with ", "). */
+  formula: number[];
+  keptIndex: Array<number | null>;
+  distanceToKept: Array<number | null>;
+  family: number[];
+  nearestIndex: Array<number | null>;
+  nearestDistance: Array<number | null>;
+  nnDistance: Array<number | null>;
+  members: number[];
+  notes: string[][];
+}
+
+export interface EdgeClasses {
+  /** Class boundaries in Å (EDGE_CLASSES + 1 values, or 2 when all edges have one length). */
+  boundsAngstrom: number[];
+  colours: string[];
+  /** Plotly colourscale drawing the classes as bands, for the legend colour bar. */
+  colourscale: Array<[number, string]>;
+}
+
+export interface SiftPageData {
+  kind: 'sift';
+  title: string;
+  tool: { name: string; version: string };
+  createdAt: string;
+  timingsSeconds: Record<string, number>;
+  parameters: SiftParameters;
+  counts: Landscape['counts'];
+  lowestEnergy: number | null;
+  statusCodes: readonly Status[];
+  files: string[];
+  formulas: string[];
+  s: StructureColumns;
+  kept: number[];
+  /** Flat [i, j, EMD Å] triplets. */
+  edges: number[];
+  /** Colour class of each edge (same order as `edges` triplets). */
+  edgeClass: number[];
+  edgeClasses: EdgeClasses;
+  familyColours: readonly string[];
+  unassignedColour: string;
+  /** Family id -> number of kept structures. */
+  familySizes: Array<[number, number]>;
+  embedding: Embedding | null;
+  /** AMD rows of kept structures: `index[r]` is the structure of row r; `base64` holds rows*k Float32 (LE). */
+  amd: { k: number; index: number[]; base64: string } | null;
+  nnHistogram: LogHistogram;
+  convergence: ConvergenceCurve | null;
+}
+
+/** Reshape a landscape for the page. Throws with a clear message when the landscape is inconsistent. */
+export function buildSiftPageData(landscape: Landscape, title: string): SiftPageData {
+  const rows = landscape.structures;
+  const n = rows.length;
+  const files: string[] = [];
+  const fileIds = new Map<string, number>();
+  const formulas: string[] = [];
+  const formulaIds = new Map<string, number>();
+  const s: StructureColumns = {
+    id: [], file: [], block: [], line: [], status: [], reason: [], energy: [], energyRel: [], density: [],
+    atoms: [], spaceGroup: [], z: [], zPrime: [], formula: [], keptIndex: [], distanceToKept: [], family: [],
+    nearestIndex: [], nearestDistance: [], nnDistance: [], members: [], notes: [],
+  };
+  for (let i = 0; i < n; i++) {
+    const r = rows[i]!;
+    if (r.index !== i) throw new Error(`landscape: structures[${i}] has index ${r.index}; structures must be in input order`);
+    const status = STATUS_CODES.indexOf(r.status);
+    if (status < 0) throw new Error(`landscape: structure ${r.id} has an unknown status "${String(r.status)}"`);
+    s.id.push(String(r.id));
+    s.file.push(intern(String(r.file), files, fileIds));
+    s.block.push(String(r.block));
+    s.line.push(r.line);
+    s.status.push(status);
+    s.reason.push(r.reason ?? '');
+    s.energy.push(sig(r.energy));
+    s.energyRel.push(sig(r.energyRel));
+    s.density.push(sig(r.densityGPerCm3));
+    s.atoms.push(r.atoms);
+    s.spaceGroup.push(r.spaceGroup);
+    s.z.push(r.z);
+    s.zPrime.push(r.zPrime);
+    s.formula.push(intern((r.formulas ?? []).join(', '), formulas, formulaIds));
+    s.keptIndex.push(r.keptIndex);
+    s.distanceToKept.push(sig(r.distanceToKept));
+    s.family.push(r.family);
+    s.nearestIndex.push(r.nearestIndex);
+    s.nearestDistance.push(sig(r.nearestDistance));
+    s.nnDistance.push(sig(r.nnDistance));
+    s.members.push(r.members);
+    s.notes.push(r.notes ?? []);
+  }
+  for (const k of landscape.kept) {
+    if (!(k >= 0 && k < n) || rows[k]!.status !== 'kept') throw new Error(`landscape: kept entry ${k} is not a kept structure`);
+  }
+
+  const edges: number[] = [];
+  let dMin = Infinity;
+  let dMax = -Infinity;
+  for (const [a, b, d] of landscape.edges) {
+    if (!(a >= 0 && a < n && b >= 0 && b < n)) throw new Error(`landscape: edge [${a}, ${b}] names a structure that does not exist`);
+    edges.push(a, b, sig(d) as number);
+    if (d < dMin) dMin = d;
+    if (d > dMax) dMax = d;
+  }
+  const edgeClasses = buildEdgeClasses(dMin, dMax);
+  const edgeClass: number[] = [];
+  for (const e of landscape.edges) edgeClass.push(edgeClassOf(e[2], edgeClasses.boundsAngstrom));
+
+  const familySizes = new Map<number, number>();
+  for (const k of landscape.kept) {
+    const f = rows[k]!.family;
+    familySizes.set(f, (familySizes.get(f) ?? 0) + 1);
+  }
+
+  const nn: Array<number | null> = [];
+  for (const r of rows) if (r.status === 'kept' || r.status === 'duplicate') nn.push(r.nnDistance);
+
+  return {
+    kind: 'sift',
+    title,
+    tool: { name: landscape.tool.name, version: landscape.tool.version },
+    createdAt: landscape.run.createdAt,
+    timingsSeconds: landscape.run.timingsSeconds,
+    parameters: landscape.parameters,
+    counts: landscape.counts,
+    lowestEnergy: landscape.lowestEnergy,
+    statusCodes: STATUS_CODES,
+    files,
+    formulas,
+    s,
+    kept: landscape.kept,
+    edges,
+    edgeClass,
+    edgeClasses,
+    familyColours: FAMILY_COLOURS,
+    unassignedColour: UNASSIGNED_COLOUR,
+    familySizes: [...familySizes.entries()].sort((a, b) => a[0] - b[0]),
+    embedding: landscape.embedding
+      ? {
+          method: landscape.embedding.method,
+          quality: landscape.embedding.quality,
+          coords: landscape.embedding.coords.map(([x, y]) => [sig(x) as number, sig(y) as number]),
+        }
+      : null,
+    amd: packAmd(landscape),
+    nnHistogram: logHistogram(nn, 10),
+    convergence: landscape.convergence,
+  };
+}
+
+/** Equal-width EMD classes between the shortest and longest edge. */
+export function buildEdgeClasses(dMinAngstrom: number, dMaxAngstrom: number): EdgeClasses {
+  if (!Number.isFinite(dMinAngstrom) || !Number.isFinite(dMaxAngstrom)) {
+    return { boundsAngstrom: [], colours: [], colourscale: [] };
+  }
+  const classes = dMaxAngstrom > dMinAngstrom ? EDGE_CLASSES : 1;
+  const bounds: number[] = [];
+  for (let c = 0; c <= classes; c++) bounds.push(dMinAngstrom + ((dMaxAngstrom - dMinAngstrom) * c) / classes);
+  bounds[classes] = dMaxAngstrom;
+  const colours = classes === 1 ? [colourClasses(VIRIDIS_STOPS, 1)[0]!] : colourClasses(VIRIDIS_STOPS, classes);
+  return { boundsAngstrom: bounds, colours, colourscale: stepColourscale(colours) };
+}
+
+/** Class of an EMD value: bins are [b_c, b_c+1), the last one closed. */
+export function edgeClassOf(dAngstrom: number, bounds: readonly number[]): number {
+  const classes = bounds.length - 1;
+  for (let c = classes - 1; c > 0; c--) if (dAngstrom >= bounds[c]!) return c;
+  return 0;
+}
+
+function packAmd(landscape: Landscape): SiftPageData['amd'] {
+  const inv = landscape.invariants;
+  if (!inv || inv.kept.length === 0) return null;
+  const k = inv.kept[0]!.amd.length;
+  const buf = Buffer.alloc(inv.kept.length * k * 4);
+  const index: number[] = [];
+  inv.kept.forEach((row, r) => {
+    if (row.amd.length !== k) throw new Error(`landscape: AMD of structure ${row.index} has ${row.amd.length} values, expected ${k}`);
+    index.push(row.index);
+    for (let j = 0; j < k; j++) buf.writeFloatLE(row.amd[j]!, (r * k + j) * 4);
+  });
+  return { k, index, base64: buf.toString('base64') };
+}
+
+function intern(value: string, table: string[], ids: Map<string, number>): number {
+  let id = ids.get(value);
+  if (id === undefined) {
+    id = table.length;
+    table.push(value);
+    ids.set(value, id);
+  }
+  return id;
+}
+
+// Seven significant digits: far below what the page displays, and it keeps the JSON small.
+function sig(x: number | null | undefined): number | null {
+  if (x === null || x === undefined || !Number.isFinite(x)) return null;
+  return Number(x.toPrecision(7));
+}

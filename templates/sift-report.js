@@ -1,0 +1,486 @@
+/* The sift report page: draws the landscape held in the page data (see src/report/sift-data.ts). */
+(function () {
+  'use strict';
+  var P = window.PolysiftPage;
+  var el = P.el;
+  var D = P.readData();
+  var S = D.s;
+  var unit = D.parameters.energyUnit;
+  var hasEnergies = D.lowestEnergy !== null;
+  var DUPLICATE = 1, REJECTED = 2;
+  var SYMBOLS = ['circle', 'square', 'diamond', 'triangle-up', 'cross', 'x', 'star', 'hexagon'];
+  var SYMBOL_CHARS = ['●', '■', '◆', '▲', '✚', '✖', '★', '⬢'];
+  var report = { traces: {}, selected: null };
+  window.polysiftReport = report;
+  P.expectReady('landscape');
+
+  // ---- Derived lookups -------------------------------------------------------------------------
+  var keptPos = {}; // structure index -> position in D.kept
+  D.kept.forEach(function (k, p) { keptPos[k] = p; });
+  // Nearest kept neighbours of each kept structure, from the edges, nearest first.
+  var neighbours = {};
+  for (var e = 0; e < D.edges.length; e += 3) {
+    var a = D.edges[e], b = D.edges[e + 1], d = D.edges[e + 2];
+    (neighbours[a] = neighbours[a] || []).push([b, d]);
+    (neighbours[b] = neighbours[b] || []).push([a, d]);
+  }
+  Object.keys(neighbours).forEach(function (k) { neighbours[k].sort(function (x, y) { return x[1] - y[1]; }); });
+  // Duplicates of each kept structure, closest first.
+  var membersOf = {};
+  var duplicates = [];
+  for (var i = 0; i < S.id.length; i++) {
+    if (S.status[i] === DUPLICATE) {
+      duplicates.push(i);
+      if (S.keptIndex[i] !== null) (membersOf[S.keptIndex[i]] = membersOf[S.keptIndex[i]] || []).push(i);
+    }
+  }
+  Object.keys(membersOf).forEach(function (k) {
+    membersOf[k].sort(function (x, y) { return (S.distanceToKept[x] || 0) - (S.distanceToKept[y] || 0); });
+  });
+  var amdRow = {};
+  var amdOf = null;
+  if (D.amd) {
+    D.amd.index.forEach(function (s, r) { amdRow[s] = r; });
+    amdOf = P.float32Rows(D.amd.base64, D.amd.k);
+  }
+
+  function source(i) { return D.files[S.file[i]] + '#' + S.block[i]; }
+  function yOf(i) { return hasEnergies ? S.energyRel[i] : 0; }
+  function familyColour(f) { return f < 0 ? D.unassignedColour : D.familyColours[f % D.familyColours.length]; }
+  function familySymbol(f) { return f < 0 ? 'circle' : SYMBOLS[Math.floor(f / D.familyColours.length) % SYMBOLS.length]; }
+  function familyChar(f) { return f < 0 ? '●' : SYMBOL_CHARS[Math.floor(f / D.familyColours.length) % SYMBOL_CHARS.length]; }
+  function familyName(f) { return f < 0 ? 'unassigned' : 'family ' + f; }
+  function markerSize(members) { return Math.min(24, 6 + 4 * Math.sqrt(Math.max(0, members - 1))); }
+  function energyText(i) { return hasEnergies ? P.fmt(S.energyRel[i], 3) + ' ' + unit : 'no energy'; }
+
+  // ---- Header ----------------------------------------------------------------------------------
+  var c = D.counts;
+  document.getElementById('run-line').textContent =
+    c.input + ' structures read · ' + c.kept + ' kept · ' + c.duplicate + ' duplicates · ' + c.rejected + ' rejected · ' +
+    c.outsideWindow + ' outside the energy window — duplicate tolerance ' + D.parameters.toleranceAngstrom + ' Å, ' +
+    D.tool.name + ' ' + D.tool.version + ', ' + D.createdAt;
+
+  // ---- Landscape -------------------------------------------------------------------------------
+  var landscapeDiv = document.getElementById('landscape-plot');
+  var gl = P.scatterType(D.kept.length + duplicates.length);
+  var traces = [];
+  var lineTraces = [];
+  var classes = D.edgeClasses;
+  // One line trace per EMD colour class; segments separated by nulls.
+  for (var cl = 0; cl < classes.colours.length; cl++) {
+    lineTraces.push({ x: [], y: [] });
+  }
+  for (var q = 0; q < D.edgeClass.length; q++) {
+    var ea = D.edges[3 * q], eb = D.edges[3 * q + 1];
+    var t = lineTraces[D.edgeClass[q]];
+    t.x.push(S.density[ea], S.density[eb], null);
+    t.y.push(yOf(ea), yOf(eb), null);
+  }
+  report.traces.lines = [];
+  lineTraces.forEach(function (lt, k) {
+    report.traces.lines.push(traces.length);
+    traces.push({
+      type: gl, mode: 'lines', x: lt.x, y: lt.y, hoverinfo: 'skip', showlegend: false,
+      name: 'EMD ' + P.fmtDistance(classes.boundsAngstrom[k]) + '–' + P.fmtDistance(classes.boundsAngstrom[k + 1]) + ' Å',
+      line: { color: classes.colours[k], width: 1.2 }, opacity: 0.75,
+    });
+  });
+  if (classes.colours.length > 0) {
+    // The colour bar legend for the lines: an invisible point carrying the stepped colour scale.
+    var bounds = classes.boundsAngstrom;
+    report.traces.lineLegend = traces.length;
+    traces.push({
+      type: 'scatter', mode: 'markers', x: [null], y: [null], hoverinfo: 'skip', showlegend: false,
+      marker: {
+        color: [bounds[0], bounds[bounds.length - 1]], cmin: bounds[0], cmax: bounds[bounds.length - 1],
+        colorscale: classes.colourscale, showscale: true,
+        colorbar: {
+          title: { text: 'EMD (Å)', side: 'right' }, thickness: 14, len: 0.75,
+          tickvals: bounds, ticktext: bounds.map(P.fmtDistance),
+        },
+      },
+    });
+  }
+  report.traces.duplicates = traces.length;
+  traces.push({
+    type: gl, mode: 'markers', name: 'Duplicates', visible: false,
+    x: duplicates.map(function (i) { return S.density[i]; }),
+    y: duplicates.map(yOf),
+    text: duplicates.map(function (i) {
+      return '<b>' + P.escapeForPlot(S.id[i]) + '</b> (duplicate)<br>of ' + P.escapeForPlot(S.id[S.keptIndex[i]]) +
+        ', EMD ' + P.fmtDistance(S.distanceToKept[i]) + ' Å<br>' + energyText(i) + ', ' + P.fmt(S.density[i], 4) + ' g/cm³';
+    }),
+    hoverinfo: 'text',
+    marker: { size: 5, symbol: 'circle-open', color: duplicates.map(function (i) { return familyColour(S.family[i]); }), opacity: 0.7 },
+  });
+  report.traces.kept = traces.length;
+  traces.push({
+    type: gl, mode: 'markers', name: 'Kept structures',
+    x: D.kept.map(function (i) { return S.density[i]; }),
+    y: D.kept.map(yOf),
+    text: D.kept.map(hoverText),
+    hoverinfo: 'text',
+    marker: {
+      size: D.kept.map(function (i) { return markerSize(S.members[i]); }),
+      color: D.kept.map(function (i) { return familyColour(S.family[i]); }),
+      symbol: D.kept.map(function (i) { return familySymbol(S.family[i]); }),
+      line: { color: '#ffffff', width: 0.6 },
+      opacity: 0.92,
+    },
+  });
+  report.traces.highlight = traces.length;
+  traces.push({
+    type: 'scatter', mode: 'markers', name: 'Selected', x: [], y: [], hoverinfo: 'skip',
+    marker: { size: 26, symbol: 'circle-open', color: '#111111', line: { width: 3 } },
+  });
+
+  function hoverText(i) {
+    var lines = ['<b>' + P.escapeForPlot(S.id[i]) + '</b>',
+      'rel. energy ' + energyText(i) + ', density ' + P.fmt(S.density[i], 4) + ' g/cm³',
+      familyName(S.family[i]) + ', ' + S.members[i] + (S.members[i] === 1 ? ' member' : ' members')];
+    var nb = neighbours[i] || [];
+    if (nb.length > 0) {
+      lines.push('nearest: ' + nb.slice(0, 5).map(function (x) {
+        return P.escapeForPlot(S.id[x[0]]) + ' (' + P.fmtDistance(x[1]) + ' Å)';
+      }).join(', '));
+    }
+    return lines.join('<br>');
+  }
+
+  var landscapeLayout = P.baseLayout({
+    xaxis: { title: { text: 'Density (g/cm³)' }, zeroline: false, gridcolor: '#e6eaee' },
+    yaxis: { title: { text: hasEnergies ? 'Energy above the lowest (' + unit + ')' : 'No energies given (all at 0)' }, zeroline: false, gridcolor: '#e6eaee' },
+    margin: { l: 70, r: 10, t: 10, b: 52 },
+  });
+
+  // Family legend (HTML): colour and symbol of each family with its size.
+  var legend = document.getElementById('family-legend');
+  var shown = D.familySizes.slice(0, 40);
+  shown.forEach(function (fs) {
+    legend.appendChild(el('span', null,
+      el('span', { className: 'ps-swatch', style: 'color:' + familyColour(fs[0]), 'aria-hidden': 'true' }, familyChar(fs[0])),
+      familyName(fs[0]) + ' (' + fs[1] + ')'));
+  });
+  if (D.familySizes.length > shown.length) legend.appendChild(el('span', null, '… and ' + (D.familySizes.length - shown.length) + ' more families'));
+
+  Plotly.newPlot(landscapeDiv, traces, landscapeLayout, P.plotConfig).then(function () {
+    landscapeDiv.on('plotly_click', function (ev) { onPlotClick(ev, 'landscape'); });
+    P.markReady('landscape');
+    // The other panels draw after the landscape so that it appears first.
+    setTimeout(drawSecondary, 0);
+  });
+
+  document.getElementById('show-duplicates').addEventListener('change', function (ev) {
+    Plotly.restyle(landscapeDiv, { visible: ev.target.checked }, [report.traces.duplicates]);
+  });
+  document.getElementById('show-lines').addEventListener('change', function (ev) {
+    var idx = report.traces.lines.slice();
+    if (report.traces.lineLegend !== undefined) idx.push(report.traces.lineLegend);
+    Plotly.restyle(landscapeDiv, { visible: ev.target.checked }, idx);
+  });
+
+  function onPlotClick(ev, plot) {
+    if (!ev || !ev.points || ev.points.length === 0) return;
+    var pt = ev.points[0];
+    var idx = null;
+    if (plot === 'landscape' && pt.curveNumber === report.traces.kept) idx = D.kept[pt.pointNumber];
+    else if (plot === 'landscape' && pt.curveNumber === report.traces.duplicates) idx = S.keptIndex[duplicates[pt.pointNumber]];
+    else if (plot === 'map' && pt.curveNumber === report.traces.mapKept) idx = D.kept[pt.pointNumber];
+    if (idx !== null && idx !== undefined) select(idx, 'plot');
+  }
+
+  // ---- Table of kept structures ----------------------------------------------------------------
+  var keptTable = P.createTable({
+    table: document.getElementById('kept-table'),
+    items: D.kept,
+    pageSize: 100,
+    columns: [
+      { label: 'Id', value: function (i) { return S.id[i]; }, text: function (i) { return S.id[i]; } },
+      { label: 'Rel. energy (' + unit + ')', numeric: true, value: function (i) { return S.energyRel[i]; }, text: function (i) { return P.fmt(S.energyRel[i], 3); } },
+      { label: 'Density (g/cm³)', numeric: true, value: function (i) { return S.density[i]; }, text: function (i) { return P.fmt(S.density[i], 4); } },
+      { label: 'Members', numeric: true, value: function (i) { return S.members[i]; }, text: function (i) { return String(S.members[i]); } },
+      { label: 'Family', numeric: true, value: function (i) { return S.family[i]; }, text: function (i) { return S.family[i] < 0 ? '–' : String(S.family[i]); } },
+      { label: 'Nearest', value: function (i) { return S.nearestIndex[i] === null ? null : S.id[S.nearestIndex[i]]; }, text: function (i) { return S.nearestIndex[i] === null ? '–' : S.id[S.nearestIndex[i]]; } },
+      { label: 'EMD to nearest (Å)', numeric: true, value: function (i) { return S.nearestDistance[i]; }, text: function (i) { return P.fmtDistance(S.nearestDistance[i]); } },
+      { label: 'Space group', value: function (i) { return S.spaceGroup[i]; }, text: function (i) { return S.spaceGroup[i] === null ? '–' : S.spaceGroup[i]; } },
+      { label: 'Z', numeric: true, value: function (i) { return S.z[i]; }, text: function (i) { return S.z[i] === null ? '–' : String(S.z[i]); } },
+    ],
+    filterInput: document.getElementById('table-filter'),
+    filterText: function (i) {
+      return [S.id[i], S.spaceGroup[i] || '', familyName(S.family[i]), source(i)].join(' ');
+    },
+    countEl: document.getElementById('table-count'),
+    prevButton: document.getElementById('kept-prev'),
+    nextButton: document.getElementById('kept-next'),
+    pageEl: document.getElementById('kept-page'),
+    rowLabel: function (i) { return S.id[i] + ', ' + energyText(i); },
+    onActivate: function (i) { select(i, 'table'); },
+  });
+  report.table = keptTable;
+
+  // ---- Selection: marker, map, row and panel follow one structure ------------------------------
+  function select(i, from) {
+    report.selected = i;
+    Plotly.restyle(landscapeDiv, { x: [[S.density[i]]], y: [[yOf(i)]] }, [report.traces.highlight]);
+    if (report.traces.mapHighlight !== undefined && D.embedding && keptPos[i] !== undefined) {
+      var xy = D.embedding.coords[keptPos[i]];
+      Plotly.restyle(mapDiv, { x: [[xy[0]]], y: [[xy[1]]] }, [report.traces.mapHighlight]);
+    }
+    keptTable.reveal(i, from === 'table');
+    showPanel(i);
+  }
+  report.select = select;
+
+  var amdDiv = document.getElementById('amd-plot');
+  document.getElementById('panel-close').addEventListener('click', function () {
+    document.getElementById('panel-body').hidden = true;
+    document.getElementById('panel-empty').hidden = false;
+    report.selected = null;
+    Plotly.restyle(landscapeDiv, { x: [[]], y: [[]] }, [report.traces.highlight]);
+  });
+  document.getElementById('amd-difference').addEventListener('change', function () {
+    if (report.selected !== null) drawAmd(report.selected);
+  });
+
+  function structureButton(j) {
+    return el('button', { type: 'button', className: 'ps-link', onclick: function () { select(j, 'panel'); } }, S.id[j]);
+  }
+
+  function showPanel(i) {
+    document.getElementById('panel-empty').hidden = true;
+    document.getElementById('panel-body').hidden = false;
+    document.getElementById('panel-id').textContent = S.id[i];
+    var facts = P.clear(document.getElementById('panel-facts'));
+    function fact(name, value) { facts.appendChild(el('dt', null, name)); facts.appendChild(el('dd', null, value)); }
+    fact('Source', source(i));
+    fact('File', D.files[S.file[i]]);
+    fact('Block', S.block[i] + ' (line ' + S.line[i] + ')');
+    fact('Rel. energy', energyText(i));
+    fact('Energy', S.energy[i] === null ? '–' : P.fmt(S.energy[i], 3) + ' ' + unit);
+    fact('Density', P.fmt(S.density[i], 4) + ' g/cm³');
+    fact('Family', familyName(S.family[i]));
+    fact('Members', String(S.members[i]));
+    fact('Space group', S.spaceGroup[i] === null ? '–' : S.spaceGroup[i]);
+    fact('Z / Z′', (S.z[i] === null ? '–' : String(S.z[i])) + ' / ' + (S.zPrime[i] === null ? '–' : String(S.zPrime[i])));
+    fact('Atoms per cell', S.atoms[i] === null ? '–' : String(S.atoms[i]));
+    fact('Formula', D.formulas[S.formula[i]] || '–');
+    var nb = neighbours[i] || [];
+    var nbList = el('span');
+    nb.forEach(function (x, k) {
+      if (k > 0) nbList.appendChild(document.createTextNode(', '));
+      nbList.appendChild(structureButton(x[0]));
+      nbList.appendChild(document.createTextNode(' (' + P.fmtDistance(x[1]) + ' Å)'));
+    });
+    fact('Nearest kept', nb.length ? nbList : '–');
+
+    var mem = membersOf[i] || [];
+    document.getElementById('members-note').textContent = mem.length === 0
+      ? 'No duplicates: this structure was found once.'
+      : mem.length + (mem.length === 1 ? ' duplicate' : ' duplicates') + ' collapsed into this structure, closest first.';
+    var mbody = P.clear(document.getElementById('members-table').tBodies[0]);
+    mem.slice(0, 500).forEach(function (j) {
+      mbody.appendChild(el('tr', null,
+        el('td', null, S.id[j]),
+        el('td', { className: 'ps-num' }, P.fmtDistance(S.distanceToKept[j])),
+        el('td', { className: 'ps-num' }, P.fmt(S.energyRel[j], 3)),
+        el('td', { className: 'ps-num' }, P.fmt(S.density[j], 4)),
+        el('td', null, source(j) + ' (line ' + S.line[j] + ')')));
+    });
+    if (mem.length > 500) mbody.appendChild(el('tr', null, el('td', { colspan: 5 }, '… ' + (mem.length - 500) + ' more (all are in structures.csv)')));
+    var notes = P.clear(document.getElementById('panel-notes'));
+    if (S.notes[i].length === 0) notes.appendChild(el('li', { className: 'ps-muted' }, 'none'));
+    S.notes[i].forEach(function (n) { notes.appendChild(el('li', null, n)); });
+    drawAmd(i);
+  }
+
+  function drawAmd(i) {
+    if (!amdOf || amdRow[i] === undefined) {
+      Plotly.purge(amdDiv);
+      P.clear(amdDiv).appendChild(el('p', { className: 'ps-muted' }, 'No AMD stored for this structure.'));
+      return;
+    }
+    var diff = document.getElementById('amd-difference').checked;
+    var own = amdOf(amdRow[i]);
+    var xs = [];
+    for (var j = 0; j < own.length; j++) xs.push(j + 1);
+    var curves = [];
+    var nb = (neighbours[i] || []).slice(0, 5);
+    nb.forEach(function (x) {
+      if (amdRow[x[0]] === undefined) return;
+      var other = amdOf(amdRow[x[0]]);
+      var ys = [];
+      for (var j = 0; j < other.length; j++) ys.push(diff ? other[j] - own[j] : other[j]);
+      curves.push({
+        type: 'scatter', mode: 'lines', x: xs, y: ys, name: P.escapeForPlot(S.id[x[0]]) + ' (' + P.fmtDistance(x[1]) + ' Å)',
+        line: { width: 1.4, color: classes.colours.length ? classes.colours[Math.min(classes.colours.length - 1, classIndex(x[1]))] : '#888' },
+        hovertemplate: '%{y:.4f} Å<extra>%{fullData.name}</extra>',
+      });
+    });
+    var ownY = [];
+    for (var j2 = 0; j2 < own.length; j2++) ownY.push(diff ? 0 : own[j2]);
+    curves.push({
+      type: 'scatter', mode: 'lines', x: xs, y: ownY, name: P.escapeForPlot(S.id[i]) + ' (this)',
+      line: { width: 2.6, color: '#111111' }, hovertemplate: '%{y:.4f} Å<extra>%{fullData.name}</extra>',
+    });
+    Plotly.react(amdDiv, curves, P.baseLayout({
+      margin: { l: 58, r: 8, t: 6, b: 40 },
+      xaxis: { title: { text: 'neighbour j' }, gridcolor: '#e6eaee' },
+      yaxis: { title: { text: diff ? 'AMD_j − this (Å)' : 'AMD_j (Å)' }, gridcolor: '#e6eaee' },
+      showlegend: true,
+      legend: { orientation: 'h', y: -0.28, font: { size: 10 } },
+    }), P.plotConfig);
+  }
+
+  function classIndex(d) {
+    var b = classes.boundsAngstrom;
+    for (var k = b.length - 2; k > 0; k--) if (d >= b[k]) return k;
+    return 0;
+  }
+
+  // ---- Metric map, histogram, convergence, summary (drawn after the landscape) -----------------
+  var mapDiv = document.getElementById('map-plot');
+
+  function drawSecondary() {
+    drawMap();
+    drawHistogram();
+    drawConvergence();
+  }
+
+  function drawMap() {
+    var note = document.getElementById('map-note');
+    if (!D.embedding || D.embedding.coords.length === 0) {
+      note.textContent = 'This landscape holds no metric map (too few kept structures, or none was computed).';
+      mapDiv.hidden = true;
+      return;
+    }
+    var em = D.embedding;
+    note.textContent = 'Kept structures placed in 2D so that plotted distances follow their EMD (Å). Method: ' + em.method +
+      '. Quality: ' + (em.quality.length ? em.quality.map(function (q) { return q.name + ' = ' + P.fmt(q.value, 3); }).join('; ') : 'not given') + '.';
+    var traces = [];
+    report.traces.mapKept = 0;
+    traces.push({
+      type: P.scatterType(em.coords.length), mode: 'markers', name: 'Kept structures',
+      x: em.coords.map(function (p) { return p[0]; }), y: em.coords.map(function (p) { return p[1]; }),
+      text: D.kept.map(function (i) { return '<b>' + P.escapeForPlot(S.id[i]) + '</b><br>' + familyName(S.family[i]) + ', ' + energyText(i); }),
+      hoverinfo: 'text',
+      marker: {
+        size: 7, color: D.kept.map(function (i) { return familyColour(S.family[i]); }),
+        symbol: D.kept.map(function (i) { return familySymbol(S.family[i]); }), line: { color: '#ffffff', width: 0.5 },
+      },
+    });
+    report.traces.mapHighlight = 1;
+    var sel = report.selected !== null && keptPos[report.selected] !== undefined ? em.coords[keptPos[report.selected]] : null;
+    traces.push({ type: 'scatter', mode: 'markers', x: sel ? [sel[0]] : [], y: sel ? [sel[1]] : [], hoverinfo: 'skip',
+      marker: { size: 22, symbol: 'circle-open', color: '#111111', line: { width: 3 } } });
+    Plotly.newPlot(mapDiv, traces, P.baseLayout({
+      xaxis: { title: { text: 'map x (Å)' }, zeroline: false, gridcolor: '#e6eaee' },
+      yaxis: { title: { text: 'map y (Å)' }, zeroline: false, gridcolor: '#e6eaee', scaleanchor: 'x', scaleratio: 1 },
+    }), P.plotConfig).then(function () {
+      mapDiv.on('plotly_click', function (ev) { onPlotClick(ev, 'map'); });
+    });
+  }
+
+  function drawHistogram() {
+    var h = D.nnHistogram;
+    var div = document.getElementById('nn-plot');
+    var tol = D.parameters.toleranceAngstrom;
+    var noteBits = ['For every kept or duplicate structure, the EMD to its nearest other structure (Å, log scale). Optimiser noise sits left of the duplicate tolerance (dashed), distinct structures to its right.'];
+    if (h.zeros > 0) noteBits.push(h.zeros + ' structures at distance exactly 0 cannot be shown on a log axis.');
+    if (h.missing > 0) noteBits.push(h.missing + ' structures have no distance.');
+    document.getElementById('nn-note').textContent = noteBits.join(' ');
+    if (h.counts.length === 0) {
+      div.appendChild(el('p', { className: 'ps-muted' }, 'No positive distances to show.'));
+      return;
+    }
+    var e = h.edgesLog10;
+    var xs = [], widths = [], text = [], colours = [];
+    var tolLog = tol > 0 ? Math.log10(tol) : -Infinity;
+    for (var k = 0; k < h.counts.length; k++) {
+      xs.push((e[k] + e[k + 1]) / 2);
+      widths.push(e[k + 1] - e[k]);
+      text.push(P.fmtDistance(Math.pow(10, e[k])) + '–' + P.fmtDistance(Math.pow(10, e[k + 1])) + ' Å: ' + h.counts[k] + ' structures');
+      colours.push(e[k + 1] <= tolLog + 1e-12 ? '#9a9a9a' : '#2c728e');
+    }
+    var lo = Math.floor(Math.min(e[0], tolLog > -Infinity ? tolLog : e[0]));
+    var hi = Math.ceil(Math.max(e[e.length - 1], tolLog > -Infinity ? tolLog : e[0]));
+    var tickvals = [], ticktext = [];
+    for (var dcd = lo; dcd <= hi; dcd++) { tickvals.push(dcd); ticktext.push(String(Number(Math.pow(10, dcd).toPrecision(1)))); }
+    var shapes = [], annotations = [];
+    if (tolLog > -Infinity) {
+      shapes.push({ type: 'line', x0: tolLog, x1: tolLog, yref: 'paper', y0: 0, y1: 1, line: { color: '#d55e00', width: 2, dash: 'dash' } });
+      annotations.push({ x: tolLog, yref: 'paper', y: 1, text: 'tolerance ' + P.fmtDistance(tol) + ' Å', showarrow: false, xanchor: 'left', yanchor: 'top', font: { color: '#a34400', size: 11 } });
+    }
+    Plotly.newPlot(div, [{ type: 'bar', x: xs, y: h.counts, width: widths, text: text, hoverinfo: 'text', textposition: 'none', marker: { color: colours } }],
+      P.baseLayout({
+        bargap: 0.02,
+        xaxis: { title: { text: 'EMD to the nearest other structure (Å, log scale)' }, tickvals: tickvals, ticktext: ticktext, range: [lo, hi], zeroline: false },
+        yaxis: { title: { text: 'structures' }, gridcolor: '#e6eaee' },
+        shapes: shapes, annotations: annotations,
+      }), P.plotConfig);
+  }
+
+  function drawConvergence() {
+    var cv = D.convergence;
+    if (!cv || cv.points.length === 0) return;
+    document.getElementById('convergence-section').hidden = false;
+    document.getElementById('convergence-statement').textContent = cv.statement;
+    var xs = cv.points.map(function (p) { return p.processed; });
+    var palette = ['#440154', '#31688e', '#35b779', '#e69f00', '#cc79a7', '#0072b2'];
+    var traces = cv.windows.map(function (w, k) {
+      return {
+        type: 'scatter', mode: 'lines', x: xs, y: cv.points.map(function (p) { return p.counts[k]; }),
+        name: 'within ' + w + ' ' + unit, line: { width: 2, color: palette[k % palette.length], shape: 'hv' },
+      };
+    });
+    Plotly.newPlot(document.getElementById('convergence-plot'), traces, P.baseLayout({
+      showlegend: true, legend: { orientation: 'h', y: 1.08 },
+      xaxis: { title: { text: 'candidates processed (input order)' }, gridcolor: '#e6eaee' },
+      yaxis: { title: { text: 'distinct kept structures' }, gridcolor: '#e6eaee', rangemode: 'tozero' },
+    }), P.plotConfig);
+  }
+
+  // ---- Run summary ------------------------------------------------------------------------------
+  (function summary() {
+    var st = document.getElementById('status-table').tBodies[0];
+    [['input structures', c.input], ['kept', c.kept], ['duplicate', c.duplicate], ['rejected', c.rejected], ['outside the energy window', c.outsideWindow]]
+      .forEach(function (r) { st.appendChild(el('tr', null, el('th', { scope: 'row' }, r[0]), el('td', { className: 'ps-num' }, String(r[1])))); });
+    var tt = document.getElementById('timings-table').tBodies[0];
+    var stages = Object.keys(D.timingsSeconds || {});
+    if (stages.length === 0) tt.appendChild(el('tr', null, el('td', null, 'not recorded')));
+    stages.forEach(function (k) { tt.appendChild(el('tr', null, el('th', { scope: 'row' }, k), el('td', { className: 'ps-num' }, P.fmt(D.timingsSeconds[k], 2) + ' s'))); });
+    document.getElementById('tool-line').textContent = 'Made with ' + D.tool.name + ' ' + D.tool.version + ' on ' + D.createdAt + '.';
+    var pl = document.getElementById('parameters-list');
+    var pr = D.parameters;
+    var names = {
+      k: 'PDD depth k', hydrogens: 'Hydrogens', toleranceAngstrom: 'Duplicate tolerance (Å)', minFamilySize: 'Minimum family size',
+      minSamples: 'Minimum samples', energyWindow: 'Energy window (' + unit + ')', energyUnit: 'Energy unit',
+      neighbours: 'Neighbours per structure', inputs: 'Inputs', energiesFile: 'Energies file', energyItem: 'Energy data item',
+    };
+    Object.keys(pr).forEach(function (k) {
+      var v = pr[k];
+      var text = v === null ? 'none' : Array.isArray(v) ? v.join(', ') : String(v);
+      pl.appendChild(el('dt', null, names[k] || k));
+      pl.appendChild(el('dd', null, text));
+    });
+    var rejected = [];
+    for (var i = 0; i < S.id.length; i++) if (S.status[i] === REJECTED) rejected.push(i);
+    document.getElementById('rejected-note').textContent = rejected.length === 0
+      ? 'None: every input structure could be used.'
+      : rejected.length + ' structures could not be used; each reason says what to fix.';
+    if (rejected.length === 0) { document.getElementById('rejected-box').hidden = true; return; }
+    report.rejectedTable = P.createTable({
+      table: document.getElementById('rejected-table'),
+      items: rejected,
+      pageSize: 50,
+      columns: [
+        { label: 'Id', value: function (i) { return S.id[i]; }, text: function (i) { return S.id[i]; } },
+        { label: 'Source', value: function (i) { return source(i); }, text: function (i) { return source(i); } },
+        { label: 'Line', numeric: true, value: function (i) { return S.line[i]; }, text: function (i) { return String(S.line[i]); } },
+        { label: 'Reason', value: function (i) { return S.reason[i]; }, text: function (i) { return S.reason[i]; } },
+      ],
+      prevButton: document.getElementById('rejected-prev'),
+      nextButton: document.getElementById('rejected-next'),
+      pageEl: document.getElementById('rejected-page'),
+    });
+  })();
+})();
