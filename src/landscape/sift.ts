@@ -1,0 +1,568 @@
+// The sift pipeline as a library function: read -> energies -> periodic sets -> energy window -> invariants
+// (cached) -> duplicate collapse -> neighbours -> families -> embedding -> landscape (+ output files).
+// Every input block ends up in exactly one row with one status; nothing is dropped silently.
+import { readFileSync } from 'node:fs';
+import { join } from 'node:path';
+import type { BlockResult, CrystalFacts, CrystalRecord, Pdd, PeriodicSet } from '../types.js';
+import type {
+  Embedding,
+  EnergyUnit,
+  Family,
+  HydrogenPolicy,
+  KeptInvariants,
+  Landscape,
+  SiftParameters,
+  Status,
+  StructureRow,
+} from './schema.js';
+import { readStructures } from '../io/read.js';
+import { assignEnergies, energySummary, parseEnergyCsv, type EnergyAssignment, type EnergyTable } from '../io/energies.js';
+import { mapInWorkers, chunkRanges, defaultThreads } from '../parallel/pool.js';
+import { computeInvariants } from '../invariants/batch.js';
+import { pdd as computePdd } from '../invariants/pdd.js';
+import { amd as computeAmd } from '../invariants/amd.js';
+import { emd, amdDistance } from '../metric/emd.js';
+import { distanceMatrix, nearestAcross, nearestNeighbours, pairsWithin } from '../metric/graph.js';
+import { hdbscanDense, hdbscanLazy, coreDistancesFromNeighbours } from '../cluster/hdbscan.js';
+import { convergenceCurve, defaultWindows } from './convergence.js';
+import { collapseDuplicates, visitOrder } from './collapse.js';
+import { blockKey, loadCache, saveCache, type CacheEntry } from './cache.js';
+import type { Prepared, PrepareInput } from './prepare.js';
+import { prepareChunk } from './prepare.js';
+import { VERSION } from '../version.js';
+import { makeProgress, type Progress } from '../progress.js';
+
+/**
+ * Default duplicate tolerance, EMD in Å. Measured on the generator's landscapes (optimiser-like noise of
+ * 0.002 Å per coordinate and 2e-4 relative on cell lengths): copies of one minimum lie at most ~0.01 Å apart,
+ * distinct packings (including close pairs made by a 4-degree turn of the molecule) at least ~0.05 Å apart
+ * (see test/sift-landscape.test.ts and the report's nearest-neighbour histogram for the run at hand).
+ */
+export const DEFAULT_TOLERANCE_ANGSTROM = 0.02;
+export const DEFAULT_K = 100;
+export const DEFAULT_MIN_FAMILY_SIZE = 5;
+/** Nearest kept neighbours stored per kept structure (edges of the report's neighbourhood lines). */
+export const DEFAULT_NEIGHBOURS = 5;
+/**
+ * Largest number of kept structures for which the full EMD matrix is computed (dense HDBSCAN and the metric
+ * map): 3,000 kept structures are 4.5 million EMDs and a 72 MB matrix. Above it, HDBSCAN runs lazily from the
+ * exact neighbour graph and the AMD lower bound, and the metric map is made for the lowest-energy
+ * EMBED_LIMIT kept structures only (said in the embedding's method).
+ */
+export const DENSE_LIMIT = 3000;
+export const EMBED_LIMIT = 3000;
+/** Records sent to a worker at a time when building periodic sets. */
+const PREPARE_CHUNK = 250;
+
+export interface SiftOptions {
+  inputs: string[];
+  energiesFile?: string | null;
+  idColumn?: string;
+  energyColumn?: string;
+  energyUnit?: EnergyUnit;
+  energyItem?: string | null;
+  k?: number;
+  hydrogens?: HydrogenPolicy;
+  toleranceAngstrom?: number;
+  minFamilySize?: number;
+  minSamples?: number;
+  /** Energy window above the lowest energy, in `energyUnit`; null for none. */
+  energyWindow?: number | null;
+  neighbours?: number;
+  threads?: number;
+  /** Folder of the invariants cache; null to disable. Default: none (the CLI passes `<out>/.polysift-cache`). */
+  cacheDir?: string | null;
+  progress?: Progress;
+}
+
+export interface SiftRun {
+  landscape: Landscape;
+  /** Kept structures' CIF text, in `landscape.kept` order. */
+  keptTexts: string[];
+  energyTable: EnergyTable | null;
+  energyAssignment: EnergyAssignment | null;
+  /** Lines for stderr (energy problems, skipped steps). */
+  messages: string[];
+  cache: { hits: number; misses: number; file: string | null; problem: string | null };
+}
+
+interface Work {
+  row: StructureRow;
+  record: CrystalRecord | null;
+  text: string;
+  key: string;
+  pdd: Pdd | null;
+  amd: Float64Array | null;
+}
+
+/** Run the whole sift. Throws only when the inputs cannot be read at all (missing path, bad energies file). */
+export async function sift(opts: SiftOptions): Promise<SiftRun> {
+  const t0 = performance.now();
+  const timings: Record<string, number> = {};
+  const lap = (name: string, since: number) => {
+    timings[name] = round(performance.now() - since) / 1000;
+    return performance.now();
+  };
+  const progress = opts.progress ?? makeProgress({ quiet: true });
+  const threads = opts.threads ?? defaultThreads();
+  const params: SiftParameters = {
+    k: opts.k ?? DEFAULT_K,
+    hydrogens: opts.hydrogens ?? 'keep',
+    toleranceAngstrom: opts.toleranceAngstrom ?? DEFAULT_TOLERANCE_ANGSTROM,
+    minFamilySize: opts.minFamilySize ?? DEFAULT_MIN_FAMILY_SIZE,
+    minSamples: opts.minSamples ?? opts.minFamilySize ?? DEFAULT_MIN_FAMILY_SIZE,
+    energyWindow: opts.energyWindow ?? null,
+    energyUnit: opts.energyUnit ?? 'kJ/mol',
+    neighbours: opts.neighbours ?? DEFAULT_NEIGHBOURS,
+    inputs: opts.inputs.slice(),
+    energiesFile: opts.energiesFile ?? null,
+    energyItem: opts.energyItem ?? null,
+  };
+  checkParameters(params);
+  const messages: string[] = [];
+
+  // ---- read every block ----
+  let t = performance.now();
+  progress.stage('reading structures');
+  const work: Work[] = [];
+  for await (const r of readStructures(params.inputs, { energyItem: params.energyItem })) {
+    work.push(workFromBlock(r, work.length));
+    if (work.length % 500 === 0) progress.tick(work.length);
+  }
+  progress.done();
+  t = lap('read', t);
+
+  // ---- energies ----
+  let energyTable: EnergyTable | null = null;
+  let energyAssignment: EnergyAssignment | null = null;
+  if (params.energiesFile !== null) {
+    let text: string;
+    try {
+      text = readFileSync(params.energiesFile, 'utf8');
+    } catch (err) {
+      throw new Error(`cannot read the energies file ${params.energiesFile}: ${(err as NodeJS.ErrnoException).code ?? (err as Error).message}`);
+    }
+    energyTable = parseEnergyCsv(text, params.energiesFile, { idColumn: opts.idColumn, energyColumn: opts.energyColumn });
+    const recordsAt = work.filter((w) => w.record !== null);
+    energyAssignment = assignEnergies(recordsAt.map((w) => w.row.id), energyTable);
+    recordsAt.forEach((w, i) => {
+      w.row.energy = energyAssignment!.energy[i];
+      const problem = energyAssignment!.problem[i];
+      if (problem !== '') {
+        w.row.notes.push(problem);
+        w.row.reason = problem;
+      }
+    });
+    messages.push(...energySummary(energyTable, energyAssignment));
+  } else if (params.energyItem !== null) {
+    let missing = 0;
+    for (const w of work) {
+      if (!w.record) continue;
+      w.row.energy = w.record.energy;
+      if (w.record.energy === null) {
+        missing++;
+        const problem = `no energy: the block has no numeric ${params.energyItem}`;
+        w.row.notes.push(problem);
+        w.row.reason = problem;
+      }
+    }
+    if (missing > 0) messages.push(`${missing} structure(s) have no numeric ${params.energyItem} (reason per row in structures.csv)`);
+  }
+  t = lap('energies', t);
+
+  // ---- periodic sets and facts (cache hits need neither) ----
+  const cacheParams = { k: params.k, hydrogens: params.hydrogens, version: VERSION };
+  const loaded = opts.cacheDir ? loadCache(opts.cacheDir, cacheParams) : { entries: new Map<string, CacheEntry>(), problem: null };
+  if (loaded.problem) messages.push(loaded.problem);
+  const cache = loaded.entries;
+  const missing: Work[] = [];
+  for (const w of work) {
+    if (!w.record) continue;
+    const hit = cache.get(w.key);
+    if (hit) applyFacts(w, hit.facts, hit.atoms, hit.notes);
+    else missing.push(w);
+  }
+  const prepared = new Map<Work, PeriodicSet>();
+  if (missing.length > 0) {
+    progress.stage('building periodic sets', missing.length);
+    const ranges = chunkRanges(missing.length, Math.ceil(missing.length / PREPARE_CHUNK));
+    const inputs: PrepareInput[] = ranges.map(([a, b]) => ({ records: missing.slice(a, b).map((w) => w.record!), hydrogens: params.hydrogens }));
+    const out = await mapInWorkers<PrepareInput, Prepared[]>(new URL(`./prepare${extOf()}`, import.meta.url).href, 'prepareChunk', inputs, {
+      threads,
+      onProgress: (d) => progress.tick(Math.min(missing.length, d * PREPARE_CHUNK)),
+    });
+    let i = 0;
+    for (const chunk of out)
+      for (const p of chunk) {
+        const w = missing[i++];
+        if (p.ok) {
+          applyFacts(w, p.facts, p.set.motif.length / p.set.dim, p.notes);
+          prepared.set(w, p.set);
+        } else reject(w, p.reason);
+      }
+    progress.done();
+  }
+  t = lap('periodic sets', t);
+
+  // ---- energy window over usable structures ----
+  const usable = work.filter((w) => w.row.status !== 'rejected');
+  let lowest: number | null = null;
+  for (const w of usable) if (w.row.energy !== null && (lowest === null || w.row.energy < lowest)) lowest = w.row.energy;
+  for (const w of usable) {
+    if (w.row.energy === null || lowest === null) continue;
+    w.row.energyRel = w.row.energy - lowest;
+    if (params.energyWindow !== null && w.row.energyRel > params.energyWindow) w.row.status = 'outside-window';
+  }
+  if (params.energyWindow !== null)
+    for (const w of usable)
+      if (w.row.energy === null) w.row.notes.push('no energy, so the energy window could not be applied; compared with the rest');
+  const active = usable.filter((w) => w.row.status !== 'outside-window');
+
+  // ---- invariants: cache first, then computed across threads ----
+  const toCompute: Work[] = [];
+  let hits = 0;
+  for (const w of active) {
+    const hit = cache.get(w.key);
+    if (hit) {
+      w.pdd = hit.pdd;
+      hits++;
+    } else toCompute.push(w);
+  }
+  if (toCompute.length > 0) {
+    progress.stage('computing invariants', toCompute.length);
+    const sets = toCompute.map((w) => prepared.get(w)!);
+    let results: Array<{ pdd: Pdd; amd: Float64Array } | Error>;
+    try {
+      results = await computeInvariants(sets, params.k, { threads, onProgress: (d: number) => progress.tick(d) });
+    } catch {
+      // One set broke the batch: compute one at a time so only the broken ones are rejected.
+      results = sets.map((s) => {
+        try {
+          const p = computePdd(s, params.k);
+          return { pdd: p, amd: computeAmd(p) };
+        } catch (err) {
+          return err as Error;
+        }
+      });
+    }
+    results.forEach((r, i) => {
+      const w = toCompute[i];
+      if (r instanceof Error) reject(w, `invariants could not be computed: ${r.message}`);
+      else {
+        w.pdd = r.pdd;
+        w.amd = r.amd;
+        cache.set(w.key, { pdd: r.pdd, atoms: w.row.atoms ?? 0, facts: factsOf(w), notes: w.row.notes.filter((n) => !n.startsWith('no energy')) });
+      }
+    });
+    progress.done();
+  }
+  const items = active.filter((w) => w.row.status !== 'rejected');
+  for (const w of items) if (!w.amd) w.amd = computeAmd(w.pdd!);
+  let cacheFile: string | null = null;
+  if (opts.cacheDir && toCompute.length > 0) {
+    // Keep what this run used (and earlier entries of other blocks, up to the size of this run again).
+    const keep = new Map<string, CacheEntry>();
+    for (const w of items) keep.set(w.key, cache.get(w.key)!);
+    for (const [key, e] of cache) if (keep.size < 2 * items.length && !keep.has(key)) keep.set(key, e);
+    cacheFile = saveCache(opts.cacheDir, cacheParams, keep);
+  } else if (opts.cacheDir) cacheFile = join(opts.cacheDir, 'invariants');
+  t = lap('invariants', t);
+
+  // ---- duplicate collapse ----
+  progress.stage('finding duplicates', items.length);
+  const graphItems = items.map((w) => ({ pdd: w.pdd!, amd: w.amd! }));
+  const close = await pairsWithin(graphItems, params.toleranceAngstrom, { threads, onProgress: (d: number) => progress.tick(d) });
+  const order = visitOrder(
+    items.map((_, i) => i),
+    items.map((w) => w.row.energy),
+  );
+  const collapsed = collapseDuplicates(items.length, order, { i: close.i, j: close.j, d: close.distances }, params.toleranceAngstrom);
+  progress.done();
+  t = lap('duplicates', t);
+
+  const keptLocal = collapsed.kept; // positions in `items`, lowest energy first
+  const keptPos = new Int32Array(items.length).fill(-1);
+  keptLocal.forEach((p, r) => (keptPos[p] = r));
+  for (let p = 0; p < items.length; p++) {
+    const row = items[p].row;
+    const kp = collapsed.keptOf[p];
+    row.keptIndex = items[kp].row.index;
+    row.distanceToKept = collapsed.distanceToKept[p];
+    if (kp === p) row.status = 'kept';
+    else {
+      row.status = 'duplicate';
+      row.duplicateOf = items[kp].row.id;
+    }
+  }
+  for (const p of keptLocal) items[p].row.members = 0;
+  for (let p = 0; p < items.length; p++) items[collapsed.keptOf[p]].row.members++;
+
+  // ---- neighbours: among kept structures, duplicates to kept ones, and every structure's nearest ----
+  progress.stage('nearest neighbours', items.length);
+  const keptItems = keptLocal.map((p) => graphItems[p]);
+  const nKept = keptItems.length;
+  const kNbr = Math.min(Math.max(params.neighbours, params.minSamples), nKept - 1);
+  const edges: Array<[number, number, number]> = [];
+  let keptNbr: { indices: Int32Array; distances: Float64Array } | null = null;
+  if (kNbr >= 1) {
+    keptNbr = await nearestNeighbours(keptItems, kNbr, { threads });
+    const seen = new Set<string>();
+    for (let r = 0; r < nKept; r++) {
+      const row = items[keptLocal[r]].row;
+      row.nearestIndex = items[keptLocal[keptNbr.indices[r * kNbr]]].row.index;
+      row.nearest = items[keptLocal[keptNbr.indices[r * kNbr]]].row.id;
+      row.nearestDistance = keptNbr.distances[r * kNbr];
+      for (let q = 0; q < Math.min(params.neighbours, kNbr); q++) {
+        const a = row.index;
+        const b = items[keptLocal[keptNbr.indices[r * kNbr + q]]].row.index;
+        const key = a < b ? `${a},${b}` : `${b},${a}`;
+        if (seen.has(key)) continue;
+        seen.add(key);
+        edges.push(a < b ? [a, b, keptNbr.distances[r * kNbr + q]] : [b, a, keptNbr.distances[r * kNbr + q]]);
+      }
+    }
+    edges.sort((x, y) => x[0] - y[0] || x[1] - y[1]);
+  }
+  const dupLocal: number[] = [];
+  for (let p = 0; p < items.length; p++) if (keptPos[p] < 0) dupLocal.push(p);
+  if (dupLocal.length > 0 && nKept >= 2) {
+    const across = await nearestAcross(
+      dupLocal.map((p) => graphItems[p]),
+      keptItems,
+      2,
+      { threads },
+    );
+    dupLocal.forEach((p, q) => {
+      // The nearest kept structure other than the one it was collapsed into.
+      for (let c = 0; c < 2; c++) {
+        const r = across.indices[q * 2 + c];
+        if (keptLocal[r] === collapsed.keptOf[p]) continue;
+        const row = items[p].row;
+        row.nearestIndex = items[keptLocal[r]].row.index;
+        row.nearest = items[keptLocal[r]].row.id;
+        row.nearestDistance = across.distances[q * 2 + c];
+        break;
+      }
+    });
+  }
+  if (items.length >= 2) {
+    const nn = await nearestNeighbours(graphItems, 1, { threads });
+    for (let p = 0; p < items.length; p++) items[p].row.nnDistance = nn.distances[p];
+  }
+  progress.done();
+  t = lap('neighbours', t);
+
+  // ---- families (HDBSCAN over kept structures) and the metric map ----
+  const familyLabels = new Int32Array(nKept).fill(-1);
+  let embedding: Embedding | null = null;
+  await loadEmbedder();
+  if (nKept >= 2 && params.minSamples <= nKept) {
+    progress.stage('families', nKept);
+    if (nKept <= DENSE_LIMIT) {
+      const dist = await distanceMatrix(keptItems, { threads });
+      familyLabels.set(hdbscanDense(dist, nKept, { minClusterSize: params.minFamilySize, minSamples: params.minSamples }).labels);
+      embedding = embeddingOf(dist, nKept, nKept);
+    } else {
+      const core = coreDistancesFromNeighbours(keptNbr!.distances, nKept, kNbr, params.minSamples);
+      const res = hdbscanLazy(
+        nKept,
+        (a, b) => emd(keptItems[a].pdd, keptItems[b].pdd),
+        (a, b) => amdDistance(keptItems[a].amd, keptItems[b].amd),
+        core,
+        { minClusterSize: params.minFamilySize, minSamples: params.minSamples },
+      );
+      familyLabels.set(res.labels);
+      const m = Math.min(EMBED_LIMIT, nKept);
+      const sub = await distanceMatrix(keptItems.slice(0, m), { threads });
+      messages.push(`metric map drawn for the ${m} lowest-energy kept structures of ${nKept} (EMBED_LIMIT)`);
+      embedding = embeddingOf(sub, m, nKept);
+    }
+    progress.done();
+  } else if (nKept >= 1) {
+    messages.push(`families not computed: ${nKept} kept structure(s), fewer than the minimum samples ${params.minSamples}`);
+    if (nKept >= 2) embedding = embeddingOf(await distanceMatrix(keptItems, { threads }), nKept, nKept);
+  }
+  const families: Family[] = [];
+  for (let r = 0; r < nKept; r++) {
+    const f = familyLabels[r];
+    items[keptLocal[r]].row.family = f;
+    if (f < 0) continue;
+    while (families.length <= f) families.push({ id: families.length, members: [] });
+    families[f].members.push(items[keptLocal[r]].row.index);
+  }
+  for (const w of items) if (w.row.status === 'duplicate') w.row.family = work[w.row.keptIndex!].row.family;
+  t = lap('families', t);
+
+  // ---- the landscape ----
+  const rows = work.map((w) => roundRow(w.row));
+  const kept = keptLocal.map((p) => items[p].row.index);
+  const counts = { input: rows.length, kept: 0, duplicate: 0, rejected: 0, outsideWindow: 0 };
+  for (const r of rows) {
+    if (r.status === 'kept') counts.kept++;
+    else if (r.status === 'duplicate') counts.duplicate++;
+    else if (r.status === 'rejected') counts.rejected++;
+    else counts.outsideWindow++;
+  }
+  const invariants: KeptInvariants[] = keptLocal.map((p) => ({
+    index: items[p].row.index,
+    amd: Array.from(items[p].amd!, (x) => round6(x)),
+    pddWeights: Array.from(items[p].pdd!.weights, (x) => roundTo(x, 12)),
+    pddRows: Array.from(items[p].pdd!.rows, (x) => round6(x)),
+  }));
+  const landscape: Landscape = {
+    format: 'polysift-landscape',
+    formatVersion: 1,
+    tool: { name: 'polysift', version: VERSION },
+    run: { createdAt: new Date().toISOString(), timingsSeconds: timings },
+    parameters: params,
+    counts,
+    lowestEnergy: lowest === null ? null : round6(lowest),
+    structures: rows,
+    kept,
+    edges: edges.map(([a, b, d]) => [a, b, round6(d)]),
+    families,
+    embedding,
+    invariants: { k: params.k, hydrogens: params.hydrogens, kept: invariants },
+    convergence: null,
+  };
+  landscape.convergence = convergenceCurve(rows, defaultWindows(params.energyUnit), { energyUnit: params.energyUnit });
+  lap('landscape', t);
+  timings.total = round(performance.now() - t0) / 1000;
+  return {
+    landscape,
+    keptTexts: keptLocal.map((p) => items[p].text),
+    energyTable,
+    energyAssignment,
+    messages,
+    cache: { hits, misses: toCompute.length, file: cacheFile, problem: loaded.problem },
+  };
+}
+
+function workFromBlock(r: BlockResult, index: number): Work {
+  const base = r.kind === 'record' ? r.record : r.rejected;
+  const row: StructureRow = {
+    index,
+    id: base.id,
+    source: base.source,
+    file: base.file,
+    block: base.block,
+    line: base.line,
+    status: 'rejected',
+    reason: '',
+    energy: null,
+    energyRel: null,
+    densityGPerCm3: null,
+    atoms: null,
+    spaceGroup: r.kind === 'record' ? r.record.spaceGroup : null,
+    z: null,
+    zPrime: null,
+    formulas: [],
+    keptIndex: null,
+    duplicateOf: null,
+    distanceToKept: null,
+    family: -1,
+    nearestIndex: null,
+    nearest: null,
+    nearestDistance: null,
+    nnDistance: null,
+    members: 0,
+    notes: r.kind === 'record' ? r.record.notes.slice() : [],
+  };
+  if (r.kind === 'rejected') {
+    row.reason = r.rejected.reason;
+    return { row, record: null, text: r.rejected.text, key: '', pdd: null, amd: null };
+  }
+  // Usable so far; the status is settled later (kept, duplicate, outside-window or rejected).
+  row.status = 'kept';
+  return { row, record: r.record, text: r.record.text, key: blockKey(r.record.text), pdd: null, amd: null };
+}
+
+function applyFacts(w: Work, facts: CrystalFacts | null, atoms: number, notes: string[]): void {
+  w.row.atoms = atoms;
+  if (facts) {
+    w.row.densityGPerCm3 = facts.densityGPerCm3;
+    w.row.z = facts.z;
+    w.row.zPrime = facts.zPrime;
+    w.row.formulas = facts.formulas.slice();
+    w.row.notes.push(...facts.notes);
+  }
+  w.row.notes.push(...notes);
+  (w as Work & { facts?: CrystalFacts | null }).facts = facts;
+}
+
+function factsOf(w: Work): CrystalFacts | null {
+  return (w as Work & { facts?: CrystalFacts | null }).facts ?? null;
+}
+
+function reject(w: Work, reason: string): void {
+  w.row.status = 'rejected';
+  // An energy problem noted earlier stays in the notes; the reason says why the structure is unusable.
+  w.row.reason = reason;
+}
+
+type Embed2d = (dist: Float64Array, n: number) => { method: string; coords: Array<[number, number]>; quality: Array<{ name: string; value: number }> };
+let embed2d: Embed2d | null = null;
+
+// TEMPORARY until src/cluster/embedding.ts lands: loaded when present.
+async function loadEmbedder(): Promise<void> {
+  if (embed2d) return;
+  try {
+    const modName = '../cluster/embedding.js';
+    embed2d = ((await import(modName)) as { embed2d: Embed2d }).embed2d;
+  } catch {
+    embed2d = null;
+  }
+}
+
+function embeddingOf(dist: Float64Array, n: number, nKept: number): Embedding | null {
+  if (!embed2d) return null;
+  const e = embed2d(dist, n);
+  const coords = e.coords.map(([x, y]) => [round6(x), round6(y)] as [number, number]);
+  return {
+    method: n < nKept ? `${e.method} (lowest-energy ${n} of ${nKept} kept structures)` : e.method,
+    quality: e.quality.map((q) => ({ name: q.name, value: round6(q.value) })),
+    coords,
+  };
+}
+
+function checkParameters(p: SiftParameters): void {
+  if (!Number.isInteger(p.k) || p.k < 1) throw new Error(`the PDD depth k must be a positive integer, not ${p.k}`);
+  if (!(p.toleranceAngstrom >= 0)) throw new Error(`the duplicate tolerance must be a number of Å >= 0, not ${p.toleranceAngstrom}`);
+  if (!Number.isInteger(p.minFamilySize) || p.minFamilySize < 2) throw new Error(`the minimum family size must be an integer >= 2, not ${p.minFamilySize}`);
+  if (!Number.isInteger(p.minSamples) || p.minSamples < 1) throw new Error(`the minimum samples must be an integer >= 1, not ${p.minSamples}`);
+  if (p.energyWindow !== null && !(p.energyWindow >= 0)) throw new Error(`the energy window must be >= 0, not ${p.energyWindow}`);
+  if (!Number.isInteger(p.neighbours) || p.neighbours < 1) throw new Error(`the neighbour count must be an integer >= 1, not ${p.neighbours}`);
+  if (p.inputs.length === 0) throw new Error('no inputs: give CIF files or folders');
+}
+
+/** Worker modules are .ts under the test runner and .js when built. */
+function extOf(): string {
+  return import.meta.url.endsWith('.ts') ? '.ts' : '.js';
+}
+
+function roundTo(x: number, d: number): number {
+  const r = Number(x.toFixed(d));
+  return r === 0 ? 0 : r;
+}
+function round6(x: number): number {
+  return roundTo(x, 6);
+}
+function round(x: number): number {
+  return Math.round(x);
+}
+
+/** Output rounding of a row: Å, g/cm3 and energies to 6 decimals. */
+function roundRow(r: StructureRow): StructureRow {
+  const o = (x: number | null) => (x === null ? null : round6(x));
+  const statusOk: Status = r.status;
+  return {
+    ...r,
+    status: statusOk,
+    energy: o(r.energy),
+    energyRel: o(r.energyRel),
+    densityGPerCm3: o(r.densityGPerCm3),
+    distanceToKept: o(r.distanceToKept),
+    nearestDistance: o(r.nearestDistance),
+    nnDistance: o(r.nnDistance),
+  };
+}
