@@ -9,6 +9,7 @@
 // Also here: the AMD distance, the L-infinity distance between AMD vectors, which never exceeds the EMD
 // ("Average minimum distances of periodic point sets", MATCH Commun. Math. Comput. Chem. 2022).
 import type { Pdd } from '../types.js';
+import { sortByKey, sortStackLength } from './sort-keyed.js';
 
 /** Weights at or above this (negative) value are rounding residue and count as 0; below it they are an error. */
 export const NEGATIVE_WEIGHT_TOLERANCE = -1e-9;
@@ -124,7 +125,7 @@ class Workspace {
       this.colOf = new Int32Array(this.capCols);
       this.cost = new Float64Array(this.capRows * this.capCols);
       this.order = new Int32Array(this.capRows * this.capCols);
-      this.sortStack = new Int32Array(2 * Math.ceil(Math.log2(this.capRows * this.capCols + 2)) + 8);
+      this.sortStack = new Int32Array(sortStackLength(this.capRows * this.capCols));
     }
     const nodes = m + n + 1;
     if (nodes > this.capNodes) {
@@ -233,7 +234,7 @@ function solve(
 
   // ---- first basis: matrix minimum (allocate to the cheapest open cells first) ----
   for (let c = 0; c < cells; c++) order[c] = c;
-  sortByCost(order, cells, cost, ws.sortStack);
+  sortByKey(order, cells, cost, ws.sortStack);
   for (let v = 0; v < nodes; v++) unionParent[v] = v;
   let arcs = 0;
   let rowsLeft = m;
@@ -465,69 +466,4 @@ function comparePacked(
     if (x !== y) return x < y ? -1 : 1;
   }
   return 0;
-}
-
-/** In-place sort of cell indices by ascending cost, ties by index (iterative quicksort + insertion sort). */
-function sortByCost(idx: Int32Array, count: number, key: Float64Array, sortStack: Int32Array): void {
-  let sp = 0;
-  sortStack[sp++] = 0;
-  sortStack[sp++] = count - 1;
-  while (sp > 0) {
-    let hi = sortStack[--sp];
-    let lo = sortStack[--sp];
-    while (hi - lo > 16) {
-      // Median of three as pivot.
-      const mid = (lo + hi) >> 1;
-      if (less(idx[mid], idx[lo], key)) swap(idx, mid, lo);
-      if (less(idx[hi], idx[lo], key)) swap(idx, hi, lo);
-      if (less(idx[hi], idx[mid], key)) swap(idx, hi, mid);
-      const p = idx[mid];
-      let l = lo;
-      let r = hi;
-      while (l <= r) {
-        while (less(idx[l], p, key)) l++;
-        while (less(p, idx[r], key)) r--;
-        if (l <= r) {
-          swap(idx, l, r);
-          l++;
-          r--;
-        }
-      }
-      // Push the larger part, keep working on the smaller one (stack depth stays logarithmic).
-      if (r - lo < hi - l) {
-        if (l < hi) {
-          sortStack[sp++] = l;
-          sortStack[sp++] = hi;
-        }
-        hi = r;
-      } else {
-        if (lo < r) {
-          sortStack[sp++] = lo;
-          sortStack[sp++] = r;
-        }
-        lo = l;
-      }
-    }
-    for (let s = lo + 1; s <= hi; s++) {
-      const v = idx[s];
-      let t = s - 1;
-      while (t >= lo && less(v, idx[t], key)) {
-        idx[t + 1] = idx[t];
-        t--;
-      }
-      idx[t + 1] = v;
-    }
-  }
-}
-
-function less(a: number, b: number, key: Float64Array): boolean {
-  const ka = key[a];
-  const kb = key[b];
-  return ka < kb || (ka === kb && a < b);
-}
-
-function swap(idx: Int32Array, a: number, b: number): void {
-  const t = idx[a];
-  idx[a] = idx[b];
-  idx[b] = t;
 }

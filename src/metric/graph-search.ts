@@ -1,0 +1,376 @@
+// The per-chunk work of the neighbour graph, run inside worker threads (or on the calling thread).
+// Every candidate target is bounded from below before any EMD is spent on it:
+//   |AMD_c(S) - AMD_c(Q)|  <=  max_j |AMD_j(S) - AMD_j(Q)|  <=  EMD(PDD(S), PDD(Q))
+// (the AMD bound: "Average minimum distances of periodic point sets", MATCH Commun. Math. Comput. Chem. 2022).
+// The first inequality lets a sweep along one sorted AMD column stop early; the second skips EMDs.
+// Ties are broken by (distance, index) ascending, so results equal a brute-force sort exactly.
+import { emdPacked } from './emd.js';
+import type { PackedSet, SortedIndex } from './packed.js';
+import { sortByKey, sortStackLength } from './sort-keyed.js';
+
+/**
+ * Widen a threshold before comparing a lower bound with it: the AMDs and the EMD are computed in floating
+ * point, so a bound may exceed the EMD it bounds by rounding (far below 1e-9 Å for distances of a few Å).
+ */
+export function widen(thresholdAngstrom: number): number {
+  return thresholdAngstrom + 1e-9 + 1e-12 * thresholdAngstrom;
+}
+
+export interface KnnTask {
+  queries: PackedSet;
+  targets: PackedSet;
+  index: SortedIndex;
+  /** Queries and targets are the same set: an item is not its own neighbour. */
+  sameSet: boolean;
+  /** Query indices in processing order; this chunk does queryOrder[start..end). */
+  queryOrder: Int32Array;
+  start: number;
+  end: number;
+  /** Neighbours per query (already limited to the number of available targets). */
+  k: number;
+}
+
+export interface KnnChunk {
+  /** The queries of this chunk; row r of indices/distances belongs to queries[r]. */
+  queries: Int32Array;
+  indices: Int32Array;
+  distances: Float64Array;
+  emdEvaluations: number;
+  boundEvaluations: number;
+}
+
+/** Exact k nearest targets under EMD for each query of the chunk. */
+export function knnChunk(task: KnnTask): KnnChunk {
+  const { queries, targets, index, sameSet, queryOrder, start, end, k } = task;
+  const dim = targets.k;
+  const nt = targets.count;
+  const { order, keys, columns } = index;
+  const keyColumn = columns[0];
+  const qAmd = queries.amd;
+  const tAmd = targets.amd;
+  const count = end - start;
+  const outQueries = new Int32Array(count);
+  const outIndices = new Int32Array(count * k);
+  const outDistances = new Float64Array(count * k);
+
+  // Scratch for the whole chunk.
+  const boundHeapB = new Float64Array(k);
+  const boundHeapI = new Int32Array(k);
+  const bestD = new Float64Array(k);
+  const bestI = new Int32Array(k);
+  const stamp = new Int32Array(nt).fill(-1);
+  const candidateBound = new Float64Array(nt);
+  let candidates: Int32Array = new Int32Array(64);
+  let sortStack = new Int32Array(sortStackLength(64));
+  const cache = new PairCache();
+  let emdEvaluations = 0;
+  let boundEvaluations = 0;
+
+  const distance = (q: number, t: number): number => {
+    // Within one set the pair (q, t) is the pair (t, q): ask the cache under one name.
+    const a = sameSet && t < q ? t : q;
+    const b = sameSet && t < q ? q : t;
+    const hit = cache.get(a, b);
+    if (hit >= 0) return hit;
+    emdEvaluations++;
+    const d = emdPacked(
+      queries.rows,
+      queries.weights,
+      queries.rowStart[q],
+      queries.rowStart[q + 1] - queries.rowStart[q],
+      targets.rows,
+      targets.weights,
+      targets.rowStart[t],
+      targets.rowStart[t + 1] - targets.rowStart[t],
+      dim,
+    );
+    cache.set(a, b, d);
+    return d;
+  };
+
+  for (let r = 0; r < count; r++) {
+    const q = queryOrder[start + r];
+    outQueries[r] = q;
+    const qo = q * dim;
+    const qKey = qAmd[qo + keyColumn];
+    // Where the query sits among the sorted targets.
+    let hi0: number;
+    if (sameSet) hi0 = index.position[q];
+    else {
+      let lo = 0;
+      let hi = nt;
+      while (lo < hi) {
+        const mid = (lo + hi) >> 1;
+        if (keys[mid] < qKey) lo = mid + 1;
+        else hi = mid;
+      }
+      hi0 = lo;
+    }
+    const lo0 = hi0 - 1;
+
+    // Stage 1: the k targets with the smallest AMD bounds, found by sweeping outwards along the key column.
+    let filled = 0;
+    let lo = lo0;
+    let hi = hi0;
+    for (;;) {
+      const dl = lo >= 0 ? qKey - keys[lo] : Infinity;
+      const dh = hi < nt ? keys[hi] - qKey : Infinity;
+      if (dl === Infinity && dh === Infinity) break;
+      const takeLow = dl <= dh;
+      const p = takeLow ? lo-- : hi++;
+      const t = order[p];
+      if (sameSet && t === q) continue;
+      const full = filled === k;
+      const worstB = full ? boundHeapB[k - 1] : Infinity;
+      if (full && (takeLow ? dl : dh) > worstB) break;
+      boundEvaluations++;
+      const b = bound(qAmd, qo, tAmd, t * dim, columns, dim, worstB);
+      if (!full || b < worstB || (b === worstB && t < boundHeapI[k - 1])) {
+        filled = insert(boundHeapB, boundHeapI, filled, k, b, t);
+      }
+    }
+
+    // Stage 2: their EMDs give a first k-th distance T.
+    let found = 0;
+    for (let s = 0; s < filled; s++) {
+      const t = boundHeapI[s];
+      stamp[t] = q;
+      found = insert(bestD, bestI, found, k, distance(q, t), t);
+    }
+
+    // Stage 3: every other target whose bound does not exceed T is a candidate; visit them by increasing bound.
+    const limit = widen(bestD[k - 1]);
+    let nc = 0;
+    lo = lo0;
+    hi = hi0;
+    while (lo >= 0 && qKey - keys[lo] <= limit) {
+      const t = order[lo--];
+      if (stamp[t] === q || (sameSet && t === q)) continue;
+      boundEvaluations++;
+      const b = bound(qAmd, qo, tAmd, t * dim, columns, dim, limit);
+      if (b > limit) continue;
+      if (nc === candidates.length) {
+        candidates = grow(candidates);
+        sortStack = new Int32Array(sortStackLength(candidates.length));
+      }
+      candidateBound[t] = b;
+      candidates[nc++] = t;
+    }
+    while (hi < nt && keys[hi] - qKey <= limit) {
+      const t = order[hi++];
+      if (stamp[t] === q || (sameSet && t === q)) continue;
+      boundEvaluations++;
+      const b = bound(qAmd, qo, tAmd, t * dim, columns, dim, limit);
+      if (b > limit) continue;
+      if (nc === candidates.length) {
+        candidates = grow(candidates);
+        sortStack = new Int32Array(sortStackLength(candidates.length));
+      }
+      candidateBound[t] = b;
+      candidates[nc++] = t;
+    }
+    sortByKey(candidates, nc, candidateBound, sortStack);
+    for (let c = 0; c < nc; c++) {
+      const t = candidates[c];
+      // T only shrinks, so once a bound exceeds it all later (larger) bounds do too.
+      if (candidateBound[t] > widen(bestD[k - 1])) break;
+      const d = distance(q, t);
+      if (d < bestD[k - 1] || (d === bestD[k - 1] && t < bestI[k - 1])) insert(bestD, bestI, k, k, d, t);
+    }
+    outIndices.set(bestI, r * k);
+    outDistances.set(bestD, r * k);
+    cache.maybeClear();
+  }
+  return { queries: outQueries, indices: outIndices, distances: outDistances, emdEvaluations, boundEvaluations };
+}
+
+export interface WithinTask {
+  set: PackedSet;
+  index: SortedIndex;
+  /** Sorted positions start..end-1 are this chunk's first members of a pair. */
+  start: number;
+  end: number;
+  radiusAngstrom: number;
+}
+
+export interface WithinChunk {
+  i: Int32Array;
+  j: Int32Array;
+  distances: Float64Array;
+  emdEvaluations: number;
+  boundEvaluations: number;
+}
+
+/** All pairs with EMD <= radius whose lower sorted position lies in the chunk (i < j in the output). */
+export function withinChunk(task: WithinTask): WithinChunk {
+  const { set, index, start, end, radiusAngstrom } = task;
+  const { order, keys, columns } = index;
+  const dim = set.k;
+  const n = set.count;
+  const amd = set.amd;
+  const limit = widen(radiusAngstrom);
+  const outI: number[] = [];
+  const outJ: number[] = [];
+  const outD: number[] = [];
+  let emdEvaluations = 0;
+  let boundEvaluations = 0;
+  for (let p = start; p < end; p++) {
+    const a = order[p];
+    const key = keys[p];
+    for (let p2 = p + 1; p2 < n && keys[p2] - key <= limit; p2++) {
+      const b = order[p2];
+      boundEvaluations++;
+      if (bound(amd, a * dim, amd, b * dim, columns, dim, limit) > limit) continue;
+      emdEvaluations++;
+      const d = emdPacked(
+        set.rows,
+        set.weights,
+        set.rowStart[a],
+        set.rowStart[a + 1] - set.rowStart[a],
+        set.rows,
+        set.weights,
+        set.rowStart[b],
+        set.rowStart[b + 1] - set.rowStart[b],
+        dim,
+      );
+      if (d <= radiusAngstrom) {
+        outI.push(a < b ? a : b);
+        outJ.push(a < b ? b : a);
+        outD.push(d);
+      }
+    }
+  }
+  return { i: Int32Array.from(outI), j: Int32Array.from(outJ), distances: Float64Array.from(outD), emdEvaluations, boundEvaluations };
+}
+
+export interface MatrixTask {
+  set: PackedSet;
+  /** Rows start..end-1; row i holds the distances to j = i+1..n-1. */
+  start: number;
+  end: number;
+}
+
+/** Upper-triangle EMDs of rows start..end-1, row after row. */
+export function matrixChunk(task: MatrixTask): Float64Array {
+  const { set, start, end } = task;
+  const n = set.count;
+  const dim = set.k;
+  let len = 0;
+  for (let i = start; i < end; i++) len += n - 1 - i;
+  const out = new Float64Array(len);
+  let o = 0;
+  for (let i = start; i < end; i++) {
+    for (let j = i + 1; j < n; j++) {
+      out[o++] = emdPacked(
+        set.rows,
+        set.weights,
+        set.rowStart[i],
+        set.rowStart[i + 1] - set.rowStart[i],
+        set.rows,
+        set.weights,
+        set.rowStart[j],
+        set.rowStart[j + 1] - set.rowStart[j],
+        dim,
+      );
+    }
+  }
+  return out;
+}
+
+/** max_j |a_j - b_j| over the columns in `columns` order, returning as soon as it exceeds `limit`. */
+function bound(a: Float64Array, ao: number, b: Float64Array, bo: number, columns: Int32Array, dim: number, limit: number): number {
+  let max = 0;
+  for (let c = 0; c < dim; c++) {
+    const j = columns[c];
+    const d = Math.abs(a[ao + j] - b[bo + j]);
+    if (d > max) {
+      max = d;
+      if (max > limit) return max;
+    }
+  }
+  return max;
+}
+
+/** Insert (v, id) into the ascending list (vals, ids) of `size` entries capped at `cap`; returns the new size. */
+function insert(vals: Float64Array, ids: Int32Array, size: number, cap: number, v: number, id: number): number {
+  let s = size < cap ? size : cap - 1;
+  while (s > 0 && (vals[s - 1] > v || (vals[s - 1] === v && ids[s - 1] > id))) {
+    vals[s] = vals[s - 1];
+    ids[s] = ids[s - 1];
+    s--;
+  }
+  vals[s] = v;
+  ids[s] = id;
+  return size < cap ? size + 1 : cap;
+}
+
+function grow(a: Int32Array): Int32Array {
+  const b = new Int32Array(a.length * 2);
+  b.set(a);
+  return b;
+}
+
+/**
+ * EMDs already computed in this chunk, keyed by the pair of indices (open addressing, linear probing).
+ * Queries of a chunk are neighbours along the key column, so they share many candidates. Cached values are the
+ * same numbers a fresh computation gives (the EMD is solved in a canonical orientation), so results do not depend
+ * on the cache.
+ */
+class PairCache {
+  private mask = 4095;
+  private keyA = new Int32Array(4096).fill(-1);
+  private keyB = new Int32Array(4096);
+  private value = new Float64Array(4096);
+  private size = 0;
+
+  get(a: number, b: number): number {
+    let h = this.slot(a, b);
+    for (;;) {
+      const ka = this.keyA[h];
+      if (ka === -1) return -1;
+      if (ka === a && this.keyB[h] === b) return this.value[h];
+      h = (h + 1) & this.mask;
+    }
+  }
+
+  set(a: number, b: number, v: number): void {
+    if (2 * (this.size + 1) > this.mask + 1) this.rehash();
+    let h = this.slot(a, b);
+    while (this.keyA[h] !== -1) {
+      if (this.keyA[h] === a && this.keyB[h] === b) {
+        this.value[h] = v;
+        return;
+      }
+      h = (h + 1) & this.mask;
+    }
+    this.keyA[h] = a;
+    this.keyB[h] = b;
+    this.value[h] = v;
+    this.size++;
+  }
+
+  /** Keep memory bounded on long chunks. */
+  maybeClear(): void {
+    if (this.size > 1 << 20) {
+      this.keyA.fill(-1);
+      this.size = 0;
+    }
+  }
+
+  private slot(a: number, b: number): number {
+    return (Math.imul(a, 0x9e3779b1) ^ Math.imul(b + 0x632be5ab, 0x85ebca77)) >>> 0 & this.mask;
+  }
+
+  private rehash(): void {
+    const oldA = this.keyA;
+    const oldB = this.keyB;
+    const oldV = this.value;
+    const cap = (this.mask + 1) * 2;
+    this.mask = cap - 1;
+    this.keyA = new Int32Array(cap).fill(-1);
+    this.keyB = new Int32Array(cap);
+    this.value = new Float64Array(cap);
+    this.size = 0;
+    for (let h = 0; h < oldA.length; h++) if (oldA[h] !== -1) this.set(oldA[h], oldB[h], oldV[h]);
+  }
+}

@@ -1,0 +1,130 @@
+// Many PDDs packed into a few big typed arrays, plus the sorted AMD column that the neighbour search sweeps.
+// Packed once per call and handed to every worker (in SharedArrayBuffers, so nothing is copied per chunk).
+import type { Pdd } from '../types.js';
+import { checkPdd } from './emd.js';
+
+/** What the search needs of one structure. The AMD is optional: it is recomputed from the PDD (see `packItems`). */
+export interface MetricItem {
+  pdd: Pdd;
+  amd?: Float64Array;
+}
+
+export interface PackedSet {
+  k: number;
+  count: number;
+  /** count + 1 offsets: rows of item i are rowStart[i] .. rowStart[i+1]-1. */
+  rowStart: Int32Array;
+  /** All rows, row r at rows[r*k .. r*k+k). */
+  rows: Float64Array;
+  /** One weight per row, as given (the EMD renormalises). */
+  weights: Float64Array;
+  /** count*k AMD vectors, the weighted column means of each PDD with weights renormalised like the EMD does. */
+  amd: Float64Array;
+}
+
+/** Targets in the order of one AMD column, and the order in which to check columns when bounding. */
+export interface SortedIndex {
+  /** Item indices sorted by their key (AMD value in column `columns[0]`), ties by index. */
+  order: Int32Array;
+  /** Key of order[p] at position p. */
+  keys: Float64Array;
+  /** Sorted position of each item. */
+  position: Int32Array;
+  /** AMD columns by decreasing spread over the set: early exits in the bound come soonest in this order. */
+  columns: Int32Array;
+}
+
+/**
+ * Pack items for the search. Throws a clear message naming the item when a PDD cannot be used or depths differ.
+ * The AMD used for pruning is recomputed from each PDD (AMD_j = sum_i w_i PDD_ij, MATCH Commun. Math. Comput.
+ * Chem. 2022) so that the bound always matches the PDD the EMD sees, whatever AMD a caller passes along.
+ */
+export function packItems(items: readonly MetricItem[], shared: boolean, what = 'item'): PackedSet {
+  if (items.length === 0) return { k: 0, count: 0, rowStart: new Int32Array(1), rows: new Float64Array(0), weights: new Float64Array(0), amd: new Float64Array(0) };
+  const k = items[0].pdd.k;
+  let totalRows = 0;
+  for (let i = 0; i < items.length; i++) {
+    const p = items[i].pdd;
+    try {
+      checkPdd(p, `${what} ${i}`);
+    } catch (err) {
+      throw new Error(`${what} ${i}: ${(err as Error).message}`);
+    }
+    if (p.k !== k) throw new Error(`${what} ${i} has PDD depth k = ${p.k} but ${what} 0 has k = ${k}; all must share one k`);
+    totalRows += p.weights.length;
+  }
+  const rowStart = shared ? sharedInt32(items.length + 1) : new Int32Array(items.length + 1);
+  const rows = shared ? sharedFloat64(totalRows * k) : new Float64Array(totalRows * k);
+  const weights = shared ? sharedFloat64(totalRows) : new Float64Array(totalRows);
+  const amd = shared ? sharedFloat64(items.length * k) : new Float64Array(items.length * k);
+  let r = 0;
+  for (let i = 0; i < items.length; i++) {
+    const p = items[i].pdd;
+    const n = p.weights.length;
+    rowStart[i] = r;
+    rows.set(p.rows, r * k);
+    weights.set(p.weights, r);
+    let total = 0;
+    for (let t = 0; t < n; t++) if (p.weights[t] > 0) total += p.weights[t];
+    const out = i * k;
+    for (let t = 0; t < n; t++) {
+      const w = p.weights[t];
+      if (!(w > 0)) continue;
+      const wn = w / total;
+      for (let j = 0; j < k; j++) amd[out + j] += wn * p.rows[t * k + j];
+    }
+    r += n;
+  }
+  rowStart[items.length] = r;
+  return { k, count: items.length, rowStart, rows, weights, amd };
+}
+
+/** Sort a packed set by its most spread-out AMD column (a 1-D projection whose differences bound the EMD). */
+export function buildIndex(set: PackedSet, shared: boolean): SortedIndex {
+  const { k, count, amd } = set;
+  // Spread of each column: standard deviation over the set.
+  const spread = new Float64Array(k);
+  for (let j = 0; j < k; j++) {
+    let mean = 0;
+    for (let i = 0; i < count; i++) mean += amd[i * k + j];
+    mean /= Math.max(1, count);
+    let v = 0;
+    for (let i = 0; i < count; i++) {
+      const d = amd[i * k + j] - mean;
+      v += d * d;
+    }
+    // Negated so that an ascending sort gives decreasing spread.
+    spread[j] = -v;
+  }
+  const columns = shared ? sharedInt32(k) : new Int32Array(k);
+  for (let j = 0; j < k; j++) columns[j] = j;
+  sortByKeyPlain(columns, spread);
+  const key = columns[0] ?? 0;
+  const keyOf = new Float64Array(count);
+  for (let i = 0; i < count; i++) keyOf[i] = amd[i * k + key];
+  const order = shared ? sharedInt32(count) : new Int32Array(count);
+  for (let i = 0; i < count; i++) order[i] = i;
+  sortByKeyPlain(order, keyOf);
+  const keys = shared ? sharedFloat64(count) : new Float64Array(count);
+  const position = shared ? sharedInt32(count) : new Int32Array(count);
+  for (let p = 0; p < count; p++) {
+    keys[p] = keyOf[order[p]];
+    position[order[p]] = p;
+  }
+  return { order, keys, position, columns };
+}
+
+function sortByKeyPlain(idx: Int32Array, key: Float64Array): void {
+  // Called once per search: a plain comparator sort is fine here.
+  const arr = Array.from(idx);
+  arr.sort((a, b) => key[a] - key[b] || a - b);
+  idx.set(arr);
+}
+
+function sharedFloat64(n: number): Float64Array {
+  return new Float64Array(new SharedArrayBuffer(Math.max(1, n) * 8), 0, n);
+}
+
+function sharedInt32(n: number): Int32Array {
+  return new Int32Array(new SharedArrayBuffer(Math.max(1, n) * 4), 0, n);
+}
