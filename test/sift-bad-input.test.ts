@@ -1,0 +1,88 @@
+// Bad input in a sift run (issue 4, DESIGN.md "Bad input"): broken CIF blocks and a bad energies CSV are
+// reported per row and the run completes with exit code 0; input with nothing usable exits non-zero with one
+// line. Runs the real command line.
+import { describe, expect, it } from 'vitest';
+import { spawnSync } from 'node:child_process';
+import { existsSync, mkdtempSync, readFileSync, readdirSync, writeFileSync } from 'node:fs';
+import { tmpdir } from 'node:os';
+import { join } from 'node:path';
+import Papa from 'papaparse';
+import { generateLandscape } from '../src/demo/landscape.js';
+
+const cli = join(process.cwd(), 'src', 'cli.ts');
+const tsx = join(process.cwd(), 'node_modules', '.bin', 'tsx');
+const polysift = (args: string[]) => spawnSync(tsx, [cli, ...args], { encoding: 'utf8' });
+
+const gen = generateLandscape({ seed: 3, packings: 3, copiesPerPacking: 3, closePairs: 0 });
+const dir = mkdtempSync(join(tmpdir(), 'polysift-bad-'));
+
+// Three broken blocks: no cell, no atom sites, a unterminated quoted value.
+const broken = [
+  'data_nocell\nloop_\n_atom_site_label\n_atom_site_type_symbol\n_atom_site_fract_x\n_atom_site_fract_y\n_atom_site_fract_z\nC1 C 0.1 0.2 0.3\n',
+  'data_noatoms\n_cell_length_a 5\n_cell_length_b 6\n_cell_length_c 7\n_cell_angle_alpha 90\n_cell_angle_beta 90\n_cell_angle_gamma 90\n',
+  "data_garbled\n_cell_length_a 'five\n",
+].join('\n');
+writeFileSync(join(dir, 'run.cif'), `${gen.cif}\n${broken}`);
+// Energies: one unknown id, one repeated id with another value, one non-numeric value; one structure missing.
+const lines = gen.energiesCsv.trim().split('\n');
+const [header, ...rows] = lines;
+const missingId = gen.ids[1];
+const repeatedId = gen.ids[2];
+const nonNumericId = gen.ids[3];
+const energyRows = rows
+  .filter((r) => !r.startsWith(`${missingId},`))
+  .map((r) => (r.startsWith(`${nonNumericId},`) ? `${nonNumericId},n/a` : r));
+energyRows.push(`${repeatedId},-1.0`, 'not-a-structure,-50');
+writeFileSync(join(dir, 'energies.csv'), [header, ...energyRows].join('\n') + '\n');
+
+describe('sift with bad input', () => {
+  it('reports broken blocks and bad energy rows per row and completes', () => {
+    const out = join(dir, 'out');
+    const r = polysift(['sift', join(dir, 'run.cif'), '--energies', join(dir, 'energies.csv'), '--out', out, '--threads', '1', '--json']);
+    expect(r.stderr).not.toMatch(/at .*\.ts:\d+/); // no stack trace
+    expect(r.status).toBe(0);
+    const csv = Papa.parse<Record<string, string>>(readFileSync(join(out, 'structures.csv'), 'utf8'), { header: true, skipEmptyLines: true }).data;
+    // Every block exactly once, in input order.
+    expect(csv.map((x) => x.id)).toEqual([...gen.ids, 'nocell', 'noatoms', 'garbled']);
+    const by = new Map(csv.map((x) => [x.id, x]));
+    expect(by.get('nocell')!.status).toBe('rejected');
+    expect(by.get('nocell')!.reason).toMatch(/_cell_length_a/);
+    expect(by.get('noatoms')!.status).toBe('rejected');
+    expect(by.get('noatoms')!.reason).toMatch(/atom/);
+    expect(by.get('garbled')!.status).toBe('rejected');
+    expect(by.get('garbled')!.reason).toMatch(/line \d+/);
+    expect(by.get(missingId)!.reason).toMatch(/no energy: id not found in .*energies.csv/);
+    expect(by.get(missingId)!.energy).toBe('');
+    expect(by.get(repeatedId)!.reason).toMatch(/different energies/);
+    expect(by.get(nonNumericId)!.reason).toMatch(/'n\/a' is not a number/);
+    // Summary on stderr, issues per row in energy-issues.csv.
+    expect(r.stderr).toMatch(/3 structure\(s\) have no energy/);
+    expect(r.stderr).toMatch(/1 id\(s\) in .*energies.csv match no structure: not-a-structure/);
+    const issues = readFileSync(join(out, 'energy-issues.csv'), 'utf8');
+    expect(issues).toMatch(/not-a-structure,id matches no structure/);
+    const summary = JSON.parse(r.stdout);
+    const c = summary.counts;
+    expect(c.rejected).toBe(3);
+    expect(c.kept + c.duplicate + c.rejected + c.outsideWindow).toBe(c.input);
+    expect(c.input).toBe(gen.ids.length + 3);
+  }, 30000);
+
+  it('exits non-zero with one line when nothing is usable, and writes nothing', () => {
+    writeFileSync(join(dir, 'only-bad.cif'), broken);
+    const out = join(dir, 'out-bad');
+    const r = polysift(['sift', join(dir, 'only-bad.cif'), '--out', out, '--quiet']);
+    expect(r.status).not.toBe(0);
+    expect(r.stderr.trim().split('\n')).toHaveLength(1);
+    expect(r.stderr).toMatch(/^polysift: nothing usable: all 3 block\(s\) were rejected \(first: .*nocell/);
+    expect(existsSync(join(out, 'structures.csv'))).toBe(false);
+  }, 30000);
+
+  it('exits non-zero with one line for an energies file without the energy column', () => {
+    writeFileSync(join(dir, 'nocol.csv'), 'id,value\nx,1\n');
+    const r = polysift(['sift', join(dir, 'run.cif'), '--energies', join(dir, 'nocol.csv'), '--out', join(dir, 'o3'), '--quiet']);
+    expect(r.status).not.toBe(0);
+    expect(r.stderr.trim().split('\n')).toHaveLength(1);
+    expect(r.stderr).toMatch(/no column 'energy'.*--energy-column/);
+    expect(readdirSync(dir)).not.toContain('o3');
+  }, 30000);
+});
