@@ -241,3 +241,52 @@ describe('molecules, Z and Z\'', () => {
     expect(notes).toMatch(/_exptl_crystal_density_diffrn says 1/);
   });
 });
+
+describe('bond graph across faces: rings, chains and overlaps', () => {
+  it('keeps a six-ring cut by three cell faces as one finite molecule', () => {
+    // Regular hexagon of C, radius 1.39 Å (the benzene C-C distance, common practice), centred on a cell corner.
+    const cell = cubic(9);
+    const sites: SiteSpec[] = Array.from({ length: 6 }, (_, k) => {
+      const t = (k * Math.PI) / 3;
+      return { label: `C${k + 1}`, element: 'C', frac: [(1.39 * Math.cos(t)) / 9, (1.39 * Math.sin(t)) / 9, 0.05 * ((k % 2) * 2 - 1) / 9] };
+    });
+    const f = crystalFacts(makeRecord('ring', cell, ['x,y,z'], sites));
+    expect(f.z).toBe(1);
+    expect(f.formulas).toEqual(['C6']);
+    expect(f.notes.join(' ')).not.toMatch(/extend/);
+  });
+  it('recognises a chain that bonds to its own translate and counts formula units', () => {
+    // C and O alternating along a = 3 Å: C-O 1.5 Å < 0.76 + 0.66 + 0.4 Å, so the chain is infinite.
+    const cell: CellParams = { a: 3, b: 10, c: 10, alpha: 90, beta: 90, gamma: 90 };
+    const f = crystalFacts(makeRecord('chain', cell, ['x,y,z'], [
+      { label: 'C1', element: 'C', frac: [0, 0.5, 0.5] },
+      { label: 'O1', element: 'O', frac: [0.5, 0.5, 0.5] },
+    ]));
+    expect(f.z).toBe(1);
+    expect(f.formulas).toEqual(['CO']);
+    expect(f.notes.join(' ')).toMatch(/bonds extend through the whole crystal/);
+  });
+  it('names atoms that overlap their symmetry images (disorder given full occupancy)', () => {
+    // A site 0.2 Å from a two-fold axis along c: it and its image are 0.4 Å apart.
+    const cell: CellParams = { a: 10, b: 10, c: 10, alpha: 90, beta: 90, gamma: 90 };
+    const f = crystalFacts(makeRecord('overlap', cell, ['x,y,z', '-x,-y,z'], [{ label: 'N1', element: 'N', frac: [0.02, 0, 0.3] }]));
+    expect(f.atomsPerCell).toBe(2);
+    expect(f.notes.join(' ')).toMatch(/1 pair\(s\) of atoms closer than 0\.5 Å \(shortest 0\.400 Å, N1 and an image of itself\)/);
+  });
+  it('counts both alternatives of a disordered site that share a position in the density', () => {
+    const cell = cubic(10);
+    const r = makeRecord('alt', cell, ['x,y,z'], [
+      { label: 'O1A', element: 'O', frac: [0.5, 0.5, 0.5], occupancy: 0.6, group: '1' },
+      { label: 'O1B', element: 'O', frac: [0.502, 0.5, 0.5], occupancy: 0.4, group: '2' },
+    ]);
+    const f = crystalFacts(r);
+    expect(f.densityGPerCm3).toBeCloseTo(15.999 / (6.02214076e23 * 1000e-24), 10);
+    expect(f.atomsPerCell).toBe(1);
+  });
+  it('checks the sites against _chemical_formula_sum x _cell_formula_units_Z when no density is stated', () => {
+    const cell = cubic(10);
+    const text = "data_fz\n_chemical_formula_sum 'C2 O'\n_cell_formula_units_Z 1\n";
+    const f = crystalFacts(makeRecord('fz', cell, ['x,y,z'], [{ label: 'C1', element: 'C', frac: [0.5, 0.5, 0.5] }], { text }));
+    expect(f.notes.join(' ')).toMatch(/the sites give 0\.020 g\/cm³ but _chemical_formula_sum x _cell_formula_units_Z \(C2 O x 1\) gives 0\.066 g\/cm³/);
+  });
+});

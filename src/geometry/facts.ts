@@ -7,7 +7,7 @@ import type { CrystalFacts, CrystalRecord } from '../types.js';
 import { cellVolume } from './cell.js';
 import { selectOrderedSites } from './disorder.js';
 import { atomicNumber, atomicWeight } from './elements.js';
-import { findMolecules } from './molecules.js';
+import { findMolecules, OVERLAP_ANGSTROM } from './molecules.js';
 import { expandSites } from './periodic-set.js';
 
 const AVOGADRO_PER_MOL = 6.02214076e23;
@@ -40,11 +40,20 @@ export function crystalFacts(record: CrystalRecord): CrystalFacts {
   notes.push(...ordered.notes);
   const molecules = findMolecules(ordered);
   notes.push(...molecules.notes);
+  if (molecules.shortestOverlap !== null) {
+    const o = molecules.shortestOverlap;
+    const a = record.sites[ordered.siteIndex[o.i]!]!.label;
+    const b = record.sites[ordered.siteIndex[o.j]!]!.label;
+    notes.push(
+      `${molecules.overlaps} pair(s) of atoms closer than ${OVERLAP_ANGSTROM} Å (shortest ${o.distanceAngstrom.toFixed(3)} Å, ${a} and ${a === b ? 'an image of itself' : b}): ` +
+        'overlapping copies, as when disorder across a symmetry element is given full occupancies; atoms, density and Z count every copy',
+    );
+  }
   const opsKnown = record.opsOrigin !== 'identity';
   const nOps = Math.max(1, record.ops.length);
   const zPrime = opsKnown ? molecules.z / nOps : null;
 
-  notes.push(...consistencyNotes(record, volumeA3, densityGPerCm3, massPerCell, hydrogenMass, molecules.z));
+  notes.push(...consistencyNotes(record, volumeA3, densityGPerCm3, massPerCell, hydrogenMass, molecules.z, all.duplicateSites));
   return {
     volumeA3,
     atomsPerCell: ordered.count,
@@ -62,6 +71,7 @@ export function crystalFacts(record: CrystalRecord): CrystalFacts {
  */
 function consistencyNotes(
   record: CrystalRecord, volumeA3: number, densityGPerCm3: number, massPerCell: number, hydrogenMass: number, z: number,
+  duplicateSites: number,
 ): string[] {
   const notes: string[] = [];
   const text = record.text;
@@ -76,9 +86,21 @@ function consistencyNotes(
     notes.push(`_chemical_formula_sum (${formula}) has hydrogen but no hydrogen sites are listed: the density leaves out their mass`);
   }
   const declaredDensity = numberItem(text, '_exptl_crystal_density_diffrn');
+  const zFormulaUnits = numberItem(text, '_cell_formula_units_z');
+  if (declaredDensity === null && composition !== null && zFormulaUnits !== null && zFormulaUnits > 0) {
+    // No stated density: the formula and Z of the file still give one to check the sites against.
+    let formulaMass = 0;
+    for (const [zc, n] of composition) formulaMass += n * atomicWeight(zc);
+    const fromFormula = (formulaMass * zFormulaUnits) / (AVOGADRO_PER_MOL * volumeA3 * CUBIC_ANGSTROM_IN_CM3);
+    if (Math.abs(fromFormula - densityGPerCm3) > AGREEMENT_FRACTION * fromFormula) {
+      notes.push(
+        `the sites give ${densityGPerCm3.toFixed(3)} g/cm³ but _chemical_formula_sum x _cell_formula_units_Z (${formula} x ${zFormulaUnits}) gives ${fromFormula.toFixed(3)} g/cm³`,
+      );
+    }
+  }
   if (declaredDensity !== null && Math.abs(declaredDensity - densityGPerCm3) > AGREEMENT_FRACTION * declaredDensity) {
-    let why = 'reason unknown';
-    const zDeclared = numberItem(text, '_cell_formula_units_z');
+    let why = '';
+    const zDeclared = zFormulaUnits;
     if (composition !== null && zDeclared !== null) {
       let formulaMass = 0;
       for (const [zc, n] of composition) formulaMass += n * atomicWeight(zc);
@@ -93,12 +115,18 @@ function consistencyNotes(
       }
     } else if (!hasHydrogenSites && hydrogenMass === 0) {
       why = 'no hydrogen sites are listed';
+    } else {
+      why = 'the file gives no formula and Z to trace it to (occupancies or missing atoms are the usual causes)';
     }
+    if (duplicateSites > 0) why += `; ${duplicateSites} listed site(s) are symmetry copies of others and count once here`;
     notes.push(`_exptl_crystal_density_diffrn says ${declaredDensity} g/cm³, computed ${densityGPerCm3.toFixed(3)} g/cm³: ${why}`);
   }
-  const zDeclared = numberItem(text, '_cell_formula_units_z');
-  if (zDeclared !== null && Number.isInteger(zDeclared) && zDeclared !== z && zDeclared > 0) {
-    notes.push(`_cell_formula_units_Z says ${zDeclared}, the bond graph gives ${z} molecules per cell`);
+  if (zFormulaUnits !== null && Number.isInteger(zFormulaUnits) && zFormulaUnits !== z && zFormulaUnits > 0) {
+    const perUnit = z / zFormulaUnits;
+    notes.push(
+      `_cell_formula_units_Z says ${zFormulaUnits}, the bond graph gives ${z} molecules per cell` +
+        (Number.isInteger(perUnit) && perUnit > 1 ? ` (${perUnit} molecules per formula unit, as in a co-crystal, salt or solvate)` : ''),
+    );
   }
   return notes;
 }

@@ -7,6 +7,13 @@ import { planeSpacings } from './cell.js';
 import { covalentRadiusAngstrom, elementSymbol } from './elements.js';
 
 export const BOND_SLACK_ANGSTROM = 0.4;
+/**
+ * Two atoms closer than this are overlapping copies, not a bond: the shortest bond in any crystal is
+ * H-H at 0.74 Å, and X-ray O-H / N-H distances stay above about 0.7 Å (common practice). Overlaps
+ * mean disorder across a symmetry element modelled with full occupancies, or operations that do not
+ * belong to the coordinates.
+ */
+export const OVERLAP_ANGSTROM = 0.5;
 /** Radius used for elements the radius table does not cover (Z > 96); common practice, said in a note. */
 const FALLBACK_RADIUS_ANGSTROM = 1.5;
 
@@ -29,6 +36,10 @@ export interface Molecules {
   z: number;
   /** Distinct formulas, in order of first appearance. */
   formulas: string[];
+  /** Pairs of atoms closer than OVERLAP_ANGSTROM (each pair once, images included). */
+  overlaps: number;
+  /** Shortest such distance (Å) and one pair that has it (point indices), when overlaps > 0. */
+  shortestOverlap: { distanceAngstrom: number; i: number; j: number } | null;
   notes: string[];
 }
 
@@ -54,6 +65,11 @@ export function findMolecules(input: MoleculeInput, slackAngstrom = BOND_SLACK_A
   const reach = spacing.map((s) => Math.ceil(cutoffMax / s)) as [number, number, number];
 
   const uf = new OffsetUnionFind(m);
+  const overlap2 = OVERLAP_ANGSTROM * OVERLAP_ANGSTROM;
+  let overlaps = 0;
+  let shortest2 = Infinity;
+  let shortI = -1;
+  let shortJ = -1;
   for (let i = 0; i < m; i++) {
     const fi0 = frac[3 * i]!, fi1 = frac[3 * i + 1]!, fi2 = frac[3 * i + 2]!;
     for (let j = i; j < m; j++) {
@@ -69,7 +85,18 @@ export function findMolecules(input: MoleculeInput, slackAngstrom = BOND_SLACK_A
             const x = e0 * basis[0]! + e1 * basis[3]! + e2 * basis[6]!;
             const y = e0 * basis[1]! + e1 * basis[4]! + e2 * basis[7]!;
             const z = e0 * basis[2]! + e1 * basis[5]! + e2 * basis[8]!;
-            if (x * x + y * y + z * z < cut2) uf.bond(i, j, n0, n1, n2);
+            const dist2 = x * x + y * y + z * z;
+            if (dist2 < cut2) {
+              uf.bond(i, j, n0, n1, n2);
+              if (dist2 < overlap2) {
+                overlaps++;
+                if (dist2 < shortest2) {
+                  shortest2 = dist2;
+                  shortI = i;
+                  shortJ = j;
+                }
+              }
+            }
           }
         }
       }
@@ -121,7 +148,8 @@ export function findMolecules(input: MoleculeInput, slackAngstrom = BOND_SLACK_A
         : `${nExtended} bonded component(s) extend through the crystal beside ${counts.length - nExtended} discrete molecule(s): Z adds their formula units to the molecules`,
     );
   }
-  return { component, extended, componentFormulas, z, formulas, notes };
+  const shortestOverlap = overlaps > 0 ? { distanceAngstrom: Math.sqrt(shortest2), i: shortI, j: shortJ } : null;
+  return { component, extended, componentFormulas, z, formulas, overlaps, shortestOverlap, notes };
 }
 
 /**

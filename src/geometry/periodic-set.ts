@@ -40,6 +40,8 @@ export interface ExpandedSites {
   orbitStart: Int32Array;
   /** Per orbit: number of distinct points. */
   orbitSize: Int32Array;
+  /** Listed sites left out because they coincide with an earlier site. */
+  duplicateSites: number;
   notes: string[];
 }
 
@@ -48,7 +50,8 @@ export interface ExpandOptions {
   /**
    * Two listed sites of different elements on one position (mixed occupancy): 'keep-first' keeps the
    * site listed first (a point set has one atom per point), 'keep-all' keeps both (for occupancy-weighted
-   * mass). Sites of the same element on one position are always merged.
+   * mass). Sites of the same element on one position are merged, except with 'keep-all' when their
+   * occupancies add up to at most 1 (alternative atoms of a disordered site).
    */
   sharedPositions?: 'keep-first' | 'keep-all';
 }
@@ -94,7 +97,9 @@ export function expandSites(record: CrystalRecord, siteIndices: number[], option
     const hit = nearestWithin(basis, frac, 0, count, f0, f1, f2, tol2);
     if (hit >= 0) {
       const other = record.sites[siteOf[hit]!]!;
-      if (z[hit] === zi) {
+      // For occupancy-weighted mass, partial sites sharing a position are alternatives: keep both.
+      const alternatives = keepAllShared && occ[hit]! + site.occupancy <= 1 + 0.01;
+      if (z[hit] === zi && !alternatives) {
         duplicateNotes.push(`site ${site.label} is a symmetry copy of site ${other.label}; merged`);
         continue;
       }
@@ -152,6 +157,7 @@ export function expandSites(record: CrystalRecord, siteIndices: number[], option
     siteIndex: siteOf.slice(0, count),
     orbitStart: Int32Array.from(orbitStart),
     orbitSize: Int32Array.from(orbitSize),
+    duplicateSites: duplicateNotes.length,
     notes,
   };
 }
