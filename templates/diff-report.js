@@ -111,8 +111,8 @@
       hoverinfo: 'text', marker: { size: 8, color: ranked.map(function (p) { return p.emdAngstrom; }), cmin: bounds[0], cmax: bounds[bounds.length - 1],
         colorscale: data.pairClasses.colourscale, line: { width: 0.5, color: '#1d2430' } } },
   ], P.baseLayout({
-    xaxis: { title: { text: 'Energy rank in A' }, rangemode: 'tozero' },
-    yaxis: { title: { text: 'Energy rank in B' }, rangemode: 'tozero', scaleanchor: 'x' },
+    xaxis: { title: { text: 'Energy rank in A' }, range: [0, maxRank + 1], zeroline: false },
+    yaxis: { title: { text: 'Energy rank in B' }, range: [0, maxRank + 1], zeroline: false },
   }), P.plotConfig).then(function () { P.markReady('rank'); });
 
   var shifted = d.pairs.filter(function (p) { return p.energyRelShift !== null; });
