@@ -2,6 +2,7 @@
 // writers: parse options, run, write every output file atomically, print a summary.
 import type { Command } from 'commander';
 import { join } from 'node:path';
+import { writeSync } from 'node:fs';
 import { sift, DEFAULT_K, DEFAULT_MIN_FAMILY_SIZE, DEFAULT_NEIGHBOURS, DEFAULT_TOLERANCE_ANGSTROM, type SiftOptions, type SiftRun } from '../landscape/sift.js';
 import { siftFiles } from '../landscape/sift-files.js';
 import { writeFilesAtomically, removePendingFiles } from '../io/outputs.js';
@@ -84,7 +85,8 @@ export function registerSift(program: Command): void {
       // Ctrl-C: files are staged under temporary names and renamed together, so only temporaries can be left.
       const onInterrupt = () => {
         removePendingFiles();
-        process.stderr.write('polysift: interrupted; output files were left as they were\n');
+        // Written synchronously: an asynchronous write to a pipe would be lost at exit.
+        writeSync(2, 'polysift: interrupted; output files were left as they were\n');
         process.exit(130);
       };
       process.on('SIGINT', onInterrupt);
