@@ -13,10 +13,12 @@
     return JSON.parse(node.textContent);
   }
 
-  /** Text for plot hover labels and annotations: the library decodes entities and reads tags. */
+  /** Text for plot hover labels, legends and annotations: the library reads a few tags and decodes
+   * entities in them, so markup characters become entities it decodes back to text (it does not know
+   * &quot;, hence the numeric forms for quotes). */
   function escapeForPlot(text) {
     return String(text).replace(/[&<>"']/g, function (c) {
-      return c === '&' ? '&amp;' : c === '<' ? '&lt;' : c === '>' ? '&gt;' : c === '"' ? '&quot;' : '&#39;';
+      return c === '&' ? '&amp;' : c === '<' ? '&lt;' : c === '>' ? '&gt;' : c === '"' ? '&#34;' : '&#39;';
     });
   }
 
@@ -141,7 +143,7 @@
   /**
    * A sortable, filterable, paged table over items (numbers). Header buttons sort (click, Enter, Space;
    * aria-sort tells the order); rows are focusable: Enter or Space activates, arrow keys move.
-   *   opts.table, opts.columns [{label, numeric, value(item), text(item), cell(item) optional}],
+   *   opts.table, opts.columns [{label, numeric, wrap, value(item), text(item), cell(item) optional}],
    *   opts.items, opts.pageSize, opts.filterInput, opts.filterText(item), opts.countEl,
    *   opts.prevButton, opts.nextButton, opts.pageEl, opts.onActivate(item), opts.rowLabel(item)
    */
@@ -231,7 +233,7 @@
         if (opts.rowLabel) tr.setAttribute('aria-label', opts.rowLabel(it));
       }
       columns.forEach(function (col) {
-        var td = el('td', { className: col.numeric ? 'ps-num' : null });
+        var td = el('td', { className: col.numeric ? 'ps-num' : col.wrap ? 'ps-wrap' : null });
         if (col.cell) append(td, col.cell(it));
         else td.textContent = col.text(it);
         tr.appendChild(td);

@@ -284,7 +284,7 @@
         el('td', { className: 'ps-num' }, P.fmtDistance(S.distanceToKept[j])),
         el('td', { className: 'ps-num' }, P.fmt(S.energyRel[j], 3)),
         el('td', { className: 'ps-num' }, P.fmt(S.density[j], 4)),
-        el('td', null, source(j) + ' (line ' + S.line[j] + ')')));
+        el('td', { className: 'ps-wrap' }, source(j) + ' (line ' + S.line[j] + ')')));
     });
     if (mem.length > 500) mbody.appendChild(el('tr', null, el('td', { colspan: 5 }, '… ' + (mem.length - 500) + ' more (all are in structures.csv)')));
     var notes = P.clear(document.getElementById('panel-notes'));
@@ -408,7 +408,7 @@
     var shapes = [], annotations = [];
     if (tolLog > -Infinity) {
       shapes.push({ type: 'line', x0: tolLog, x1: tolLog, yref: 'paper', y0: 0, y1: 1, line: { color: '#d55e00', width: 2, dash: 'dash' } });
-      annotations.push({ x: tolLog, yref: 'paper', y: 1, text: 'tolerance ' + P.fmtDistance(tol) + ' Å', showarrow: false, xanchor: 'left', yanchor: 'top', font: { color: '#a34400', size: 11 } });
+      annotations.push({ x: tolLog, yref: 'paper', y: 1, text: 'tolerance ' + tol + ' Å', showarrow: false, xanchor: 'left', yanchor: 'top', font: { color: '#a34400', size: 11 } });
     }
     Plotly.newPlot(div, [{ type: 'bar', x: xs, y: h.counts, width: widths, text: text, hoverinfo: 'text', textposition: 'none', marker: { color: colours } }],
       P.baseLayout({
@@ -474,9 +474,9 @@
       pageSize: 50,
       columns: [
         { label: 'Id', value: function (i) { return S.id[i]; }, text: function (i) { return S.id[i]; } },
-        { label: 'Source', value: function (i) { return source(i); }, text: function (i) { return source(i); } },
+        { label: 'Source', wrap: true, value: function (i) { return source(i); }, text: function (i) { return source(i); } },
         { label: 'Line', numeric: true, value: function (i) { return S.line[i]; }, text: function (i) { return String(S.line[i]); } },
-        { label: 'Reason', value: function (i) { return S.reason[i]; }, text: function (i) { return S.reason[i]; } },
+        { label: 'Reason', wrap: true, value: function (i) { return S.reason[i]; }, text: function (i) { return S.reason[i]; } },
       ],
       prevButton: document.getElementById('rejected-prev'),
       nextButton: document.getElementById('rejected-next'),

@@ -11,7 +11,7 @@ import { buildEdgeClasses, buildSiftPageData, edgeClassOf, EDGE_CLASSES } from '
 import { renderSiftReport, LANDSCAPE_CAUTION } from '../src/report/sift-report.js';
 import { plotlyBundlePath, readPlotlyBundle } from '../src/report/assets.js';
 import { PAGE_DATA_ID } from '../src/report/page.js';
-import { syntheticLandscape } from './helpers/synthetic-landscape.js';
+import { renameStructures, syntheticLandscape } from './helpers/synthetic-landscape.js';
 
 const HOSTILE = [
   'x</script><script>alert(1)</script>',
@@ -189,11 +189,10 @@ describe('page data of the sift report', () => {
 });
 
 describe('the report HTML', () => {
-  const land = syntheticLandscape({
-    kept: 60,
-    seed: 9,
-    names: HOSTILE.map((h, i) => ({ at: i, id: h, block: `blk-${h}`, file: `dir/${h}.cif` })),
-  });
+  const land = renameStructures(
+    syntheticLandscape({ kept: 60, seed: 9 }),
+    HOSTILE.map((h, i) => ({ at: i, id: h, block: `blk-${h}`, file: `dir/${h}.cif` })),
+  );
   const html = renderSiftReport(land, { title: 'Run <b>A</b> & "B"' });
 
   it('loads nothing from outside the file: no src or href attributes, no URL schemes that fetch', () => {

@@ -70,7 +70,8 @@ export async function openFile(
     watch.dialogs.push(`${d.type()}: ${d.message()}`);
     void d.dismiss();
   });
-  await page.goto(url, { waitUntil: 'load' });
-  if (opts.waitForReady !== false) await page.waitForFunction(() => (window as unknown as { polysiftReady?: boolean }).polysiftReady === true, null, { timeout: 60_000 });
+  // Generous limits: parsing the plotting library alone takes many seconds on a busy 2-core machine.
+  await page.goto(url, { waitUntil: 'load', timeout: 120_000 });
+  if (opts.waitForReady !== false) await page.waitForFunction(() => (window as unknown as { polysiftReady?: boolean }).polysiftReady === true, null, { timeout: 120_000 });
   return watch;
 }

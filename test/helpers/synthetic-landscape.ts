@@ -20,8 +20,6 @@ export interface SyntheticOptions {
   /** AMD length (PDD depth k). */
   k?: number;
   seed?: number;
-  /** Overrides for ids and block names of given input positions (to test hostile strings). */
-  names?: Array<{ at: number; id?: string; block?: string; file?: string; spaceGroup?: string }>;
   /** Leave out the convergence curve. */
   noConvergence?: boolean;
 }
@@ -166,20 +164,6 @@ export function syntheticLandscape(opts: SyntheticOptions): Landscape {
   for (const r of rows) {
     if (r.nearestIndex !== null) r.nearest = rows[r.nearestIndex]!.id;
   }
-  for (const o of opts.names ?? []) {
-    const r = rows[o.at];
-    if (!r) throw new Error(`syntheticLandscape: no structure at ${o.at}`);
-    if (o.id !== undefined) r.id = o.id;
-    if (o.block !== undefined) r.block = o.block;
-    if (o.file !== undefined) r.file = o.file;
-    if (o.spaceGroup !== undefined) r.spaceGroup = o.spaceGroup;
-    r.source = `${r.file}#${r.block}`;
-  }
-  for (const r of rows) {
-    if (r.nearestIndex !== null) r.nearest = rows[r.nearestIndex]!.id;
-    if (r.status === 'duplicate' && r.keptIndex !== null) r.duplicateOf = rows[r.keptIndex]!.id;
-  }
-
   // Kept list, lowest energy first.
   const keptGen = Array.from({ length: nKept }, (_, g) => g).sort((a, b) => eRel[a]! - eRel[b]! || keptAt[a]! - keptAt[b]!);
   const kept = keptGen.map((g) => keptAt[g]!);
@@ -230,7 +214,7 @@ export function syntheticLandscape(opts: SyntheticOptions): Landscape {
   const half = points[Math.floor(points.length / 2)]!.counts[0]!;
   const stillGrowing = counts[0]! > half;
 
-  return {
+  const land: Landscape = {
     format: 'polysift-landscape',
     formatVersion: 1,
     tool: { name: 'polysift', version: '0.1.0' },
@@ -265,6 +249,37 @@ export function syntheticLandscape(opts: SyntheticOptions): Landscape {
           stillGrowing,
         },
   };
+  return land;
+}
+
+export interface NameOverride {
+  /** Structure index. */
+  at: number;
+  id?: string;
+  block?: string;
+  file?: string;
+  spaceGroup?: string;
+  reason?: string;
+}
+
+/** Give chosen structures other strings (hostile ids, block and file names), keeping every reference consistent. */
+export function renameStructures(land: Landscape, overrides: NameOverride[]): Landscape {
+  const rows = land.structures;
+  for (const o of overrides) {
+    const r = rows[o.at];
+    if (!r) throw new Error(`renameStructures: no structure at ${o.at}`);
+    if (o.id !== undefined) r.id = o.id;
+    if (o.block !== undefined) r.block = o.block;
+    if (o.file !== undefined) r.file = o.file;
+    if (o.spaceGroup !== undefined) r.spaceGroup = o.spaceGroup;
+    if (o.reason !== undefined) r.reason = o.reason;
+    r.source = `${r.file}#${r.block}`;
+  }
+  for (const r of rows) {
+    if (r.nearestIndex !== null) r.nearest = rows[r.nearestIndex]!.id;
+    if (r.status === 'duplicate' && r.keptIndex !== null) r.duplicateOf = rows[r.keptIndex]!.id;
+  }
+  return land;
 }
 
 // Small deterministic generators (mulberry32: a common-practice 32-bit PRNG; Box–Muller for normals).

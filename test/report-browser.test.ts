@@ -1,0 +1,209 @@
+// The sift report in headless Chromium (Debian's /usr/bin/chromium via playwright-core), opened from
+// file:// with every network request blocked: it loads cleanly, the landscape holds one marker per kept
+// structure, a click on a marker opens its panel, the table sorts, filters and is keyboard-operable.
+// One browser and one page load for the whole file (page loads dominate the time on a busy machine).
+import { afterAll, beforeAll, describe, expect, it } from 'vitest';
+import { mkdirSync, mkdtempSync, writeFileSync } from 'node:fs';
+import { tmpdir } from 'node:os';
+import { join } from 'node:path';
+import type { Browser } from 'playwright-core';
+import { renderSiftReport } from '../src/report/sift-report.js';
+import type { Landscape } from '../src/landscape/schema.js';
+import { syntheticLandscape } from './helpers/synthetic-landscape.js';
+import { launchChromium, openFile, type PageWatch } from './helpers/browser.js';
+
+const SCREENS = join(process.cwd(), 'reports', 'test-screens');
+
+interface ReportGlobals {
+  polysiftReport: { traces: { kept: number; duplicates: number; highlight: number }; selected: number | null };
+}
+
+describe('the sift report in a browser', () => {
+  let browser: Browser;
+  let w: PageWatch;
+  let land: Landscape;
+
+  beforeAll(async () => {
+    land = syntheticLandscape({ kept: 250, seed: 11 });
+    const dir = mkdtempSync(join(tmpdir(), 'polysift-report-'));
+    const file = join(dir, 'report.html');
+    writeFileSync(file, renderSiftReport(land, { title: 'Synthetic test landscape' }));
+    browser = await launchChromium();
+    w = await openFile(browser, file);
+  });
+
+  afterAll(async () => {
+    await browser?.close();
+  });
+
+  it('loads from file:// with no console errors, no failed requests and no request but the file itself', async () => {
+    expect(w.consoleErrors).toEqual([]);
+    expect(w.pageErrors).toEqual([]);
+    expect(w.failed).toEqual([]);
+    expect(w.blocked).toEqual([]);
+    expect(w.requests).toEqual([w.url]);
+    mkdirSync(SCREENS, { recursive: true });
+    await w.page.screenshot({ path: join(SCREENS, 'landscape.png') });
+    await w.page.screenshot({ path: join(SCREENS, 'report-full.png'), fullPage: true });
+  });
+
+  it('the landscape plot holds one marker per kept structure at its density and relative energy', async () => {
+    const plotted = await w.page.evaluate(() => {
+      const g = window as unknown as ReportGlobals;
+      const gd = document.getElementById('landscape-plot') as unknown as { data: Array<{ x: number[]; y: number[] }> };
+      const t = gd.data[g.polysiftReport.traces.kept]!;
+      return { x: t.x, y: t.y };
+    });
+    expect(plotted.x.length).toBe(land.counts.kept);
+    expect(plotted.x.length).toBe(land.kept.length);
+    land.kept.forEach((k, p) => {
+      expect(plotted.x[p]).toBeCloseTo(land.structures[k]!.densityGPerCm3!, 5);
+      expect(plotted.y[p]).toBeCloseTo(land.structures[k]!.energyRel!, 4);
+    });
+  });
+
+  it('a real mouse click on a marker opens that structure in the panel and selects its table row', async () => {
+    // The kept marker farthest (in pixels) from every other marker, so that the click cannot hit another one.
+    const target = await w.page.evaluate(() => {
+      const g = window as unknown as ReportGlobals;
+      const gd = document.getElementById('landscape-plot') as unknown as {
+        data: Array<{ x: number[]; y: number[] }>;
+        _fullLayout: { xaxis: { l2p(v: number): number; _offset: number }; yaxis: { l2p(v: number): number; _offset: number } };
+        getBoundingClientRect(): DOMRect;
+      };
+      const t = gd.data[g.polysiftReport.traces.kept]!;
+      const xa = gd._fullLayout.xaxis, ya = gd._fullLayout.yaxis;
+      const box = gd.getBoundingClientRect();
+      const px = t.x.map((v) => box.left + xa._offset + xa.l2p(v));
+      const py = t.y.map((v) => box.top + ya._offset + ya.l2p(v));
+      let best = 0, bestGap = -1;
+      for (let i = 0; i < px.length; i++) {
+        let gap = Infinity;
+        for (let j = 0; j < px.length; j++) if (j !== i) gap = Math.min(gap, Math.hypot(px[i]! - px[j]!, py[i]! - py[j]!));
+        if (gap > bestGap) { bestGap = gap; best = i; }
+      }
+      return { point: best, x: px[best]!, y: py[best]!, gap: bestGap };
+    });
+    expect(target.gap).toBeGreaterThan(4);
+    const idx = land.kept[target.point]!;
+    const id = land.structures[idx]!.id;
+    await w.page.locator('#landscape-plot').scrollIntoViewIfNeeded();
+    const again = await w.page.evaluate(() => document.getElementById('landscape-plot')!.getBoundingClientRect().top);
+    expect(again).toBeGreaterThanOrEqual(0);
+    // Positions were measured before scrolling: measure the marker again in the current viewport.
+    const pos = await w.page.evaluate((p) => {
+      const gd = document.getElementById('landscape-plot') as unknown as {
+        data: Array<{ x: number[]; y: number[] }>;
+        _fullLayout: { xaxis: { l2p(v: number): number; _offset: number }; yaxis: { l2p(v: number): number; _offset: number } };
+        getBoundingClientRect(): DOMRect;
+      };
+      const g = window as unknown as ReportGlobals;
+      const t = gd.data[g.polysiftReport.traces.kept]!;
+      const box = gd.getBoundingClientRect();
+      return { x: box.left + gd._fullLayout.xaxis._offset + gd._fullLayout.xaxis.l2p(t.x[p]!), y: box.top + gd._fullLayout.yaxis._offset + gd._fullLayout.yaxis.l2p(t.y[p]!) };
+    }, target.point);
+    await w.page.mouse.move(pos.x, pos.y);
+    await w.page.mouse.click(pos.x, pos.y);
+    await w.page.waitForFunction((want) => document.getElementById('panel-id')?.textContent === want, id, { timeout: 15_000 });
+    expect(await w.page.isVisible('#panel-body')).toBe(true);
+    expect(await w.page.textContent('#panel-facts')).toContain(land.structures[idx]!.source);
+    const selectedRow = await w.page.locator('#kept-table tbody tr[aria-selected="true"]').getAttribute('data-item');
+    expect(Number(selectedRow)).toBe(idx);
+    // Its members: every duplicate collapsed into it is listed.
+    const dupIds = land.structures.filter((r) => r.status === 'duplicate' && r.keptIndex === idx).map((r) => r.id).sort();
+    const listed = (await w.page.locator('#members-table tbody tr td:first-child').allTextContents()).sort();
+    expect(listed).toEqual(dupIds);
+    // Its AMD curve and its neighbours' are drawn.
+    const curves = await w.page.evaluate(() => (document.getElementById('amd-plot') as unknown as { data: unknown[] }).data.length);
+    const neighbourCount = land.edges.filter((e) => e[0] === idx || e[1] === idx).length;
+    expect(curves).toBe(Math.min(5, neighbourCount) + 1);
+  });
+
+  it('sorting the table by a column header reorders its rows (click, then Enter and Space on the header button)', async () => {
+    const energies = async () =>
+      (await w.page.locator('#kept-table tbody tr td:nth-child(2)').allTextContents()).map(Number);
+    const header = w.page.locator('#kept-table thead th').nth(1);
+    await header.locator('button').click();
+    expect(await header.getAttribute('aria-sort')).toBe('ascending');
+    const up = await energies();
+    expect(up.length).toBe(100);
+    for (let i = 1; i < up.length; i++) expect(up[i]!).toBeGreaterThanOrEqual(up[i - 1]!);
+    await header.locator('button').focus();
+    await w.page.keyboard.press('Enter');
+    expect(await header.getAttribute('aria-sort')).toBe('descending');
+    const down = await energies();
+    for (let i = 1; i < down.length; i++) expect(down[i]!).toBeLessThanOrEqual(down[i - 1]!);
+    const highest = Math.max(...land.kept.map((k) => land.structures[k]!.energyRel!));
+    expect(down[0]).toBeCloseTo(highest, 3);
+    // Sorting by density with Space.
+    const densityHeader = w.page.locator('#kept-table thead th').nth(2);
+    await densityHeader.locator('button').focus();
+    await w.page.keyboard.press(' ');
+    expect(await densityHeader.getAttribute('aria-sort')).toBe('ascending');
+    expect(await header.getAttribute('aria-sort')).toBe('none');
+    const dens = (await w.page.locator('#kept-table tbody tr td:nth-child(3)').allTextContents()).map(Number);
+    const lowest = Math.min(...land.kept.map((k) => land.structures[k]!.densityGPerCm3!));
+    expect(dens[0]).toBeCloseTo(lowest, 4);
+  });
+
+  it('a table row opened with the keyboard highlights its marker and opens its panel', async () => {
+    const row = w.page.locator('#kept-table tbody tr').nth(2);
+    const idx = Number(await row.getAttribute('data-item'));
+    await row.focus();
+    await w.page.keyboard.press('ArrowDown');
+    const next = Number(await w.page.evaluate(() => document.activeElement?.getAttribute('data-item')));
+    expect(next).not.toBe(idx);
+    await w.page.keyboard.press('Enter');
+    await w.page.waitForFunction((want) => document.getElementById('panel-id')?.textContent === want, land.structures[next]!.id);
+    const hl = await w.page.evaluate(() => {
+      const g = window as unknown as ReportGlobals;
+      const gd = document.getElementById('landscape-plot') as unknown as { data: Array<{ x: number[]; y: number[] }> };
+      return { x: gd.data[g.polysiftReport.traces.highlight]!.x, selected: g.polysiftReport.selected };
+    });
+    expect(hl.selected).toBe(next);
+    expect(hl.x.length).toBe(1);
+    expect(hl.x[0]).toBeCloseTo(land.structures[next]!.densityGPerCm3!, 5);
+  });
+
+  it('the filter box narrows the table to matching structures', async () => {
+    const target = land.structures[land.kept[17]!]!;
+    await w.page.fill('#table-filter', target.id);
+    await w.page.waitForFunction(() => document.querySelectorAll('#kept-table tbody tr').length === 1);
+    expect(await w.page.locator('#kept-table tbody tr td:first-child').allTextContents()).toEqual([target.id]);
+    expect(await w.page.textContent('#table-count')).toBe(`1 of ${land.counts.kept} match`);
+    await w.page.fill('#table-filter', '');
+    await w.page.waitForFunction(() => document.querySelectorAll('#kept-table tbody tr').length === 100);
+  });
+
+  it('duplicates appear on demand, one marker per duplicate', async () => {
+    const read = () =>
+      w.page.evaluate(() => {
+        const g = window as unknown as ReportGlobals;
+        const gd = document.getElementById('landscape-plot') as unknown as {
+          data: Array<{ x: number[] }>;
+          _fullData: Array<{ visible: boolean | string }>;
+        };
+        const t = g.polysiftReport.traces.duplicates;
+        return { visible: gd._fullData[t]!.visible, n: gd.data[t]!.x.length };
+      });
+    expect((await read()).visible).toBe(false);
+    await w.page.check('#show-duplicates');
+    const after = await read();
+    expect(after.visible).toBe(true);
+    expect(after.n).toBe(land.counts.duplicate);
+  });
+
+  it('the run summary lists every rejected structure with its reason, the timings and the caution', async () => {
+    const rejected = land.structures.filter((r) => r.status === 'rejected');
+    const ids = await w.page.locator('#rejected-table tbody tr td:first-child').allTextContents();
+    expect(ids.sort()).toEqual(rejected.map((r) => r.id).sort());
+    const reasons = await w.page.locator('#rejected-table tbody tr td:nth-child(4)').allTextContents();
+    expect(reasons.sort()).toEqual(rejected.map((r) => r.reason).sort());
+    const timings = await w.page.textContent('#timings-table');
+    for (const stage of Object.keys(land.run.timingsSeconds)) expect(timings).toContain(stage);
+    expect(await w.page.textContent('#summary-section')).toContain('evidence, not proof that no other form exists');
+    expect(await w.page.textContent('#convergence-statement')).toBe(land.convergence!.statement);
+    expect(w.consoleErrors).toEqual([]);
+    expect(w.pageErrors).toEqual([]);
+  });
+});
