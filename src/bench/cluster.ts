@@ -1,0 +1,77 @@
+// Figures for the clustering stage: HDBSCAN (dense and lazy) and the metric map on invented data.
+// Run with `npm run bench` (or `node dist/bench/run.js cluster`).
+import { coreDistancesDense, hdbscanDense, hdbscanLazy } from '../cluster/hdbscan.js';
+import { embed2d } from '../cluster/embedding.js';
+
+/** Invented points: Gaussian blobs in `dim` dimensions plus uniform noise, seeded (mulberry32, common practice). */
+function points(n: number, dim: number, seed: number): Float64Array {
+  let a = seed >>> 0;
+  const rand = () => {
+    a = (a + 0x6d2b79f5) >>> 0;
+    let t = a;
+    t = Math.imul(t ^ (t >>> 15), t | 1);
+    t ^= t + Math.imul(t ^ (t >>> 7), t | 61);
+    return ((t ^ (t >>> 14)) >>> 0) / 4294967296;
+  };
+  const x = new Float64Array(n * dim);
+  const centres = 12;
+  for (let i = 0; i < n; i++) {
+    const c = i % centres;
+    const noise = i % 10 === 9;
+    for (let d = 0; d < dim; d++) {
+      const centre = ((c * 7 + d * 3) % 11) * 2;
+      x[i * dim + d] = noise ? rand() * 24 : centre + (rand() + rand() + rand() - 1.5) * 0.8;
+    }
+  }
+  return x;
+}
+
+/** L-infinity distance matrix (the ground distance of the EMD on PDD rows). */
+function matrix(x: Float64Array, n: number, dim: number): Float64Array {
+  const dist = new Float64Array(n * n);
+  for (let i = 0; i < n; i++) {
+    for (let j = i + 1; j < n; j++) {
+      let m = 0;
+      for (let d = 0; d < dim; d++) m = Math.max(m, Math.abs(x[i * dim + d] - x[j * dim + d]));
+      dist[i * n + j] = m;
+      dist[j * n + i] = m;
+    }
+  }
+  return dist;
+}
+
+function seconds(t0: bigint): string {
+  return (Number(process.hrtime.bigint() - t0) / 1e9).toFixed(2);
+}
+
+export async function run(): Promise<void> {
+  const dim = 6;
+  for (const n of [1000, 3000]) {
+    const x = points(n, dim, 5 + n);
+    const dist = matrix(x, n, dim);
+    let t0 = process.hrtime.bigint();
+    const dense = hdbscanDense(dist, n, { minClusterSize: 10, minSamples: 5 });
+    const clusters = new Set(Array.from(dense.labels).filter((l) => l >= 0)).size;
+    process.stdout.write(`hdbscanDense n=${n}: ${seconds(t0)} s, ${clusters} clusters\n`);
+    // lazy: the distance is recomputed from coordinates, the bound is the first coordinate's difference
+    const core = coreDistancesDense(dist, n, 5);
+    let evaluations = 0;
+    t0 = process.hrtime.bigint();
+    const lazy = hdbscanLazy(
+      n,
+      (i, j) => {
+        evaluations++;
+        return dist[i * n + j];
+      },
+      (i, j) => Math.abs(x[i * dim] - x[j * dim]),
+      core,
+      { minClusterSize: 10, minSamples: 5 },
+    );
+    const same = lazy.labels.every((l, i) => l === dense.labels[i]);
+    process.stdout.write(`hdbscanLazy n=${n}: ${seconds(t0)} s, ${evaluations} of ${(n * (n - 1)) / 2} pairs evaluated, labels ${same ? 'equal' : 'DIFFER'}\n`);
+    t0 = process.hrtime.bigint();
+    const map = embed2d(dist, n);
+    const q = map.quality.map((v) => `${v.name} ${v.value.toFixed(4)}`).join(', ');
+    process.stdout.write(`embed2d n=${n}: ${seconds(t0)} s (${q})\n`);
+  }
+}
