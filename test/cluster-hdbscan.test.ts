@@ -3,6 +3,8 @@
 // through scripts/hdbscan_reference.py (scikit-learn and, for the EMD data set, POT's exact EMD).
 import { beforeAll, describe, expect, it } from 'vitest';
 import { coreDistancesDense, coreDistancesFromNeighbours, hdbscanDense, hdbscanLazy } from '../src/cluster/hdbscan.js';
+import { amdDistance, emd } from '../src/metric/emd.js';
+import type { Pdd } from '../src/types.js';
 import { blobs, canonicalLabels, distanceMatrix, normal, pointDistance, rings, rng, runPythonReference, type Points } from './fixtures/cluster-data.js';
 
 type Setting = [number, number | null];
@@ -105,6 +107,22 @@ const ringSpecs = [
 const ringPts = rings(210, ringSpecs, 30, 12);
 const ringPtsTied = rings(201, ringSpecs, 30, 12);
 const pdds = pddFamilies(41, 5, 16, 12, 12);
+// a second PDD set whose EMD matrix comes from the project's own solver (src/metric/emd.ts)
+const pdds2 = pddFamilies(59, 6, 14, 15, 20);
+const asPdd = (p: PddInput): Pdd => ({ k: p.k, rows: Float64Array.from(p.rows), weights: Float64Array.from(p.weights) });
+const pdds2Typed = pdds2.map(asPdd);
+const emdMatrix2 = (() => {
+  const n = pdds2.length;
+  const d = new Float64Array(n * n);
+  for (let i = 0; i < n; i++) {
+    for (let j = i + 1; j < n; j++) {
+      const v = emd(pdds2Typed[i], pdds2Typed[j]);
+      d[i * n + j] = v;
+      d[j * n + i] = v;
+    }
+  }
+  return d;
+})();
 // integer grid points under the L1 metric: almost every distance and spanning-tree weight is tied
 const gridPts: Points = (() => {
   const rand = rng(53);
@@ -127,6 +145,7 @@ const cases: CaseInput[] = [
   { name: '5-D blobs with noise (Euclidean)', n: blobs5d.n, dist: Array.from(distanceMatrix(blobs5d, 'euclidean')), settings },
   { name: 'points near three rings with noise (Euclidean)', n: ringPts.n, dist: Array.from(distanceMatrix(ringPts, 'euclidean')), settings: [[15, 3], [20, 1], [25, 2], [10, 2], [8, 1], [30, 3]] },
   { name: 'EMD between random PDD families (POT exact EMD, L-infinity ground distance)', n: pdds.length, pdds, settings: [[5, null], [6, 3], [10, 4], [3, 2]] },
+  { name: 'EMD between random PDD families (src/metric/emd.ts)', n: pdds2.length, dist: Array.from(emdMatrix2), settings: [[5, null], [8, 4], [12, 3], [4, 2]] },
   { name: 'points near three rings (L-infinity): tie-sensitive', n: ringPtsTied.n, dist: Array.from(distanceMatrix(ringPtsTied, 'chebyshev')), settings, ties: true },
   { name: 'integer grid points (L1): heavily tied distances', n: gridPts.n, dist: Array.from(distanceMatrix(gridPts, 'manhattan')), settings: [[5, null], [8, 4], [12, 6]], ties: true },
 ];
@@ -246,6 +265,18 @@ describe('lazy spanning tree', () => {
         expect(Array.from(lazy.probabilities)).toEqual(Array.from(dense.probabilities));
         expect(lazy.distanceEvaluations).toBeLessThan((pts.n * (pts.n - 1)) / 2);
       }
+    }
+  });
+
+  it('with the EMD solver of src/metric/emd.ts and its AMD distance as the bound gives the dense labels', () => {
+    const amds = pdds2.map(amdOf);
+    const n = pdds2.length;
+    for (const s of [2, 4, 7]) {
+      const opts = { minClusterSize: 5, minSamples: s };
+      const dense = hdbscanDense(emdMatrix2, n, opts);
+      const lazy = hdbscanLazy(n, (i, j) => emd(pdds2Typed[i], pdds2Typed[j]), (i, j) => amdDistance(amds[i], amds[j]), coreDistancesDense(emdMatrix2, n, s), opts);
+      expect(Array.from(lazy.labels)).toEqual(Array.from(dense.labels));
+      expect(lazy.distanceEvaluations).toBeLessThan((n * (n - 1)) / 2);
     }
   });
 
