@@ -290,3 +290,52 @@ describe('bond graph across faces: rings, chains and overlaps', () => {
     expect(f.notes.join(' ')).toMatch(/the sites give 0\.020 g\/cm³ but _chemical_formula_sum x _cell_formula_units_Z \(C2 O x 1\) gives 0\.066 g\/cm³/);
   });
 });
+
+describe('bond search with a cell list agrees with trying every pair and translation', () => {
+  // Reference: brute force over all pairs and lattice translations -3..3 (exhaustive for these cells).
+  function lcg(seed: number): () => number {
+    let s = seed >>> 0;
+    return () => ((s = (Math.imul(s, 1664525) + 1013904223) >>> 0) / 2 ** 32);
+  }
+  it('gives the same components and overlap count on random skewed cells', async () => {
+    const { findMolecules, OVERLAP_ANGSTROM } = await import('../src/geometry/molecules.js');
+    const { covalentRadiusAngstrom } = await import('../src/geometry/elements.js');
+    const rand = lcg(7);
+    for (let trial = 0; trial < 30; trial++) {
+      const cell: CellParams = {
+        a: 3 + 6 * rand(), b: 3 + 6 * rand(), c: 3 + 6 * rand(),
+        alpha: 70 + 40 * rand(), beta: 70 + 40 * rand(), gamma: 70 + 40 * rand(),
+      };
+      const basis = cellToBasis(cell);
+      const m = 5 + Math.floor(20 * rand());
+      const frac = new Float64Array(3 * m).map(() => rand());
+      const atomicNumbers = new Uint8Array(m).map(() => [1, 6, 8, 17][Math.floor(4 * rand())]!);
+      const got = findMolecules({ basis, count: m, frac, atomicNumbers });
+      // brute force
+      const parent = Array.from({ length: m }, (_, i) => i);
+      const find = (i: number): number => (parent[i] === i ? i : (parent[i] = find(parent[i]!)));
+      let overlaps = 0;
+      for (let i = 0; i < m; i++) {
+        for (let j = i; j < m; j++) {
+          const cut = covalentRadiusAngstrom(atomicNumbers[i]!)! + covalentRadiusAngstrom(atomicNumbers[j]!)! + 0.4;
+          for (let n0 = -3; n0 <= 3; n0++) for (let n1 = -3; n1 <= 3; n1++) for (let n2 = -3; n2 <= 3; n2++) {
+            if (i === j && !(n0 > 0 || (n0 === 0 && (n1 > 0 || (n1 === 0 && n2 > 0))))) continue;
+            const e = [frac[3 * j]! + n0 - frac[3 * i]!, frac[3 * j + 1]! + n1 - frac[3 * i + 1]!, frac[3 * j + 2]! + n2 - frac[3 * i + 2]!];
+            let d2 = 0;
+            for (let c = 0; c < 3; c++) {
+              const x = e[0]! * basis[c]! + e[1]! * basis[3 + c]! + e[2]! * basis[6 + c]!;
+              d2 += x * x;
+            }
+            if (d2 < cut * cut) {
+              parent[find(i)] = find(j);
+              if (d2 < OVERLAP_ANGSTROM ** 2) overlaps++;
+            }
+          }
+        }
+      }
+      const same = (i: number, j: number) => find(i) === find(j);
+      for (let i = 0; i < m; i++) for (let j = 0; j < m; j++) expect(got.component[i] === got.component[j]).toBe(same(i, j));
+      expect(got.overlaps).toBe(overlaps);
+    }
+  });
+});

@@ -36,7 +36,9 @@ export function crystalFacts(record: CrystalRecord): CrystalFacts {
   // Atoms and molecules: the one ordered structure the disorder policy picks, hydrogens included.
   const selection = selectOrderedSites(record.sites);
   notes.push(...selection.notes);
-  const ordered = expandSites(record, selection.kept);
+  // With every site fully occupied the two expansions are the same (nothing to choose between).
+  const fullyOrdered = record.sites.every((s) => s.occupancy >= 1 - 1e-6) && selection.kept.length === record.sites.length;
+  const ordered = fullyOrdered ? all : expandSites(record, selection.kept);
   notes.push(...ordered.notes);
   const molecules = findMolecules(ordered);
   notes.push(...molecules.notes);

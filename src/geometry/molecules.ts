@@ -59,10 +59,30 @@ export function findMolecules(input: MoleculeInput, slackAngstrom = BOND_SLACK_A
     notes.push(`no covalent radius for ${[...noRadius].join(', ')}; ${FALLBACK_RADIUS_ANGSTROM} Å assumed for bonds`);
   }
 
-  // Lattice translations to try around the nearest image: enough to reach the longest possible bond.
+  // Cell list: cut the cell into slabs at least `cutoffMax` thick along each axis, so every partner
+  // within the cutoff sits within `range` slabs (counting across faces). Each (atom, lattice translation)
+  // maps to one "virtual" bin, so walking the virtual bins around an atom visits every candidate once.
   const cutoffMax = 2 * maxRadius + slackAngstrom;
   const spacing = planeSpacings(basis);
-  const reach = spacing.map((s) => Math.ceil(cutoffMax / s)) as [number, number, number];
+  const nb0 = binsAlong(spacing[0], cutoffMax), nb1 = binsAlong(spacing[1], cutoffMax), nb2 = binsAlong(spacing[2], cutoffMax);
+  const r0 = Math.ceil((cutoffMax * nb0) / spacing[0]);
+  const r1 = Math.ceil((cutoffMax * nb1) / spacing[1]);
+  const r2 = Math.ceil((cutoffMax * nb2) / spacing[2]);
+  const nBins = nb0 * nb1 * nb2;
+  const binOf = new Int32Array(m);
+  const binStart = new Int32Array(nBins + 1);
+  const binAtoms = new Int32Array(m);
+  const b0 = new Int32Array(m), b1 = new Int32Array(m), b2 = new Int32Array(m);
+  for (let i = 0; i < m; i++) {
+    b0[i] = Math.min(nb0 - 1, Math.floor(frac[3 * i]! * nb0));
+    b1[i] = Math.min(nb1 - 1, Math.floor(frac[3 * i + 1]! * nb1));
+    b2[i] = Math.min(nb2 - 1, Math.floor(frac[3 * i + 2]! * nb2));
+    binOf[i] = (b0[i]! * nb1 + b1[i]!) * nb2 + b2[i]!;
+    binStart[binOf[i]! + 1]++;
+  }
+  for (let b = 0; b < nBins; b++) binStart[b + 1] += binStart[b]!;
+  const fill = binStart.slice(0, nBins);
+  for (let i = 0; i < m; i++) binAtoms[fill[binOf[i]!]++] = i;
 
   const uf = new OffsetUnionFind(m);
   const overlap2 = OVERLAP_ANGSTROM * OVERLAP_ANGSTROM;
@@ -72,29 +92,36 @@ export function findMolecules(input: MoleculeInput, slackAngstrom = BOND_SLACK_A
   let shortJ = -1;
   for (let i = 0; i < m; i++) {
     const fi0 = frac[3 * i]!, fi1 = frac[3 * i + 1]!, fi2 = frac[3 * i + 2]!;
-    for (let j = i; j < m; j++) {
-      const cut = radius[i]! + radius[j]! + slackAngstrom;
-      const cut2 = cut * cut;
-      const d0 = frac[3 * j]! - fi0, d1 = frac[3 * j + 1]! - fi1, d2 = frac[3 * j + 2]! - fi2;
-      const s0 = -Math.round(d0), s1 = -Math.round(d1), s2 = -Math.round(d2);
-      for (let n0 = s0 - reach[0]; n0 <= s0 + reach[0]; n0++) {
-        for (let n1 = s1 - reach[1]; n1 <= s1 + reach[1]; n1++) {
-          for (let n2 = s2 - reach[2]; n2 <= s2 + reach[2]; n2++) {
-            if (i === j && n0 === 0 && n1 === 0 && n2 === 0) continue;
-            const e0 = d0 + n0, e1 = d1 + n1, e2 = d2 + n2;
+    const ri = radius[i]!;
+    for (let v0 = b0[i]! - r0; v0 <= b0[i]! + r0; v0++) {
+      const n0 = Math.floor(v0 / nb0);
+      const c0 = v0 - n0 * nb0;
+      for (let v1 = b1[i]! - r1; v1 <= b1[i]! + r1; v1++) {
+        const n1 = Math.floor(v1 / nb1);
+        const c1 = v1 - n1 * nb1;
+        for (let v2 = b2[i]! - r2; v2 <= b2[i]! + r2; v2++) {
+          const n2 = Math.floor(v2 / nb2);
+          const c2 = v2 - n2 * nb2;
+          const bin = (c0 * nb1 + c1) * nb2 + c2;
+          // Each unordered pair once: j > i, or j = i with a translation that is positive in lexicographic order.
+          const selfImage = n0 > 0 || (n0 === 0 && (n1 > 0 || (n1 === 0 && n2 > 0)));
+          for (let q = binStart[bin]!; q < binStart[bin + 1]!; q++) {
+            const j = binAtoms[q]!;
+            if (j < i || (j === i && !selfImage)) continue;
+            const e0 = frac[3 * j]! + n0 - fi0, e1 = frac[3 * j + 1]! + n1 - fi1, e2 = frac[3 * j + 2]! + n2 - fi2;
             const x = e0 * basis[0]! + e1 * basis[3]! + e2 * basis[6]!;
             const y = e0 * basis[1]! + e1 * basis[4]! + e2 * basis[7]!;
             const z = e0 * basis[2]! + e1 * basis[5]! + e2 * basis[8]!;
             const dist2 = x * x + y * y + z * z;
-            if (dist2 < cut2) {
-              uf.bond(i, j, n0, n1, n2);
-              if (dist2 < overlap2) {
-                overlaps++;
-                if (dist2 < shortest2) {
-                  shortest2 = dist2;
-                  shortI = i;
-                  shortJ = j;
-                }
+            const cut = ri + radius[j]! + slackAngstrom;
+            if (dist2 >= cut * cut) continue;
+            uf.bond(i, j, n0, n1, n2);
+            if (dist2 < overlap2) {
+              overlaps++;
+              if (dist2 < shortest2) {
+                shortest2 = dist2;
+                shortI = i;
+                shortJ = j;
               }
             }
           }
@@ -174,6 +201,11 @@ export function hillFormula(composition: Map<number, number>): string {
 
 function formatCount(n: number): string {
   return Number.isInteger(n) ? String(n) : String(Math.round(n * 1000) / 1000);
+}
+
+/** Number of slabs along an axis with plane spacing `spacing`, each at least `cutoff` thick (at least 1). */
+function binsAlong(spacing: number, cutoff: number): number {
+  return Math.max(1, Math.floor(spacing / cutoff));
 }
 
 function gcd(a: number, b: number): number {

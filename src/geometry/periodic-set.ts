@@ -66,7 +66,7 @@ export function expandSites(record: CrystalRecord, siteIndices: number[], option
   const basis = cellToBasis(record.cell);
   const ops: SymOp[] = record.ops.length > 0 ? record.ops : [identityOp()];
   const notes: string[] = [];
-  if (ops.length > 1 && !isClosedGroup(ops)) {
+  if (ops.length > 1 && !closedCached(ops)) {
     notes.push(`the ${ops.length} listed symmetry operations do not form a group (products of them are missing); used as listed`);
   }
   const capacity = Math.max(1, siteIndices.length * ops.length);
@@ -198,6 +198,14 @@ export function toPeriodicSet(record: CrystalRecord, opts: { hydrogens: Hydrogen
 }
 
 // ---- helpers ----
+
+// Records built from one symbol share one operation list; checking it once is enough.
+const closedCache = new WeakMap<SymOp[], boolean>();
+function closedCached(ops: SymOp[]): boolean {
+  let v = closedCache.get(ops);
+  if (v === undefined) closedCache.set(ops, (v = isClosedGroup(ops)));
+  return v;
+}
 
 /** Wrap a fractional coordinate to [0,1). */
 function wrap(v: number): number {
