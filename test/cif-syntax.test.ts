@@ -2,20 +2,20 @@
 // quoted strings close only before white space, text fields, ? and ., reserved words, case-insensitive names,
 // loops, save frames. Expected values are what that specification says the text means.
 import { describe, expect, it } from 'vitest';
-import { cifColumn, cifNumber, CifSyntaxError, parseCifBlock, ValueKind, type CifBlock } from '../src/io/cif.js';
+import { cifColumn, cifNumber, CifSyntaxError, kindAt, lineAt, parseCifBlock, valueAt, ValueKind, type CifBlock } from '../src/io/cif.js';
 
 function values(block: CifBlock, name: string): string[] {
   const col = cifColumn(block, name);
   if (col === null) throw new Error(`no ${name}`);
   const out: string[] = [];
-  for (let i = 0; i < col.length; i++) out.push(col.values[col.offset + i * col.stride]!);
+  for (let i = 0; i < col.length; i++) out.push(valueAt(col, i));
   return out;
 }
 
 function kinds(block: CifBlock, name: string): ValueKind[] {
   const col = cifColumn(block, name)!;
   const out: ValueKind[] = [];
-  for (let i = 0; i < col.length; i++) out.push(col.kinds[col.offset + i * col.stride]!);
+  for (let i = 0; i < col.length; i++) out.push(kindAt(col, i));
   return out;
 }
 
@@ -162,7 +162,7 @@ describe('loops and structural errors', () => {
     const b = parseCifBlock('data_x\nloop_\n_s_id\n_s_xyz\n1 x,y,z\n2 -x,-y,-z\n');
     expect(values(b, '_s_xyz')).toEqual(['x,y,z', '-x,-y,-z']);
     const col = cifColumn(b, '_s_xyz')!;
-    expect([col.lines[col.offset], col.lines[col.offset + col.stride]]).toEqual([5, 6]);
+    expect([lineAt(col, 0), lineAt(col, 1)]).toEqual([5, 6]);
   });
 
   it('rejects a loop whose value count is not a multiple of its names, naming the loop line and counts', () => {

@@ -23,11 +23,15 @@ export enum ValueKind {
   Inapplicable = 4,
 }
 
-/** A loop: `names.length` columns, values stored row-major in flat arrays (no object per value). */
+/**
+ * A loop: `names.length` columns, values stored row-major in flat arrays (no object and no string per value):
+ * each value is the range [starts[i], ends[i]) of the block text (inside the quotes or text-field markers).
+ */
 export interface CifLoop {
   /** Lower-cased data names, in the order written. */
   names: string[];
-  values: string[];
+  starts: number[];
+  ends: number[];
   kinds: ValueKind[];
   /** 1-based line of each value in the file. */
   lines: number[];
@@ -41,8 +45,9 @@ export interface CifItem {
   loop: CifLoop | null;
   /** Column within the loop (0 for single items). */
   col: number;
-  /** Single item: its value, kind and line (unused for loop items). */
-  value: string;
+  /** Single item: its value's range in the block text, kind and line (unused for loop items). */
+  start: number;
+  end: number;
   kind: ValueKind;
   line: number;
 }
@@ -52,6 +57,8 @@ export interface CifBlock {
   name: string;
   /** 1-based line of the `data_` line. */
   line: number;
+  /** The block text that value ranges point into. */
+  text: string;
   /** Data name (lower-cased) -> where its values are. */
   items: Map<string, CifItem>;
   loops: CifLoop[];
@@ -72,7 +79,10 @@ export class CifSyntaxError extends Error {
 
 /** A column of values: the loop column or a single item seen as a one-value column. */
 export interface CifColumn {
-  values: string[];
+  /** Block text; value i of the column is text[starts[k], ends[k]) with k = offset + i * stride. */
+  text: string;
+  starts: number[];
+  ends: number[];
   kinds: ValueKind[];
   lines: number[];
   /** Stride through the arrays (loop width; 1 for single items) and starting offset. */
@@ -87,17 +97,46 @@ export function cifColumn(block: CifBlock, name: string): CifColumn | null {
   const item = block.items.get(name.toLowerCase());
   if (!item) return null;
   if (item.loop === null) {
-    return { values: [item.value], kinds: [item.kind], lines: [item.line], stride: 1, offset: 0, length: 1 };
+    return { text: block.text, starts: [item.start], ends: [item.end], kinds: [item.kind], lines: [item.line], stride: 1, offset: 0, length: 1 };
   }
   const w = item.loop.names.length;
   return {
-    values: item.loop.values,
+    text: block.text,
+    starts: item.loop.starts,
+    ends: item.loop.ends,
     kinds: item.loop.kinds,
     lines: item.loop.lines,
     stride: w,
     offset: item.col,
-    length: item.loop.values.length / w,
+    length: item.loop.starts.length / w,
   };
+}
+
+/** Text of value i of a column. */
+export function valueAt(col: CifColumn, i: number): string {
+  const k = col.offset + i * col.stride;
+  return col.text.slice(col.starts[k], col.ends[k]);
+}
+
+/** Value i of a column as a CIF number (NaN when it is not one); parsed in place, no string made. */
+export function numberAt(col: CifColumn, i: number): number {
+  const k = col.offset + i * col.stride;
+  return cifNumberIn(col.text, col.starts[k]!, col.ends[k]!);
+}
+
+export function kindAt(col: CifColumn, i: number): ValueKind {
+  return col.kinds[col.offset + i * col.stride]!;
+}
+
+/** 1-based file line of value i of a column. */
+export function lineAt(col: CifColumn, i: number): number {
+  return col.lines[col.offset + i * col.stride]!;
+}
+
+/** True when value i is the unquoted `?` or `.` (unknown or inapplicable). */
+export function isMissingAt(col: CifColumn, i: number): boolean {
+  const k = col.kinds[col.offset + i * col.stride]!;
+  return k === ValueKind.Unknown || k === ValueKind.Inapplicable;
 }
 
 /**
@@ -106,29 +145,59 @@ export function cifColumn(block: CifBlock, name: string): CifColumn | null {
  * point, optional exponent, optional `(su)`).
  */
 export function cifNumber(text: string): number {
-  const n = text.length;
-  let i = 0;
-  if (i < n && (text.charCodeAt(i) === 43 || text.charCodeAt(i) === 45)) i++; // + -
+  return cifNumberIn(text, 0, text.length);
+}
+
+/** `cifNumber` of text[from, to), read in place. */
+export function cifNumberIn(text: string, from: number, to: number): number {
+  const n = to;
+  let i = from;
+  let negative = false;
+  let c = n > from ? text.charCodeAt(from) : 0;
+  if (c === 43 || c === 45) {
+    negative = c === 45;
+    i++;
+  }
+  // Mantissa digits are gathered as an integer while it stays exact (< 2^53), for the fast path below.
+  let mantissa = 0;
+  let mantissaDigits = 0;
   let digits = 0;
-  while (i < n && isDigit(text.charCodeAt(i))) {
+  let scale = 0;
+  while (i < n && isDigit((c = text.charCodeAt(i)))) {
+    if (mantissaDigits > 0 || c !== 48) mantissaDigits++;
+    mantissa = mantissa * 10 + (c - 48);
     i++;
     digits++;
   }
   if (i < n && text.charCodeAt(i) === 46) {
     i++;
-    while (i < n && isDigit(text.charCodeAt(i))) {
+    while (i < n && isDigit((c = text.charCodeAt(i)))) {
+      if (mantissaDigits > 0 || c !== 48) mantissaDigits++;
+      mantissa = mantissa * 10 + (c - 48);
+      scale--;
       i++;
       digits++;
     }
   }
   if (digits === 0) return NaN;
-  if (i < n && (text.charCodeAt(i) === 101 || text.charCodeAt(i) === 69)) {
+  let exponent = 0;
+  c = i < n ? text.charCodeAt(i) : 0;
+  if (c === 101 || c === 69) {
     // e / E exponent
     let j = i + 1;
-    if (j < n && (text.charCodeAt(j) === 43 || text.charCodeAt(j) === 45)) j++;
+    let expNegative = false;
+    const d = j < n ? text.charCodeAt(j) : 0;
+    if (d === 43 || d === 45) {
+      expNegative = d === 45;
+      j++;
+    }
     const start = j;
-    while (j < n && isDigit(text.charCodeAt(j))) j++;
+    while (j < n && isDigit(text.charCodeAt(j))) {
+      if (exponent < 100000) exponent = exponent * 10 + (text.charCodeAt(j) - 48);
+      j++;
+    }
     if (j === start) return NaN;
+    if (expNegative) exponent = -exponent;
     i = j;
   }
   const end = i;
@@ -141,8 +210,19 @@ export function cifNumber(text: string): number {
     i++;
   }
   if (i !== n) return NaN;
-  return Number(end === n ? text : text.slice(0, end));
+  // Fast path (Clinger, "How to read floating point numbers accurately", PLDI 1990): an integer mantissa
+  // below 2^53 scaled by an exact power of ten (|k| <= 22) is rounded once, so it equals Number(text).
+  const k = scale + exponent;
+  if (mantissaDigits <= 15 && k >= -22 && k <= 22) {
+    const v = k < 0 ? mantissa / POW10[-k]! : mantissa * POW10[k]!;
+    return negative ? -v : v;
+  }
+  return Number(text.slice(from, end));
 }
+
+/** Exact powers of ten 10^0 .. 10^22 (all exactly representable as doubles). */
+const POW10: number[] = [];
+for (let k = 0, p = 1; k <= 22; k++, p *= 10) POW10.push(p);
 
 /**
  * Parse the text of one data block (starting at its `data_` token) into items and loops.
@@ -156,7 +236,7 @@ export function parseCifBlock(text: string, firstLine = 1): CifBlock {
   if (tok !== TokenType.DataHeader) {
     throw new CifSyntaxError(tok === TokenType.End ? 'no data_ block found' : `expected a data_ line, found '${t.value}'`, t.line);
   }
-  const block: CifBlock = { name: t.value, line: t.line, items: new Map(), loops: [], warnings: [] };
+  const block: CifBlock = { name: t.value, line: t.line, text, items: new Map(), loops: [], warnings: [] };
   if (block.name.length === 0) throw new CifSyntaxError("'data_' must be followed by a block name", t.line);
 
   tok = t.next();
@@ -169,12 +249,12 @@ export function parseCifBlock(text: string, firstLine = 1): CifBlock {
         if (!isValue(tok)) {
           throw new CifSyntaxError(`data name ${name} has no value`, nameLine);
         }
-        addItem(block, name, { loop: null, col: 0, value: t.value, kind: t.kind, line: t.line }, nameLine);
+        addItem(block, name, { loop: null, col: 0, start: t.start, end: t.end, kind: t.kind, line: t.line }, nameLine);
         tok = t.next();
         break;
       }
       case TokenType.Loop: {
-        const loop: CifLoop = { names: [], values: [], kinds: [], lines: [], line: t.line };
+        const loop: CifLoop = { names: [], starts: [], ends: [], kinds: [], lines: [], line: t.line };
         tok = t.next();
         while (tok === TokenType.Name) {
           loop.names.push(t.value.toLowerCase());
@@ -182,26 +262,28 @@ export function parseCifBlock(text: string, firstLine = 1): CifBlock {
         }
         if (loop.names.length === 0) throw new CifSyntaxError('loop_ has no data names', loop.line);
         while (isValue(tok)) {
-          loop.values.push(t.value);
+          loop.starts.push(t.start);
+          loop.ends.push(t.end);
           loop.kinds.push(t.kind);
           loop.lines.push(t.line);
           tok = t.next();
         }
         const w = loop.names.length;
-        if (loop.values.length === 0) {
+        const count = loop.starts.length;
+        if (count === 0) {
           throw new CifSyntaxError(`loop_ (${loop.names[0]} ...) has names but no values`, loop.line);
         }
-        if (loop.values.length % w !== 0) {
+        if (count % w !== 0) {
           throw new CifSyntaxError(
-            `loop_ (${loop.names[0]} ...) has ${loop.values.length} values for ${w} names, not a whole number of rows ` +
-              `(${loop.values.length % w} values too many or ${w - (loop.values.length % w)} missing); ` +
+            `loop_ (${loop.names[0]} ...) has ${count} values for ${w} names, not a whole number of rows ` +
+              `(${count % w} values too many or ${w - (count % w)} missing); ` +
               `check for a value with spaces that needs quotes, or a missing value (write ? for unknown)`,
             loop.line,
           );
         }
         block.loops.push(loop);
         for (let c = 0; c < w; c++) {
-          addItem(block, loop.names[c]!, { loop, col: c, value: '', kind: ValueKind.Bare, line: loop.line }, loop.line);
+          addItem(block, loop.names[c]!, { loop, col: c, start: 0, end: 0, kind: ValueKind.Bare, line: loop.line }, loop.line);
         }
         break;
       }
@@ -229,7 +311,7 @@ export function parseCifBlock(text: string, firstLine = 1): CifBlock {
         throw new CifSyntaxError(`'${t.value}' is a reserved word not allowed in CIF 1.1 data`, t.line);
       default:
         // A value with no data name before it.
-        throw new CifSyntaxError(`value '${clip(t.value)}' has no data name before it`, t.line);
+        throw new CifSyntaxError(`value '${clip(text.slice(t.start, t.end))}' has no data name before it`, t.line);
     }
   }
   return block;
@@ -257,8 +339,10 @@ class Tokenizer {
   private pos = 0;
   /** Line of the current position. */
   private curLine: number;
-  /** Text, kind and line of the last token. */
+  /** Text of the last name or reserved-word token; range, kind and line of the last token. */
   value = '';
+  start = 0;
+  end = 0;
   kind: ValueKind = ValueKind.Bare;
   line: number;
 
@@ -312,7 +396,8 @@ class Tokenizer {
           // Value is everything after the opening ; up to the line break before the closing ;
           let end = e;
           if (end > i + 1 && s.charCodeAt(end - 1) === 13) end--;
-          this.value = s.slice(i + 1, end);
+          this.start = i + 1;
+          this.end = end;
           this.kind = ValueKind.TextField;
           this.pos = e + 2;
           return TokenType.Value;
@@ -331,7 +416,8 @@ class Tokenizer {
         if (d === c && (j + 1 >= n || isSpace(s.charCodeAt(j + 1)))) break;
         j++;
       }
-      this.value = s.slice(i + 1, j);
+      this.start = i + 1;
+      this.end = j;
       this.kind = ValueKind.Quoted;
       this.pos = j + 1;
       return TokenType.Value;
@@ -347,13 +433,13 @@ class Tokenizer {
       this.value = s.slice(i, j);
       return TokenType.Name;
     }
+    this.start = i;
+    this.end = j;
     if (len === 1 && c === 63) {
-      this.value = '?';
       this.kind = ValueKind.Unknown;
       return TokenType.Value;
     }
     if (len === 1 && c === 46) {
-      this.value = '.';
       this.kind = ValueKind.Inapplicable;
       return TokenType.Value;
     }
@@ -381,7 +467,6 @@ class Tokenizer {
         return TokenType.Global;
       }
     }
-    this.value = s.slice(i, j);
     this.kind = ValueKind.Bare;
     return TokenType.Value;
   }

@@ -5,7 +5,20 @@
 import type { BlockResult, CellParams, CrystalRecord, Site, SymOp } from '../types.js';
 import { opsFromSymbol, opKey, parseSymopXyz, SUPPORTED_SYMBOLS } from '../geometry/symmetry.js';
 import { elementFromSite, type ElementReading } from '../geometry/elements.js';
-import { cifColumn, cifNumber, CifSyntaxError, parseCifBlock, ValueKind, type CifBlock, type CifColumn } from './cif.js';
+import {
+  cifColumn,
+  cifNumber,
+  CifSyntaxError,
+  isMissingAt,
+  kindAt,
+  lineAt,
+  numberAt,
+  parseCifBlock,
+  valueAt,
+  ValueKind,
+  type CifBlock,
+  type CifColumn,
+} from './cif.js';
 import type { RawBlock } from './cif-split.js';
 
 export interface ReadOptions {
@@ -179,7 +192,7 @@ function readListedOps(block: CifBlock, notes: string[]): SymOp[] | string | nul
     const idx = col.offset + r * col.stride;
     const kind = col.kinds[idx]!;
     if (kind === ValueKind.Unknown || kind === ValueKind.Inapplicable) continue;
-    let text = col.values[idx]!;
+    let text = valueAt(col, r);
     const line = col.lines[idx]!;
     if (bareLoop && kind === ValueKind.Bare) {
       // Join split pieces on the same line: `-x,` `y,` `-z` -> `-x,y,-z`.
@@ -187,7 +200,7 @@ function readListedOps(block: CifBlock, notes: string[]): SymOp[] | string | nul
         const nx = col.offset + (r + 1) * col.stride;
         if (col.lines[nx] !== line || col.kinds[nx] !== ValueKind.Bare) break;
         r++;
-        text += col.values[nx]!;
+        text += valueAt(col, r);
         joined = true;
       }
     }
@@ -226,31 +239,75 @@ function cachedOp(text: string): SymOp {
   return { rot: op.rot.slice(), trans: op.trans.slice() };
 }
 
+/** Symbol -> its operations (null when unsupported); prediction files repeat a few symbols in every block. */
+const symbolCache = new Map<string, SymOp[] | null>();
+
+function cachedSymbolOps(symbol: string): SymOp[] | null {
+  let ops = symbolCache.get(symbol);
+  if (ops === undefined) {
+    ops = opsFromSymbol(symbol);
+    if (symbolCache.size >= OP_CACHE_MAX) symbolCache.clear();
+    symbolCache.set(symbol, ops);
+  }
+  return ops;
+}
+
 function symbolOps(symbol: string | null): SymOp[] | null {
   if (symbol === null) return null;
-  return opsFromSymbol(symbol);
+  const ops = cachedSymbolOps(symbol);
+  return ops === null ? null : ops.map((op) => ({ rot: op.rot.slice(), trans: op.trans.slice() }));
 }
+
+/** Keys of a symbol's operations, for comparing with listed ones. */
+const symbolKeyCache = new Map<string, Set<string> | null>();
 
 /** Note when listed operations are not the default setting of the declared symbol (the listed ones are used). */
 function compareWithSymbol(ops: SymOp[], symbol: string, kind: string, notes: string[]): void {
-  const fromSymbol = opsFromSymbol(symbol);
-  if (fromSymbol === null) return;
+  let symbolKeys = symbolKeyCache.get(symbol);
+  if (symbolKeys === undefined) {
+    const fromSymbol = cachedSymbolOps(symbol);
+    symbolKeys = fromSymbol === null ? null : new Set(fromSymbol.map(opKey));
+    if (symbolKeyCache.size >= OP_CACHE_MAX) symbolKeyCache.clear();
+    symbolKeyCache.set(symbol, symbolKeys);
+  }
+  if (symbolKeys === null) return;
   const listedKeys = new Set(ops.map(opKey));
-  const symbolKeys = new Set(fromSymbol.map(opKey));
   let same = listedKeys.size === symbolKeys.size;
   if (same) for (const k of listedKeys) if (!symbolKeys.has(k)) same = false;
   if (!same) {
     notes.push(
       `the ${ops.length} listed operations are not the default setting of the declared ${kind} symbol '${symbol}' ` +
-        `(${fromSymbol.length} operations there); the listed operations are used`,
+        `(${symbolKeys.size} operations there); the listed operations are used`,
     );
   }
 }
 
 // ---- sites ----
 
-const siteElementCache = new Map<string, ElementReading>();
+/** (type symbol, label) -> element reading; prediction files repeat the same labels in every block. */
+const siteElementCache = new Map<string, Map<string, ElementReading>>();
+let siteCacheSize = 0;
 const SITE_CACHE_MAX = 8192;
+
+function cachedElement(typeText: string | null, label: string): ElementReading {
+  const key = typeText ?? '\u0000';
+  let byLabel = siteElementCache.get(key);
+  if (byLabel === undefined) {
+    byLabel = new Map();
+    siteElementCache.set(key, byLabel);
+  }
+  let el = byLabel.get(label);
+  if (el === undefined) {
+    el = elementFromSite(typeText, label);
+    if (siteCacheSize >= SITE_CACHE_MAX) {
+      siteElementCache.clear();
+      siteCacheSize = 0;
+    }
+    byLabel.set(label, el);
+    siteCacheSize++;
+  }
+  return el;
+}
 
 function readSites(block: CifBlock, notes: string[]): Site[] | string {
   const xs = cifColumn(block, '_atom_site_fract_x');
@@ -284,20 +341,14 @@ function readSites(block: CifBlock, notes: string[]): Site[] | string {
   const dummies: string[] = [];
   let partial = 0;
   for (let i = 0; i < n; i++) {
-    const label = labels !== null ? value(labels, i) : `${value(types!, i)}${i + 1}`;
+    const label = labels !== null ? valueAt(labels, i) : `${valueAt(types!, i)}${i + 1}`;
     const line = xs.lines[xs.offset + i * xs.stride]!;
-    if (calc !== null && value(calc, i).toLowerCase() === 'dum') {
+    if (calc !== null && valueAt(calc, i).toLowerCase() === 'dum') {
       dummies.push(label);
       continue;
     }
-    const typeText = types !== null && kindAt(types, i) !== ValueKind.Unknown && kindAt(types, i) !== ValueKind.Inapplicable ? value(types, i) : null;
-    const elKey = `${typeText ?? ''}\u0000${label}`;
-    let el = siteElementCache.get(elKey);
-    if (el === undefined) {
-      el = elementFromSite(typeText, label);
-      if (siteElementCache.size >= SITE_CACHE_MAX) siteElementCache.clear();
-      siteElementCache.set(elKey, el);
-    }
+    const typeText = types !== null && !isMissingAt(types, i) ? valueAt(types, i) : null;
+    let el = cachedElement(typeText, label);
     if (typeText === null && formula !== null && !('error' in el) && !formula.has(el.element)) {
       el = labelByFormula(label, formula) ?? el;
     }
@@ -313,15 +364,13 @@ function readSites(block: CifBlock, notes: string[]): Site[] | string {
     let unknownCoord = false;
     for (let d = 0; d < 3; d++) {
       const col = d === 0 ? xs : d === 1 ? ys : zs;
-      const k = col.offset + i * col.stride;
-      const kind = col.kinds[k]!;
-      if (kind === ValueKind.Unknown || kind === ValueKind.Inapplicable) {
+      if (isMissingAt(col, i)) {
         unknownCoord = true;
         break;
       }
-      const v = cifNumber(col.values[k]!);
+      const v = numberAt(col, i);
       if (!Number.isFinite(v)) {
-        return `line ${col.lines[k]}: ${'xyz'[d]} coordinate of site ${label} is '${clip(col.values[k]!)}', not a number`;
+        return `line ${lineAt(col, i)}: ${'xyz'[d]} coordinate of site ${label} is '${clip(valueAt(col, i))}', not a number`;
       }
       frac[d] = v;
     }
@@ -337,11 +386,11 @@ function readSites(block: CifBlock, notes: string[]): Site[] | string {
     if (occs !== null) {
       const k = kindAt(occs, i);
       if (k !== ValueKind.Unknown && k !== ValueKind.Inapplicable) {
-        occupancy = cifNumber(value(occs, i));
+        occupancy = numberAt(occs, i);
         if (!Number.isFinite(occupancy) || occupancy < 0) {
-          return `line ${line}: occupancy of site ${label} is '${clip(value(occs, i))}', not a number between 0 and 1`;
+          return `line ${line}: occupancy of site ${label} is '${clip(valueAt(occs, i))}', not a number between 0 and 1`;
         }
-        if (occupancy > 1.0001) notes.push(`site ${label} has occupancy ${value(occs, i)} > 1`);
+        if (occupancy > 1.0001) notes.push(`site ${label} has occupancy ${valueAt(occs, i)} > 1`);
         if (occupancy < 0.9999) partial++;
       }
     }
@@ -393,21 +442,11 @@ function sameLoopColumn(block: CifBlock, name: string, ref: CifColumn): CifColum
 }
 
 function sameLoop(a: CifColumn, b: CifColumn): boolean {
-  return a.values === b.values && a.length === b.length;
-}
-
-function value(col: CifColumn, i: number): string {
-  return col.values[col.offset + i * col.stride]!;
-}
-
-function kindAt(col: CifColumn, i: number): ValueKind {
-  return col.kinds[col.offset + i * col.stride]!;
+  return a.starts === b.starts && a.length === b.length;
 }
 
 function textOrNull(col: CifColumn, i: number): string | null {
-  const k = kindAt(col, i);
-  if (k === ValueKind.Unknown || k === ValueKind.Inapplicable) return null;
-  return value(col, i);
+  return isMissingAt(col, i) ? null : valueAt(col, i);
 }
 
 // ---- energy ----
@@ -424,9 +463,8 @@ function readEnergy(block: CifBlock, item: string | null, notes: string[]): numb
     notes.push(`no energy: ${name} is a loop with ${col.length} values, not a single value`);
     return null;
   }
-  const k = col.kinds[col.offset]!;
-  const text = col.values[col.offset]!;
-  if (k === ValueKind.Unknown || k === ValueKind.Inapplicable) {
+  const text = valueAt(col, 0);
+  if (isMissingAt(col, 0)) {
     notes.push(`no energy: ${name} is '${text}' (line ${col.lines[col.offset]})`);
     return null;
   }
@@ -443,7 +481,7 @@ function readEnergy(block: CifBlock, item: string | null, notes: string[]): numb
 function single(block: CifBlock, name: string): { value: string; kind: ValueKind; line: number } | null {
   const col = cifColumn(block, name);
   if (col === null) return null;
-  return { value: col.values[col.offset]!, kind: col.kinds[col.offset]!, line: col.lines[col.offset]! };
+  return { value: valueAt(col, 0), kind: kindAt(col, 0), line: lineAt(col, 0) };
 }
 
 /** First of several spellings present with a real value (not ? or .), trimmed. */

@@ -6,6 +6,7 @@ import { createReadStream } from 'node:fs';
 import { open, readdir, stat } from 'node:fs/promises';
 import { join } from 'node:path';
 import { StringDecoder } from 'node:string_decoder';
+import { isAscii } from 'node:buffer';
 import { createGunzip } from 'node:zlib';
 import type { Readable } from 'node:stream';
 import type { BlockResult } from '../types.js';
@@ -99,9 +100,17 @@ export async function* readCifFile(file: string, opts: ReadOptions = {}): AsyncG
   const out: RawBlock[] = [];
   let first = true;
   let emitted = 0;
+  let asciiSoFar = true;
   try {
     for await (const chunk of source as AsyncIterable<Buffer>) {
-      const text = decoder.write(chunk);
+      // Pure-ASCII chunks (nearly all CIF text) skip UTF-8 decoding; after the first non-ASCII byte the
+      // decoder takes over for good, since it may hold part of a character between chunks.
+      let text: string;
+      if (asciiSoFar && isAscii(chunk)) text = chunk.toString('latin1');
+      else {
+        asciiSoFar = false;
+        text = decoder.write(chunk);
+      }
       const bad = binaryAt(text, first);
       if (bad) {
         source.destroy();
