@@ -40,7 +40,7 @@ describe('polysift diff (command line)', () => {
     expect(r.status).toBe(1);
     expect(r.stderr).toBe(
       `polysift: the runs were sifted with different invariant settings (PDD depth k = 10 in ${join(a, 'landscape.json')} but k = 8 in ${join(b8, 'landscape.json')}), ` +
-        'so their EMDs are not comparable; sift both with the same -k and hydrogen setting\n',
+        'so their EMDs are not comparable; sift both with the same -k and --hydrogens\n',
     );
     expect(existsSync(join(root, 'o2'))).toBe(false);
     const empty = join(root, 'empty');

@@ -50,11 +50,11 @@ describe('polysift locate (command line)', () => {
   });
 
   it('refuses to leave hydrogens out against a landscape sifted with them', () => {
-    const r = polysift(['locate', refs, '--in', land, '--without-hydrogens']);
+    const r = polysift(['locate', refs, '--in', land, '--hydrogens', 'drop']);
     expect(r.status).toBe(1);
     expect(r.stderr).toBe(
       `polysift: ${join(land, 'landscape.json')} was sifted with hydrogens kept, so references cannot be compared without hydrogens; ` +
-        'sift the structures again with hydrogens dropped, or compare with hydrogens\n',
+        'sift the structures again with --hydrogens drop, or compare with hydrogens\n',
     );
   });
 });

@@ -11,7 +11,7 @@ interface LocateCliOptions {
   out?: string;
   tolerance?: string;
   count?: string;
-  withoutHydrogens?: boolean;
+  hydrogens?: string;
   threads?: string;
   title?: string;
   json?: boolean;
@@ -27,7 +27,7 @@ export function registerLocate(program: Command): void {
     .option('--out <dir>', 'folder for locate.json, locate.csv and report.html')
     .option('--tolerance <angstrom>', "EMD in Å within which a reference counts as found (default: the landscape's duplicate tolerance)")
     .option('--count <n>', 'nearest kept structures listed per reference', '5')
-    .option('--without-hydrogens', 'leave hydrogens out of the comparison (X-ray hydrogen positions are unreliable); the landscape must have been sifted without hydrogens too')
+    .option('--hydrogens <keep|drop>', "keep or drop hydrogens in the comparison (default: the landscape's setting); drop suits X-ray references, whose hydrogen positions are unreliable, and needs a landscape sifted with --hydrogens drop")
     .option('--threads <n>', 'worker threads for the EMD work (default: available cores)')
     .option('--title <text>', 'title of the report page')
     .option('--json', 'print the result as JSON on stdout')
@@ -38,7 +38,10 @@ export function registerLocate(program: Command): void {
       const threads = opts.threads === undefined ? undefined : parseNumber(opts.threads, '--threads', true);
       const { path, landscape } = loadLandscape(opts.in);
       // References use the landscape's settings; asking to drop hydrogens needs a landscape made without them.
-      const hydrogens: HydrogenPolicy = opts.withoutHydrogens ? 'drop' : landscape.invariants.hydrogens;
+      if (opts.hydrogens !== undefined && opts.hydrogens !== 'keep' && opts.hydrogens !== 'drop') {
+        throw new Error(`--hydrogens must be keep or drop, got "${opts.hydrogens}"`);
+      }
+      const hydrogens: HydrogenPolicy = (opts.hydrogens as HydrogenPolicy | undefined) ?? landscape.invariants.hydrogens;
       const problem = hydrogenProblem(landscape, hydrogens, path);
       if (problem) throw new Error(problem);
       const { references, unusable } = await readReferences(refs, landscape.invariants.k, hydrogens);

@@ -106,7 +106,7 @@ export function comparabilityProblem(a: Landscape, b: Landscape, labelA = 'run A
     problems.push(`hydrogens "${a.invariants.hydrogens}" in ${labelA} but "${b.invariants.hydrogens}" in ${labelB}`);
   }
   if (problems.length === 0) return null;
-  return `the runs were sifted with different invariant settings (${problems.join('; ')}), so their EMDs are not comparable; sift both with the same -k and hydrogen setting`;
+  return `the runs were sifted with different invariant settings (${problems.join('; ')}), so their EMDs are not comparable; sift both with the same -k and --hydrogens`;
 }
 
 /** Compare two loaded landscapes (`pathA`/`pathB` are only reported). */

@@ -75,9 +75,9 @@ export interface LocateResult {
 export function hydrogenProblem(landscape: Landscape, referenceHydrogens: HydrogenPolicy, where: string): string | null {
   if (referenceHydrogens === landscape.invariants.hydrogens) return null;
   if (referenceHydrogens === 'drop') {
-    return `${where} was sifted with hydrogens kept, so references cannot be compared without hydrogens; sift the structures again with hydrogens dropped, or compare with hydrogens`;
+    return `${where} was sifted with hydrogens kept, so references cannot be compared without hydrogens; sift the structures again with --hydrogens drop, or compare with hydrogens`;
   }
-  return `${where} was sifted with hydrogens dropped, so references must be compared without hydrogens too`;
+  return `${where} was sifted with hydrogens dropped, so references must be compared without hydrogens too (--hydrogens drop)`;
 }
 
 /** Nearest kept structures of each reference; the references' invariants must use the landscape's k. */
