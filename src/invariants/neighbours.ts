@@ -1,37 +1,44 @@
 // Exact k nearest neighbours of motif points in an infinite periodic point set (1, 2 or 3 dimensions).
 //
-// For a query point q the candidates are all points p + n·B (p a motif point, n an integer vector,
-// B the reduced basis), q itself excluded and its own translates included.
+// For a query point q the candidates are all points p + n0·b0 + n1·b1 + n2·b2 (p a motif point, n an
+// integer vector, b the reduced basis), q itself excluded and its own translates included.
 //
-// Stopping rule (why the result is exact). Write a candidate's offset from q in reduced fractional
-// coordinates as x = g + n with g = frac(p) - frac(q), so the Cartesian offset is v = x·B. Since
-// x = v·B⁻¹, |x_i| = |v · c_i| <= |v|·|c_i|, where c_i is column i of B⁻¹ and 1/|c_i| = h_i is the
-// width of the cell across the other basis vectors. So every candidate within distance R of q has
-// |g_i + n_i| <= R / h_i on every axis i: enumerating, for every motif point, the n_i in those
-// ranges visits every candidate within R (and some farther ones). The k smallest distances seen are
-// exact as soon as the k-th of them is <= R, because every candidate not visited is farther than R.
-// When that fails, the search repeats for that query with R set to the k-th distance seen (k real
-// candidates lie within it, so the second pass always succeeds) or, with fewer than k candidates
-// seen, with R doubled.
+// 1. Cloud. Around the centre c of the (wrapped) motif, every candidate within radius Rc of c is
+//    listed once per set, by the Fincke-Pohst method (U. Fincke & M. Pohst, "Improved methods for
+//    calculating vectors of short length in a lattice", Math. Comp. 44, 1985): orthogonalise the
+//    basis in the order b2, b1, b0 and write an offset in that orthonormal frame; its e0-coordinate
+//    depends on n0 only, its e1-coordinate on n0 and n1, its e2-coordinate on all three, so
+//    |offset| <= Rc gives an interval for n0, then one for n1, then one for n2. Cloud points are
+//    bucketed by distance from c into shells.
+// 2. Query. For query q at distance dq from c, every candidate within R of q lies within R + dq of c
+//    (triangle inequality), so scanning the shells up to R + dq finds them all, provided
+//    R + dq <= Rc. Those within R are kept and sorted.
 //
-// The basis is LLL-reduced first (src/geometry/reduce.ts) so that the ranges stay small for any
-// input cell; reduction does not change the lattice, so it changes only the running time.
+// Stopping rule (why the result is exact): a pass with radius R and R + dq <= Rc sees every candidate
+// within R of q. When at least k are within R, the k smallest distances seen are the k nearest
+// overall, because every candidate not seen is farther than R. When fewer than k are, R grows (by the
+// shortfall in point count, at least 25%) and, if R + dq would pass Rc, the cloud is rebuilt with a
+// larger Rc. This ends because a ball of large enough radius holds k candidates.
+//
+// The basis is LLL-reduced first (src/geometry/reduce.ts) so that the cell is compact and the cloud
+// small for any input cell; reduction does not change the lattice, so it changes only the running time.
 import type { PeriodicSet } from '../types.js';
-import { inverse, reduceBasis } from '../geometry/reduce.js';
+import { reduceBasis } from '../geometry/reduce.js';
 
-/** Everything the search needs about a set, prepared once: padded to 3D, reduced, motif wrapped. */
+/** Everything the search needs about a set, prepared once: padded to 3D, reduced, frame built. */
 export interface PreparedSet {
   /** Original dimension (1, 2 or 3). */
   dim: number;
   m: number;
   /** 3x3 reduced basis (padded with unit vectors for dim < 3), rows are lattice vectors. */
   basis: Float64Array;
-  /** Cell widths h_i across the other basis vectors (Infinity on padded axes). */
-  widths: Float64Array;
-  /** m*3 fractional coordinates in the reduced basis, wrapped to [0, 1). */
-  frac: Float64Array;
-  /** m*3 Cartesian coordinates of the wrapped points. */
-  cart: Float64Array;
+  /**
+   * Fincke-Pohst frame data: [L0, L1, L2, b0·e1, b0·e2, b1·e2] with L_i the lengths of the
+   * orthogonalised vectors (L0 is the cell width across b1 and b2) and e_i their unit vectors.
+   */
+  frame: Float64Array;
+  /** m*3 motif coordinates in the orthonormal frame (e0, e1, e2). */
+  proj: Float64Array;
   /** Cell volume (length, area or volume for dim 1, 2, 3). */
   volume: number;
 }
@@ -41,7 +48,7 @@ export interface NeighbourOptions {
   initialRadiusAngstrom?: number;
 }
 
-/** Reduce the basis and wrap the motif into the reduced cell. Throws with a clear message on unusable input. */
+/** Reduce the basis and express the motif in the search frame. Throws with a clear message on unusable input. */
 export function prepareSet(set: PeriodicSet): PreparedSet {
   const dim = set.dim;
   if (!(dim === 1 || dim === 2 || dim === 3)) throw new Error(`a periodic set must have dimension 1, 2 or 3, not ${dim}`);
@@ -51,42 +58,56 @@ export function prepareSet(set: PeriodicSet): PreparedSet {
     if (!Number.isFinite(set.motif[i])) throw new Error(`motif point ${Math.floor(i / dim)} has a coordinate that is not a finite number`);
   }
   const red = reduceBasis(set.basis, dim);
-  // Pad to 3D: extra axes are unit vectors orthogonal to the set, never translated along.
+  // Pad to 3D: extra axes are unit vectors orthogonal to the set, never translated along (their
+  // intervals are forced to n = 0 in the search). Real axes come first, so e0 is always real.
   const basis = new Float64Array(9);
   for (let r = 0; r < 3; r++) {
     for (let c = 0; c < 3; c++) basis[r * 3 + c] = r < dim && c < dim ? red.basis[r * dim + c] : r === c ? 1 : 0;
   }
-  const inv = inverse(basis, 3);
-  const widths = new Float64Array(3);
-  for (let i = 0; i < 3; i++) {
-    const cx = inv[0 * 3 + i];
-    const cy = inv[1 * 3 + i];
-    const cz = inv[2 * 3 + i];
-    widths[i] = i < dim ? 1 / Math.sqrt(cx * cx + cy * cy + cz * cz) : Infinity;
+  // Orthonormal frame in the order b2, b1, b0 (Gram-Schmidt).
+  const e = new Float64Array(9);
+  const len = new Float64Array(3);
+  for (let r = 2; r >= 0; r--) {
+    let x = basis[r * 3], y = basis[r * 3 + 1], z = basis[r * 3 + 2];
+    for (let t = 2; t > r; t--) {
+      const d = x * e[t * 3] + y * e[t * 3 + 1] + z * e[t * 3 + 2];
+      x -= d * e[t * 3];
+      y -= d * e[t * 3 + 1];
+      z -= d * e[t * 3 + 2];
+    }
+    const l = Math.sqrt(x * x + y * y + z * z);
+    len[r] = l;
+    e[r * 3] = x / l;
+    e[r * 3 + 1] = y / l;
+    e[r * 3 + 2] = z / l;
   }
-  const frac = new Float64Array(m * 3);
-  const cart = new Float64Array(m * 3);
+  const dotBE = (b: number, f: number) => basis[b * 3] * e[f * 3] + basis[b * 3 + 1] * e[f * 3 + 1] + basis[b * 3 + 2] * e[f * 3 + 2];
+  const frame = Float64Array.from([len[0], len[1], len[2], dotBE(0, 1), dotBE(0, 2), dotBE(1, 2)]);
+  const proj = new Float64Array(m * 3);
   for (let p = 0; p < m; p++) {
     const x = set.motif[p * dim];
     const y = dim > 1 ? set.motif[p * dim + 1] : 0;
     const z = dim > 2 ? set.motif[p * dim + 2] : 0;
-    for (let i = 0; i < 3; i++) {
-      let f = x * inv[0 * 3 + i] + y * inv[1 * 3 + i] + z * inv[2 * 3 + i];
-      if (i < dim) {
-        f -= Math.floor(f);
-        if (f >= 1) f = 0; // floor rounding for tiny negative values
-      } else {
-        f = 0;
+    for (let f = 0; f < 3; f++) proj[p * 3 + f] = x * e[f * 3] + y * e[f * 3 + 1] + z * e[f * 3 + 2];
+  }
+  // Wrap each point into the reduced cell along the frame so that offsets stay short (intervals
+  // near zero): subtract whole lattice vectors, outermost axis first.
+  for (let p = 0; p < m; p++) {
+    for (let r = 0; r < dim; r++) {
+      // Coordinate along e_r of b_r is L_r; b_r has no part along e_s for s < r.
+      const n = Math.floor(proj[p * 3 + r] / len[r]);
+      if (n === 0) continue;
+      proj[p * 3 + r] -= n * len[r];
+      if (r === 0) {
+        proj[p * 3 + 1] -= n * frame[3];
+        proj[p * 3 + 2] -= n * frame[4];
+      } else if (r === 1) {
+        proj[p * 3 + 2] -= n * frame[5];
       }
-      frac[p * 3 + i] = f;
-    }
-    for (let c = 0; c < 3; c++) {
-      cart[p * 3 + c] = frac[p * 3] * basis[c] + frac[p * 3 + 1] * basis[3 + c] + frac[p * 3 + 2] * basis[6 + c];
     }
   }
-  const det = basis[0] * (basis[4] * basis[8] - basis[5] * basis[7]) - basis[1] * (basis[3] * basis[8] - basis[5] * basis[6]) + basis[2] * (basis[3] * basis[7] - basis[4] * basis[6]);
-  const volume = Math.abs(det);
-  return { dim, m, basis, widths, frac, cart, volume };
+  const volume = len[0] * len[1] * len[2];
+  return { dim, m, basis, frame, proj, volume };
 }
 
 /** Volume of the unit ball in dimension 1, 2, 3. */
@@ -103,7 +124,7 @@ export function nearestNeighbourDistances(
   options: NeighbourOptions = {},
 ): Float64Array {
   if (!(Number.isInteger(k) && k >= 1)) throw new Error(`the number of neighbours k must be a positive integer, not ${k}`);
-  const prep = 'widths' in set ? set : prepareSet(set);
+  const prep = 'frame' in set ? set : prepareSet(set);
   const m = prep.m;
   let qs = queries;
   if (!qs) {
@@ -114,71 +135,199 @@ export function nearestNeighbourDistances(
     if (!(qs[i] >= 0 && qs[i] < m)) throw new Error(`query index ${qs[i]} is outside the motif (0..${m - 1})`);
   }
   // Radius whose ball holds about k+1 points at this density, with a margin so one pass usually suffices.
-  const estimate = 1.15 * Math.pow(((k + 1) * prep.volume) / (m * UNIT_BALL[prep.dim]), 1 / prep.dim);
+  const estimate = 1.12 * Math.pow(((k + 1) * prep.volume) / (m * UNIT_BALL[prep.dim]), 1 / prep.dim);
   const r0 = options.initialRadiusAngstrom ?? estimate;
   if (!(r0 > 0)) throw new Error('the initial search radius must be positive');
 
   const out = new Float64Array(qs.length * k);
-  const heap = new Float64Array(k);
+  // Centre of the wrapped motif (middle of its bounding box in the frame) and the farthest point from it.
+  let lo0 = Infinity, lo1 = Infinity, lo2 = Infinity, hi0 = -Infinity, hi1 = -Infinity, hi2 = -Infinity;
+  const proj = prep.proj;
+  for (let p = 0; p < m; p++) {
+    lo0 = Math.min(lo0, proj[p * 3]); hi0 = Math.max(hi0, proj[p * 3]);
+    lo1 = Math.min(lo1, proj[p * 3 + 1]); hi1 = Math.max(hi1, proj[p * 3 + 1]);
+    lo2 = Math.min(lo2, proj[p * 3 + 2]); hi2 = Math.max(hi2, proj[p * 3 + 2]);
+  }
+  const c0 = (lo0 + hi0) / 2, c1 = (lo1 + hi1) / 2, c2 = (lo2 + hi2) / 2;
+  const offsetFromCentre = new Float64Array(m);
+  let spread = 0;
+  for (let p = 0; p < m; p++) {
+    const d = Math.hypot(proj[p * 3] - c0, proj[p * 3 + 1] - c1, proj[p * 3 + 2] - c2);
+    offsetFromCentre[p] = d;
+    spread = Math.max(spread, d);
+  }
+  let cloud = buildCloud(prep, c0, c1, c2, r0 + spread);
+  // Squared distances of the candidates within R; grown when a pass sees more, never per candidate.
+  let seen = new Float64Array(Math.max(64, 2 * k));
+  let keys = new Int32Array(seen.length);
+  let starts = new Int32Array(seen.length + 1);
+  let sorted = new Float64Array(seen.length);
   for (let qi = 0; qi < qs.length; qi++) {
     const q = qs[qi];
+    const dq = offsetFromCentre[q];
     let radius = r0;
+    let count = 0;
     for (;;) {
-      const count = searchOne(prep, q, k, radius, heap);
-      if (count === k && heap[0] <= radius * radius) break;
-      // (the factor keeps sqrt-then-square rounding from stopping the second pass short)
-      radius = count === k ? Math.sqrt(heap[0]) * (1 + 1e-9) : radius * 2;
+      if (radius + dq > cloud.radius) cloud = buildCloud(prep, c0, c1, c2, (radius + spread) * 1.0001);
+      count = scanCloud(cloud, q, radius, dq, seen);
+      if (count > seen.length) {
+        seen = new Float64Array(2 * count);
+        continue; // same radius again, now with room for every candidate
+      }
+      if (count >= k) break;
+      const grow = count > 0 ? Math.pow((k + 1) / count, 1 / prep.dim) : 2;
+      radius *= Math.max(1.25, grow);
     }
-    // heap holds the k smallest squared distances; sort them ascending into the output row.
-    const row = out.subarray(qi * k, qi * k + k);
-    row.set(heap);
-    row.sort();
-    for (let j = 0; j < k; j++) row[j] = Math.sqrt(row[j]);
+    if (keys.length < count) {
+      keys = new Int32Array(seen.length);
+      starts = new Int32Array(seen.length + 1);
+      sorted = new Float64Array(seen.length);
+    }
+    // The k smallest, ascending. Candidates fill the ball about evenly, so bucketing by the fraction of
+    // the ball's volume inside each distance leaves about one per bucket, and an insertion sort of
+    // the bucketed order finishes the job in about linear time.
+    const rsq = radius * radius * (1 + 1e-9);
+    for (let i = 0; i <= count; i++) starts[i] = 0;
+    for (let i = 0; i < count; i++) {
+      const t = seen[i] / rsq;
+      const f = prep.dim === 3 ? t * Math.sqrt(t) : prep.dim === 2 ? t : Math.sqrt(t);
+      const key = Math.min(count - 1, Math.floor(f * count));
+      keys[i] = key;
+      starts[key + 1]++;
+    }
+    for (let b = 0; b < count; b++) starts[b + 1] += starts[b];
+    for (let i = 0; i < count; i++) sorted[starts[keys[i]]++] = seen[i];
+    insertionSort(sorted, count);
+    const base = qi * k;
+    for (let j = 0; j < k; j++) out[base + j] = Math.sqrt(sorted[j]);
   }
   return out;
 }
 
+/** Sort the first n entries ascending (fast on the nearly sorted input it gets). */
+function insertionSort(a: Float64Array, n: number): void {
+  for (let i = 1; i < n; i++) {
+    const v = a[i];
+    let j = i - 1;
+    while (j >= 0 && a[j] > v) {
+      a[j + 1] = a[j];
+      j--;
+    }
+    a[j + 1] = v;
+  }
+}
+
+/** Number of distance shells the cloud is bucketed into. */
+const SHELLS = 64;
+
+/** Every candidate point within `radius` of a centre, in frame coordinates, bucketed by distance from the centre. */
+interface Cloud {
+  radius: number;
+  /** n*3 coordinates relative to the centre, shell by shell. */
+  xyz: Float64Array;
+  /** SHELLS+1 offsets: shell s holds points [start[s], start[s+1]), distances in [radius*s/SHELLS, radius*(s+1)/SHELLS]. */
+  start: Int32Array;
+  /** Position in the cloud of each motif point itself (untranslated), -1 when outside the cloud. */
+  self: Int32Array;
+}
+
+function buildCloud(prep: PreparedSet, c0: number, c1: number, c2: number, radius: number): Cloud {
+  const m = prep.m;
+  // Collect (relative coordinates, shell, motif point, untranslated?) into growable scratch arrays.
+  let cap = 1024;
+  let raw = new Float64Array(cap * 3);
+  let shell = new Int32Array(cap);
+  let isSelf = new Int32Array(cap);
+  let n = 0;
+  for (;;) {
+    n = enumerateBall(prep, c0, c1, c2, radius, raw, shell, isSelf, cap);
+    if (n <= cap) break;
+    cap = 2 * n;
+    raw = new Float64Array(cap * 3);
+    shell = new Int32Array(cap);
+    isSelf = new Int32Array(cap);
+  }
+  // Counting sort by shell.
+  const start = new Int32Array(SHELLS + 1);
+  for (let i = 0; i < n; i++) start[shell[i] + 1]++;
+  for (let s = 0; s < SHELLS; s++) start[s + 1] += start[s];
+  const fill = start.slice(0, SHELLS);
+  const xyz = new Float64Array(n * 3);
+  const self = new Int32Array(m).fill(-1);
+  for (let i = 0; i < n; i++) {
+    const at = fill[shell[i]]++;
+    xyz[at * 3] = raw[i * 3];
+    xyz[at * 3 + 1] = raw[i * 3 + 1];
+    xyz[at * 3 + 2] = raw[i * 3 + 2];
+    if (isSelf[i] >= 0) self[isSelf[i]] = at;
+  }
+  return { radius, xyz, start, self };
+}
+
 /**
- * Visit every candidate whose fractional offset lies in the box that contains the ball of `radius`
- * around motif point q, keeping the k smallest squared distances in a max-heap. Returns how many
- * candidates the heap holds (k unless fewer were visited).
+ * Fincke-Pohst enumeration of every candidate within `radius` of the centre (c0, c1, c2). Writes at
+ * most `cap` of them and returns how many there are (the caller retries with more room if needed).
  */
-function searchOne(prep: PreparedSet, q: number, k: number, radius: number, heap: Float64Array): number {
-  const { basis: b, widths, frac, cart, m } = prep;
-  // Slightly widen the ranges so that rounding never drops a candidate at distance exactly `radius`.
-  const rho0 = (radius / widths[0]) * (1 + 1e-12) + 1e-12;
-  const rho1 = (radius / widths[1]) * (1 + 1e-12) + 1e-12;
-  const rho2 = (radius / widths[2]) * (1 + 1e-12) + 1e-12;
-  const b00 = b[0], b01 = b[1], b02 = b[2];
-  const b10 = b[3], b11 = b[4], b12 = b[5];
-  const b20 = b[6], b21 = b[7], b22 = b[8];
-  const fq0 = frac[q * 3], fq1 = frac[q * 3 + 1], fq2 = frac[q * 3 + 2];
-  const cq0 = cart[q * 3], cq1 = cart[q * 3 + 1], cq2 = cart[q * 3 + 2];
+function enumerateBall(
+  prep: PreparedSet,
+  c0: number,
+  c1: number,
+  c2: number,
+  radius: number,
+  raw: Float64Array,
+  shell: Int32Array,
+  isSelf: Int32Array,
+  cap: number,
+): number {
+  const { frame, proj, m, dim } = prep;
+  const L0 = frame[0], L1 = frame[1], L2 = frame[2];
+  const b0e1 = frame[3], b0e2 = frame[4], b1e2 = frame[5];
+  const rr = radius;
+  const rsq = rr * rr;
+  const shellScale = SHELLS / radius;
+  const use1 = dim > 1;
+  const use2 = dim > 2;
   let count = 0;
   for (let p = 0; p < m; p++) {
-    const g0 = frac[p * 3] - fq0;
-    const g1 = frac[p * 3 + 1] - fq1;
-    const g2 = frac[p * 3 + 2] - fq2;
-    const lo0 = Math.ceil(-rho0 - g0), hi0 = Math.floor(rho0 - g0);
-    const lo1 = Math.ceil(-rho1 - g1), hi1 = Math.floor(rho1 - g1);
-    const lo2 = Math.ceil(-rho2 - g2), hi2 = Math.floor(rho2 - g2);
-    const d0 = cart[p * 3] - cq0;
-    const d1 = cart[p * 3 + 1] - cq1;
-    const d2 = cart[p * 3 + 2] - cq2;
+    const a0 = proj[p * 3] - c0;
+    const a1base = proj[p * 3 + 1] - c1;
+    const a2base = proj[p * 3 + 2] - c2;
+    const lo0 = Math.ceil((-rr - a0) / L0), hi0 = Math.floor((rr - a0) / L0);
     for (let n0 = lo0; n0 <= hi0; n0++) {
-      const x0 = d0 + n0 * b00, x1 = d1 + n0 * b01, x2 = d2 + n0 * b02;
+      const x0 = a0 + n0 * L0;
+      const left1 = rsq - x0 * x0;
+      if (left1 < 0) continue;
+      const a1 = a1base + n0 * b0e1;
+      const a2n0 = a2base + n0 * b0e2;
+      let lo1 = 0, hi1 = 0;
+      if (use1) {
+        const r1 = Math.sqrt(left1);
+        lo1 = Math.ceil((-r1 - a1) / L1);
+        hi1 = Math.floor((r1 - a1) / L1);
+      }
       for (let n1 = lo1; n1 <= hi1; n1++) {
-        const y0 = x0 + n1 * b10, y1 = x1 + n1 * b11, y2 = x2 + n1 * b12;
+        const x1 = a1 + n1 * L1;
+        const left2 = left1 - x1 * x1;
+        if (left2 < 0) continue;
+        const a2 = a2n0 + n1 * b1e2;
+        let lo2 = 0, hi2 = 0;
+        if (use2) {
+          const r2 = Math.sqrt(left2);
+          lo2 = Math.ceil((-r2 - a2) / L2);
+          hi2 = Math.floor((r2 - a2) / L2);
+        }
         for (let n2 = lo2; n2 <= hi2; n2++) {
-          if (p === q && n0 === 0 && n1 === 0 && n2 === 0) continue; // the query point itself
-          const v0 = y0 + n2 * b20, v1 = y1 + n2 * b21, v2 = y2 + n2 * b22;
-          const dsq = v0 * v0 + v1 * v1 + v2 * v2;
-          if (count < k) {
-            heapPush(heap, count, dsq);
-            count++;
-          } else if (dsq < heap[0]) {
-            heapReplaceTop(heap, k, dsq);
+          const x2 = a2 + n2 * L2;
+          const dsq = x0 * x0 + x1 * x1 + x2 * x2;
+          if (dsq > rsq) continue;
+          if (count < cap) {
+            raw[count * 3] = x0;
+            raw[count * 3 + 1] = x1;
+            raw[count * 3 + 2] = x2;
+            shell[count] = Math.min(SHELLS - 1, Math.floor(Math.sqrt(dsq) * shellScale));
+            isSelf[count] = n0 === 0 && n1 === 0 && n2 === 0 ? p : -1;
           }
+          count++;
         }
       }
     }
@@ -186,29 +335,38 @@ function searchOne(prep: PreparedSet, q: number, k: number, radius: number, heap
   return count;
 }
 
-/** Insert into a max-heap holding `size` items. */
-function heapPush(heap: Float64Array, size: number, value: number): void {
-  let i = size;
-  while (i > 0) {
-    const parent = (i - 1) >> 1;
-    if (heap[parent] >= value) break;
-    heap[i] = heap[parent];
-    i = parent;
+/**
+ * Squared distances from motif point q to every cloud point within `radius` of it, written into
+ * `seen`; the scan covers the shells that can hold such points (distance from the centre up to
+ * radius + dq). Returns how many there are (only the first seen.length are written).
+ */
+function scanCloud(cloud: Cloud, q: number, radius: number, dq: number, seen: Float64Array): number {
+  const xyz = cloud.xyz;
+  const capacity = seen.length;
+  // The cloud's coordinates are relative to the centre; so are the query's.
+  const reach = radius + dq;
+  // One shell of slack so that rounding at a shell boundary never drops a point.
+  const lastShell = Math.min(SHELLS - 1, Math.floor((reach / cloud.radius) * SHELLS) + 1);
+  const end = cloud.start[lastShell + 1];
+  // The query's own entry (always present: every motif point lies within the cloud radius of the centre).
+  const skip = cloud.self[q];
+  if (skip < 0) throw new Error('internal error: a motif point is missing from its own neighbour cloud');
+  const qx = xyz[skip * 3];
+  const qy = xyz[skip * 3 + 1];
+  const qz = xyz[skip * 3 + 2];
+  // Widen by a hair so that rounding never drops a candidate at distance exactly `radius`.
+  const rr = radius * (1 + 1e-12) + 1e-12;
+  const rsq = rr * rr;
+  let count = 0;
+  for (let i = 0; i < end; i++) {
+    const dx = xyz[i * 3] - qx;
+    const dy = xyz[i * 3 + 1] - qy;
+    const dz = xyz[i * 3 + 2] - qz;
+    const dsq = dx * dx + dy * dy + dz * dz;
+    if (dsq <= rsq && i !== skip) {
+      if (count < capacity) seen[count] = dsq;
+      count++;
+    }
   }
-  heap[i] = value;
-}
-
-/** Replace the largest item of a full max-heap and restore the heap order. */
-function heapReplaceTop(heap: Float64Array, size: number, value: number): void {
-  let i = 0;
-  for (;;) {
-    const l = 2 * i + 1;
-    if (l >= size) break;
-    const r = l + 1;
-    const c = r < size && heap[r] > heap[l] ? r : l;
-    if (heap[c] <= value) break;
-    heap[i] = heap[c];
-    i = c;
-  }
-  heap[i] = value;
+  return count;
 }

@@ -1,0 +1,174 @@
+// Benchmark of the invariants stage: PDD time for single P1 cells of 50, 200 and 500 atoms at k = 100
+// (goal: under 5 ms for 200 atoms), and the invariants of 10,000 molecular-crystal-like structures of
+// 44 atoms per cell (an invented rigid 11-atom molecule, four copies related by the P2_1/c operations)
+// at k = 100 via computeInvariants on 2 threads (goal: under 3 s), with the asymmetric unit known and
+// with everything given as P1.
+import { performance } from 'node:perf_hooks';
+import type { PeriodicSet } from '../types.js';
+import { pdd } from '../invariants/pdd.js';
+import { computeInvariants } from '../invariants/batch.js';
+
+const K = 100;
+
+export async function run(): Promise<void> {
+  const rand = seeded(20261202);
+  for (const atoms of [50, 200, 500]) {
+    const sets = Array.from({ length: 5 }, () => randomP1Cell(rand, atoms));
+    pdd(sets[0], K); // warm-up
+    const times: number[] = [];
+    for (let rep = 0; rep < 4; rep++) {
+      for (const s of sets) {
+        const t0 = performance.now();
+        pdd(s, K);
+        times.push(performance.now() - t0);
+      }
+    }
+    times.sort((a, b) => a - b);
+    const median = times[Math.floor(times.length / 2)];
+    process.stdout.write(`PDD of a ${atoms}-atom P1 cell, k = ${K}: median ${median.toFixed(2)} ms (min ${times[0].toFixed(2)} ms)` + (atoms === 200 ? `  [goal < 5 ms]` : '') + '\n');
+  }
+
+  const n = 10_000;
+  const crystals = Array.from({ length: n }, () => molecularCrystal(rand));
+  const p1 = crystals.map(asP1);
+  for (const [label, sets] of [
+    ['P2_1/c, asymmetric unit of 11 points', crystals],
+    ['same structures as P1, 44 points queried', p1],
+  ] as const) {
+    for (const threads of [2, 1]) {
+      const t0 = performance.now();
+      const out = await computeInvariants(sets as PeriodicSet[], K, { threads });
+      const seconds = (performance.now() - t0) / 1000;
+      let rows = 0;
+      for (const r of out) rows += r.pdd.weights.length;
+      process.stdout.write(
+        `invariants of ${n} structures x 44 atoms, k = ${K}, ${label}, ${threads} thread(s): ${seconds.toFixed(2)} s` +
+          ` (${(rows / n).toFixed(1)} PDD rows per structure after merging)` +
+          (threads === 2 ? '  [goal < 3 s]' : '') +
+          '\n',
+      );
+    }
+  }
+}
+
+/** A P1 cell with `atoms` random points at an organic-crystal-like density (about 15 Å³ per atom with hydrogens; common practice). */
+export function randomP1Cell(rand: () => number, atoms: number): PeriodicSet {
+  const volume = 15 * atoms;
+  const alpha = rad(80 + 30 * rand());
+  const beta = rad(80 + 30 * rand());
+  const gamma = rad(80 + 30 * rand());
+  const ratios = [0.8 + 0.4 * rand(), 0.8 + 0.4 * rand(), 0.8 + 0.4 * rand()];
+  const basis = cellBasis(ratios[0], ratios[1], ratios[2], alpha, beta, gamma);
+  const v = Math.abs(det3(basis));
+  const s = Math.cbrt(volume / v);
+  for (let i = 0; i < 9; i++) basis[i] *= s;
+  const frac = new Float64Array(atoms * 3);
+  for (let i = 0; i < frac.length; i++) frac[i] = rand();
+  return p1Set(basis, fracToCart(basis, frac));
+}
+
+/** Invented rigid 11-atom molecule (Cartesian Å): a six-ring with five substituents, loosely planar. */
+const MOLECULE = [
+  0, 1.39, 0, 1.2, 0.7, 0, 1.2, -0.7, 0, 0, -1.39, 0, -1.2, -0.7, 0, -1.2, 0.7, 0,
+  0, 2.8, 0.1, 2.45, 1.4, -0.1, 2.45, -1.4, 0.1, 0, -2.8, -0.1, -2.5, 1.45, 0.2,
+];
+
+/** Four copies of the molecule related by the P2_1/c operations (International Tables Vol. A) in a random monoclinic cell. */
+export function molecularCrystal(rand: () => number): PeriodicSet {
+  const a = 6 + 3 * rand();
+  const b = 5 + 3 * rand();
+  const beta = rad(95 + 20 * rand());
+  // Choose c so the cell holds about 14 Å³ per atom (44 atoms), a molecular-crystal-like density (common practice).
+  const c = (44 * 14) / (a * b * Math.sin(beta));
+  const basis = Float64Array.from([a, 0, 0, 0, b, 0, c * Math.cos(beta), 0, c * Math.sin(beta)]);
+  const inv = inv3(basis);
+  // Random orientation (unit quaternion) and position of the molecule.
+  const q = [rand() - 0.5, rand() - 0.5, rand() - 0.5, rand() - 0.5];
+  const qn = Math.hypot(...q);
+  const [w, x, y, z] = q.map((t) => t / qn);
+  const r = [1 - 2 * (y * y + z * z), 2 * (x * y - w * z), 2 * (x * z + w * y), 2 * (x * y + w * z), 1 - 2 * (x * x + z * z), 2 * (y * z - w * x), 2 * (x * z - w * y), 2 * (y * z + w * x), 1 - 2 * (x * x + y * y)];
+  const centre = [rand() * 0.5, rand() * 0.25, rand() * 0.5];
+  const asymFrac = new Float64Array(33);
+  for (let i = 0; i < 11; i++) {
+    const m = [MOLECULE[3 * i], MOLECULE[3 * i + 1], MOLECULE[3 * i + 2]];
+    const cart = [0, 1, 2].map((row) => r[3 * row] * m[0] + r[3 * row + 1] * m[1] + r[3 * row + 2] * m[2]);
+    for (let col = 0; col < 3; col++) asymFrac[3 * i + col] = centre[col] + cart[0] * inv[col] + cart[1] * inv[3 + col] + cart[2] * inv[6 + col];
+  }
+  const ops = [
+    [1, 1, 1, 0, 0, 0],
+    [-1, 1, -1, 0, 0.5, 0.5],
+    [-1, -1, -1, 0, 0, 0],
+    [1, -1, 1, 0, 0.5, 0.5],
+  ];
+  const frac = new Float64Array(44 * 3);
+  const asym = new Int32Array(11);
+  for (let i = 0; i < 11; i++) {
+    asym[i] = 4 * i;
+    for (let o = 0; o < 4; o++) {
+      for (let col = 0; col < 3; col++) {
+        const f = ops[o][col] * asymFrac[3 * i + col] + ops[o][3 + col];
+        frac[(4 * i + o) * 3 + col] = f - Math.floor(f);
+      }
+    }
+  }
+  return {
+    dim: 3,
+    basis,
+    motif: fracToCart(basis, frac),
+    atomicNumbers: new Uint8Array(44).fill(6),
+    asym,
+    multiplicity: new Int32Array(11).fill(4),
+  };
+}
+
+function asP1(s: PeriodicSet): PeriodicSet {
+  return p1Set(s.basis, s.motif);
+}
+
+function p1Set(basis: Float64Array, motif: Float64Array): PeriodicSet {
+  const m = motif.length / 3;
+  return { dim: 3, basis, motif, atomicNumbers: new Uint8Array(m), asym: Int32Array.from({ length: m }, (_, i) => i), multiplicity: new Int32Array(m).fill(1) };
+}
+
+function cellBasis(a: number, b: number, c: number, alpha: number, beta: number, gamma: number): Float64Array {
+  const cx = c * Math.cos(beta);
+  const cy = (c * (Math.cos(alpha) - Math.cos(beta) * Math.cos(gamma))) / Math.sin(gamma);
+  const cz = Math.sqrt(Math.max(1e-6, c * c - cx * cx - cy * cy));
+  return Float64Array.from([a, 0, 0, b * Math.cos(gamma), b * Math.sin(gamma), 0, cx, cy, cz]);
+}
+
+function fracToCart(basis: Float64Array, frac: Float64Array): Float64Array {
+  const out = new Float64Array(frac.length);
+  for (let p = 0; p < frac.length / 3; p++) {
+    for (let c = 0; c < 3; c++) out[3 * p + c] = frac[3 * p] * basis[c] + frac[3 * p + 1] * basis[3 + c] + frac[3 * p + 2] * basis[6 + c];
+  }
+  return out;
+}
+
+function det3(m: Float64Array): number {
+  return m[0] * (m[4] * m[8] - m[5] * m[7]) - m[1] * (m[3] * m[8] - m[5] * m[6]) + m[2] * (m[3] * m[7] - m[4] * m[6]);
+}
+
+function inv3(m: Float64Array): Float64Array {
+  const d = det3(m);
+  return Float64Array.from([
+    (m[4] * m[8] - m[5] * m[7]) / d, (m[2] * m[7] - m[1] * m[8]) / d, (m[1] * m[5] - m[2] * m[4]) / d,
+    (m[5] * m[6] - m[3] * m[8]) / d, (m[0] * m[8] - m[2] * m[6]) / d, (m[2] * m[3] - m[0] * m[5]) / d,
+    (m[3] * m[7] - m[4] * m[6]) / d, (m[1] * m[6] - m[0] * m[7]) / d, (m[0] * m[4] - m[1] * m[3]) / d,
+  ]);
+}
+
+function rad(deg: number): number {
+  return (deg * Math.PI) / 180;
+}
+
+export function seeded(seed: number): () => number {
+  let s = seed >>> 0;
+  return () => {
+    s = (s + 0x6d2b79f5) >>> 0;
+    let t = s;
+    t = Math.imul(t ^ (t >>> 15), t | 1);
+    t ^= t + Math.imul(t ^ (t >>> 7), t | 61);
+    return ((t ^ (t >>> 14)) >>> 0) / 4294967296;
+  };
+}
