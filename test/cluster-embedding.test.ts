@@ -6,6 +6,7 @@
 import { beforeAll, describe, expect, it } from 'vitest';
 import { classicalMds, embed2d, jacobiEigen, rawStress, smacof } from '../src/cluster/embedding.js';
 import { trustworthiness } from '../src/cluster/trustworthiness.js';
+import { embed2dLandmarks } from '../src/cluster/embedding-landmarks.js';
 import { blobs, distanceMatrix, rng, runPythonReference, type Points } from './fixtures/cluster-data.js';
 
 interface RefOutput {
@@ -164,5 +165,56 @@ describe('metric map edge cases', () => {
     }
     // trace is preserved
     expect(values.reduce((s, v) => s + v, 0)).toBeCloseTo(4 + 2 + 3 - 1, 12);
+  });
+});
+
+describe('landmark metric map (de Silva & Tenenbaum, "Sparse multidimensional scaling using landmark points", 2004)', () => {
+  const big: Points = (() => {
+    const rand = rng(29);
+    const n = 600;
+    const x = new Float64Array(2 * n);
+    for (let i = 0; i < 2 * n; i++) x[i] = (rand() * 2 - 1) * 20;
+    return { n, dim: 2, x };
+  })();
+  const euclid = (i: number, j: number) => Math.hypot(big.x[2 * i] - big.x[2 * j], big.x[2 * i + 1] - big.x[2 * j + 1]);
+
+  it('recovers every distance of truly 2-D points from L*n distances (triangulation is exact for Euclidean data)', () => {
+    const map = embed2dLandmarks(big.n, euclid, { landmarks: 40 });
+    expect(map.landmarks.length).toBe(40);
+    expect(map.distanceEvaluations).toBeLessThanOrEqual(40 * big.n);
+    const x = flat(map.coords);
+    let worst = 0;
+    for (let i = 0; i < big.n; i++) {
+      for (let j = i + 1; j < big.n; j++) worst = Math.max(worst, Math.abs(Math.hypot(x[2 * i] - x[2 * j], x[2 * i + 1] - x[2 * j + 1]) - euclid(i, j)));
+    }
+    expect(worst).toBeLessThan(1e-7);
+    expect(map.quality[0].value).toBeLessThan(1e-9);
+  });
+
+  it('chooses landmarks by the max-min rule: the second is the point farthest from point 0', () => {
+    const map = embed2dLandmarks(big.n, euclid, { landmarks: 10 });
+    let far = 0;
+    for (let j = 1; j < big.n; j++) if (euclid(0, j) > euclid(0, far)) far = j;
+    expect(map.landmarks[0]).toBe(0);
+    expect(map.landmarks[1]).toBe(far);
+  });
+
+  it('is the full method when n is at most the landmark count', () => {
+    const small = embed2dLandmarks(five.n, (i, j) => fiveLinf[i * five.n + j], { landmarks: 500 });
+    expect(small.coords).toEqual(linfMap.coords);
+  });
+
+  it('stops choosing landmarks when every point sits on one, and places duplicates on it', () => {
+    const base = [[0, 0], [4, 0], [0, 3], [5, 5]];
+    const n = 40;
+    const d = (i: number, j: number) => Math.hypot(base[i % 4][0] - base[j % 4][0], base[i % 4][1] - base[j % 4][1]);
+    const map = embed2dLandmarks(n, d, { landmarks: 10 });
+    expect(map.landmarks.length).toBe(4);
+    for (let i = 0; i < n; i++) expect(map.coords[i]).toEqual(map.coords[i % 4]);
+    expect(Math.hypot(map.coords[0][0] - map.coords[1][0], map.coords[0][1] - map.coords[1][1])).toBeCloseTo(4, 9);
+  });
+
+  it('refuses a bad distance with a clear message', () => {
+    expect(() => embed2dLandmarks(50, () => NaN, { landmarks: 5 })).toThrow(/finite and >= 0/);
   });
 });

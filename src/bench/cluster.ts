@@ -2,6 +2,7 @@
 // Run with `npm run bench` (or `node dist/bench/run.js cluster`).
 import { coreDistancesDense, hdbscanDense, hdbscanLazy } from '../cluster/hdbscan.js';
 import { embed2d } from '../cluster/embedding.js';
+import { embed2dLandmarks } from '../cluster/embedding-landmarks.js';
 
 /** Invented points: Gaussian blobs in `dim` dimensions plus uniform noise, seeded (mulberry32, common practice). */
 function points(n: number, dim: number, seed: number): Float64Array {
@@ -40,8 +41,17 @@ function matrix(x: Float64Array, n: number, dim: number): Float64Array {
   return dist;
 }
 
+/** Wall-clock seconds since t0, and this thread's CPU seconds since the matching cpuUsage mark (the machine is shared). */
+let cpuMark = process.cpuUsage();
 function seconds(t0: bigint): string {
-  return (Number(process.hrtime.bigint() - t0) / 1e9).toFixed(2);
+  const cpu = process.cpuUsage(cpuMark);
+  cpuMark = process.cpuUsage();
+  return `${(Number(process.hrtime.bigint() - t0) / 1e9).toFixed(2)} s wall, ${((cpu.user + cpu.system) / 1e6).toFixed(2)} s CPU`;
+}
+
+function mark(): bigint {
+  cpuMark = process.cpuUsage();
+  return process.hrtime.bigint();
 }
 
 export async function run(): Promise<void> {
@@ -49,14 +59,14 @@ export async function run(): Promise<void> {
   for (const n of [1000, 3000]) {
     const x = points(n, dim, 5 + n);
     const dist = matrix(x, n, dim);
-    let t0 = process.hrtime.bigint();
+    let t0 = mark();
     const dense = hdbscanDense(dist, n, { minClusterSize: 10, minSamples: 5 });
     const clusters = new Set(Array.from(dense.labels).filter((l) => l >= 0)).size;
-    process.stdout.write(`hdbscanDense n=${n}: ${seconds(t0)} s, ${clusters} clusters\n`);
+    process.stdout.write(`hdbscanDense n=${n}: ${seconds(t0)}, ${clusters} clusters\n`);
     // lazy: the distance is recomputed from coordinates, the bound is the first coordinate's difference
     const core = coreDistancesDense(dist, n, 5);
     let evaluations = 0;
-    t0 = process.hrtime.bigint();
+    t0 = mark();
     const lazy = hdbscanLazy(
       n,
       (i, j) => {
@@ -68,10 +78,21 @@ export async function run(): Promise<void> {
       { minClusterSize: 10, minSamples: 5 },
     );
     const same = lazy.labels.every((l, i) => l === dense.labels[i]);
-    process.stdout.write(`hdbscanLazy n=${n}: ${seconds(t0)} s, ${evaluations} of ${(n * (n - 1)) / 2} pairs evaluated, labels ${same ? 'equal' : 'DIFFER'}\n`);
-    t0 = process.hrtime.bigint();
+    process.stdout.write(`hdbscanLazy n=${n}: ${seconds(t0)}, ${evaluations} of ${(n * (n - 1)) / 2} pairs evaluated, labels ${same ? 'equal' : 'DIFFER'}\n`);
+    t0 = mark();
     const map = embed2d(dist, n);
     const q = map.quality.map((v) => `${v.name} ${v.value.toFixed(4)}`).join(', ');
-    process.stdout.write(`embed2d n=${n}: ${seconds(t0)} s (${q})\n`);
+    process.stdout.write(`embed2d n=${n}: ${seconds(t0)} (${q})\n`);
   }
+  // landmark map for a set too large for an n*n matrix
+  const n = 10_000;
+  const x = points(n, dim, 77);
+  const linf = (i: number, j: number) => {
+    let m = 0;
+    for (let d = 0; d < dim; d++) m = Math.max(m, Math.abs(x[i * dim + d] - x[j * dim + d]));
+    return m;
+  };
+  const t0 = mark();
+  const map = embed2dLandmarks(n, linf, { landmarks: 200 });
+  process.stdout.write(`embed2dLandmarks n=${n}, 200 landmarks: ${seconds(t0)}, ${map.distanceEvaluations} distances, ${map.quality[0].name} ${map.quality[0].value.toFixed(4)}\n`);
 }

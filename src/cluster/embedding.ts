@@ -71,7 +71,17 @@ export function embed2d(dist: Float64Array, n: number, opts: EmbedOptions = {}):
 export function classicalMds(dist: Float64Array, n: number): Float64Array {
   const x = new Float64Array(2 * n);
   if (n < 2) return x;
-  // row means of the squared distances and their grand mean, for B v without forming B
+  const { values, vectors } = classicalEigen(dist, n);
+  for (let c = 0; c < 2; c++) {
+    const scale = values[c] > 0 ? Math.sqrt(values[c]) : 0;
+    for (let i = 0; i < n; i++) x[2 * i + c] = scale * vectors[c * n + i];
+  }
+  return x;
+}
+
+/** The two largest eigenvalues of B = -1/2 J D^2 J and their unit eigenvectors (2*n), without forming B. */
+export function classicalEigen(dist: Float64Array, n: number): { values: Float64Array; vectors: Float64Array } {
+  // row means of the squared distances and their grand mean
   const rowMean = new Float64Array(n);
   let grand = 0;
   for (let i = 0; i < n; i++) {
@@ -82,6 +92,7 @@ export function classicalMds(dist: Float64Array, n: number): Float64Array {
     grand += s;
   }
   grand /= n * n;
+  // B v = -1/2 (D^2 v - r (1.v) - 1 (r.v) + g 1 (1.v)) with r the row means, g the grand mean
   const applyB = (v: Float64Array, out: Float64Array) => {
     let sumV = 0;
     let dotRow = 0;
@@ -99,12 +110,7 @@ export function classicalMds(dist: Float64Array, n: number): Float64Array {
       out[i] = -0.5 * (s - rowMean[i] * sumV - dotRow + grand * sumV);
     }
   };
-  const { values, vectors } = topEigenpairs(applyB, n, 2);
-  for (let c = 0; c < 2; c++) {
-    const scale = values[c] > 0 ? Math.sqrt(values[c]) : 0;
-    for (let i = 0; i < n; i++) x[2 * i + c] = scale * vectors[c * n + i];
-  }
-  return x;
+  return topEigenpairs(applyB, n, 2);
 }
 
 /**
