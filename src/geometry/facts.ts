@@ -25,11 +25,9 @@ export function crystalFacts(record: CrystalRecord): CrystalFacts {
   // Mass: every listed site, weighted by its occupancy (disorder alternatives add up to one atom).
   const all = expandSites(record, record.sites.map((_, i) => i), { sharedPositions: 'keep-all' });
   let massPerCell = 0;
-  let hydrogenMass = 0;
   for (let p = 0; p < all.count; p++) {
     const w = all.occupancy[p]! * atomicWeight(all.atomicNumbers[p]!);
     massPerCell += w;
-    if (all.atomicNumbers[p] === 1) hydrogenMass += w;
   }
   const densityGPerCm3 = massPerCell / (AVOGADRO_PER_MOL * volumeA3 * CUBIC_ANGSTROM_IN_CM3);
 
@@ -55,7 +53,7 @@ export function crystalFacts(record: CrystalRecord): CrystalFacts {
   const nOps = Math.max(1, record.ops.length);
   const zPrime = opsKnown ? molecules.z / nOps : null;
 
-  notes.push(...consistencyNotes(record, volumeA3, densityGPerCm3, massPerCell, hydrogenMass, molecules.z, all.duplicateSites));
+  notes.push(...consistencyNotes(record, volumeA3, densityGPerCm3, massPerCell, molecules.z, all.duplicateSites));
   return {
     volumeA3,
     atomsPerCell: ordered.count,
@@ -68,19 +66,16 @@ export function crystalFacts(record: CrystalRecord): CrystalFacts {
 }
 
 /**
- * Compare with what the file itself states (`_cell_volume`, `_exptl_crystal_density_diffrn`,
+ * Compare with what the file itself states (`_exptl_crystal_density_diffrn`,
  * `_chemical_formula_sum`, `_cell_formula_units_Z`) and say why they disagree when we can tell.
  */
 function consistencyNotes(
-  record: CrystalRecord, volumeA3: number, densityGPerCm3: number, massPerCell: number, hydrogenMass: number, z: number,
+  record: CrystalRecord, volumeA3: number, densityGPerCm3: number, massPerCell: number, z: number,
   duplicateSites: number,
 ): string[] {
   const notes: string[] = [];
   const text = record.text;
-  const declaredVolume = numberItem(text, '_cell_volume');
-  if (declaredVolume !== null && Math.abs(declaredVolume - volumeA3) > AGREEMENT_FRACTION * declaredVolume) {
-    notes.push(`_cell_volume says ${declaredVolume} Å³, the cell parameters give ${volumeA3.toFixed(2)} Å³`);
-  }
+  // (A stated `_cell_volume` that disagrees with the cell is noted by the reader, src/io/crystal-record.ts.)
   const formula = textItem(text, '_chemical_formula_sum');
   const composition = formula === null ? null : parseFormulaSum(formula);
   const hasHydrogenSites = record.sites.some((s) => s.element === 'H');
@@ -101,27 +96,10 @@ function consistencyNotes(
     }
   }
   if (declaredDensity !== null && Math.abs(declaredDensity - densityGPerCm3) > AGREEMENT_FRACTION * declaredDensity) {
-    let why = '';
-    const zDeclared = zFormulaUnits;
-    if (composition !== null && zDeclared !== null) {
-      let formulaMass = 0;
-      for (const [zc, n] of composition) formulaMass += n * atomicWeight(zc);
-      const fromFormula = (formulaMass * zDeclared) / (AVOGADRO_PER_MOL * volumeA3 * CUBIC_ANGSTROM_IN_CM3);
-      if (Math.abs(fromFormula - declaredDensity) <= AGREEMENT_FRACTION * declaredDensity) {
-        why =
-          `the listed sites do not add up to Z x formula (${zDeclared} x ${formula}: ${(formulaMass * zDeclared).toFixed(1)} g/mol ` +
-          `per cell, sites give ${massPerCell.toFixed(1)})` +
-          (!hasHydrogenSites && (composition.get(1) ?? 0) > 0 ? ', hydrogens are missing from the sites' : ', check occupancies and missing atoms');
-      } else {
-        why = `the formula and Z in the file give ${fromFormula.toFixed(3)} g/cm³, so the stated density does not follow from the file either`;
-      }
-    } else if (!hasHydrogenSites && hydrogenMass === 0) {
-      why = 'no hydrogen sites are listed';
-    } else {
-      why = 'the file gives no formula and Z to trace it to (occupancies or missing atoms are the usual causes)';
-    }
-    if (duplicateSites > 0) why += `; ${duplicateSites} listed site(s) are symmetry copies of others and count once here`;
-    notes.push(`_exptl_crystal_density_diffrn says ${declaredDensity} g/cm³, computed ${densityGPerCm3.toFixed(3)} g/cm³: ${why}`);
+    notes.push(
+      `_exptl_crystal_density_diffrn says ${declaredDensity} g/cm³, computed ${densityGPerCm3.toFixed(3)} g/cm³: ` +
+        densityReason(declaredDensity, volumeA3, massPerCell, composition, formula, zFormulaUnits, hasHydrogenSites, duplicateSites),
+    );
   }
   if (zFormulaUnits !== null && Number.isInteger(zFormulaUnits) && zFormulaUnits !== z && zFormulaUnits > 0) {
     const perUnit = z / zFormulaUnits;
@@ -131,6 +109,40 @@ function consistencyNotes(
     );
   }
   return notes;
+}
+
+/** Why a stated density differs from the sites' one, as far as the file lets us tell. */
+function densityReason(
+  declared: number, volumeA3: number, massPerCell: number, composition: Map<number, number> | null, formula: string | null,
+  zDeclared: number | null, hasHydrogenSites: boolean, duplicateSites: number,
+): string {
+  const parts: string[] = [];
+  const hydrogenInFormula = composition !== null && (composition.get(1) ?? 0) > 0;
+  if (composition !== null) {
+    let formulaMass = 0;
+    for (const [zc, n] of composition) formulaMass += n * atomicWeight(zc);
+    // Without a stated Z, take the whole number of formula units nearest to what the sites hold.
+    // (Hydrogens missing from the sites are left out of that count.)
+    const hydrogenMassInFormula = (composition.get(1) ?? 0) * atomicWeight(1);
+    const countedMass = !hasHydrogenSites ? formulaMass - hydrogenMassInFormula : formulaMass;
+    const z = zDeclared ?? Math.max(1, Math.round(massPerCell / countedMass));
+    const zWord = zDeclared === null ? `Z = ${z} (nearest whole number of formula units; the file states none)` : `Z = ${z}`;
+    const fromFormula = (formulaMass * z) / (AVOGADRO_PER_MOL * volumeA3 * CUBIC_ANGSTROM_IN_CM3);
+    if (Math.abs(fromFormula - declared) <= AGREEMENT_FRACTION * declared) {
+      parts.push(
+        `the stated value follows from ${formula} with ${zWord}, but the listed sites hold ${(massPerCell / formulaMass).toFixed(3)} formula units per cell`,
+      );
+      parts.push(!hasHydrogenSites && hydrogenInFormula ? 'hydrogens are missing from the sites' : 'occupancies or missing atoms do not add up to the formula');
+    } else {
+      parts.push(`${formula} with ${zWord} gives ${fromFormula.toFixed(3)} g/cm³, so the stated value does not follow from the file either`);
+    }
+  } else if (!hasHydrogenSites) {
+    parts.push('no hydrogen sites are listed');
+  } else {
+    parts.push('the file gives no formula to trace it to (occupancies or missing atoms are the usual causes)');
+  }
+  if (duplicateSites > 0) parts.push(`${duplicateSites} listed site(s) are symmetry copies of others and count once here`);
+  return parts.join('; ');
 }
 
 /** A single-valued data item's raw text in a block (same line or next line), or null. */
@@ -155,7 +167,8 @@ export function numberItem(blockText: string, name: string): number | null {
 export function parseFormulaSum(formula: string): Map<number, number> | null {
   const out = new Map<number, number>();
   const re = /([A-Z][a-z]?)(\d*\.?\d*)/g;
-  const compact = formula.replace(/\s+/g, '');
+  // A formula written in one pair of brackets, '(O H2)', means the same as without them.
+  const compact = formula.replace(/\s+/g, '').replace(/^\((.*)\)$/, '$1');
   let consumed = 0;
   for (const m of compact.matchAll(re)) {
     if (m[0] === '') continue;
