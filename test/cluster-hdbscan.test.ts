@@ -140,12 +140,24 @@ const gridPts: Points = (() => {
 
 const settings: Setting[] = [[5, null], [10, 5], [15, 3], [8, 8], [20, 1], [4, 12]];
 
+// exact duplicates (zero distances, so lambda = 1/0 = infinity) beside near-duplicates and loners
+const dupPts: Points = (() => {
+  const rand = rng(71);
+  const spots = [[0, 0], [10, 0], [0, 10]];
+  const x: number[] = [];
+  for (let s = 0; s < 3; s++) for (let c = 0; c < 6 + 2 * s; c++) x.push(spots[s][0], spots[s][1]);
+  for (let s = 0; s < 3; s++) for (let c = 0; c < 5; c++) x.push(spots[s][0] + (rand() - 0.5), spots[s][1] + (rand() - 0.5));
+  for (let c = 0; c < 6; c++) x.push(rand() * 30 - 10, rand() * 30 - 10);
+  return { n: x.length / 2, dim: 2, x: Float64Array.from(x) };
+})();
+
 const cases: CaseInput[] = [
   { name: '2-D blobs of different density with background noise (Euclidean)', n: blobs2d.n, dist: Array.from(distanceMatrix(blobs2d, 'euclidean')), settings: [[5, null], [10, 5], [15, 3], [20, 1], [10, 2], [6, 1]] },
   { name: '5-D blobs with noise (Euclidean)', n: blobs5d.n, dist: Array.from(distanceMatrix(blobs5d, 'euclidean')), settings },
   { name: 'points near three rings with noise (Euclidean)', n: ringPts.n, dist: Array.from(distanceMatrix(ringPts, 'euclidean')), settings: [[15, 3], [20, 1], [25, 2], [10, 2], [8, 1], [30, 3]] },
   { name: 'EMD between random PDD families (POT exact EMD, L-infinity ground distance)', n: pdds.length, pdds, settings: [[5, null], [6, 3], [10, 4], [3, 2]] },
   { name: 'EMD between random PDD families (src/metric/emd.ts)', n: pdds2.length, dist: Array.from(emdMatrix2), settings: [[5, null], [8, 4], [12, 3], [4, 2]] },
+  { name: 'exact duplicates (zero distances) with near-duplicates and loners (Euclidean)', n: dupPts.n, dist: Array.from(distanceMatrix(dupPts, 'euclidean')), settings: [[3, 2], [5, 1], [6, 4], [10, 3]], ties: true },
   { name: 'points near three rings (L-infinity): tie-sensitive', n: ringPtsTied.n, dist: Array.from(distanceMatrix(ringPtsTied, 'chebyshev')), settings, ties: true },
   { name: 'integer grid points (L1): heavily tied distances', n: gridPts.n, dist: Array.from(distanceMatrix(gridPts, 'manhattan')), settings: [[5, null], [8, 4], [12, 6]], ties: true },
 ];
@@ -225,6 +237,8 @@ describe('tied spanning-tree weights', () => {
         expect(Array.from(ours.labels), context).toEqual(canonicalLabels(r.stable.labels));
         for (let i = 0; i < c.n; i++) expect(Math.abs(ours.probabilities[i] - r.stable.probabilities[i]), context).toBeLessThan(1e-12);
         if (!r.tie_invariant) sensitive++;
+        // where the order of equal weights does not matter, the public estimator is matched as well
+        else expect(Array.from(ours.labels), `${context} (tie-order invariant): public scikit-learn`).toEqual(canonicalLabels(r.public.labels));
         // how the public estimator (numpy's unstable sort) fared on the same data, for the record
         const same = canonicalLabels(r.public.labels).every((l, i) => l === ours.labels[i]);
         console.log(`${context}: ${r.tied_weights}/${c.n - 1} tied weights, tie-order invariant: ${r.tie_invariant}, public scikit-learn ${same ? 'agrees' : 'differs (tie order)'}`);
@@ -306,6 +320,13 @@ describe('edge cases and bad input', () => {
     expect(Array.from(hdbscanDense(new Float64Array(0), 0, { minClusterSize: 5 }).labels)).toEqual([]);
     expect(Array.from(hdbscanDense(new Float64Array(1), 1, { minClusterSize: 5, minSamples: 1 }).labels)).toEqual([-1]);
     expect(Array.from(hdbscanDense(Float64Array.from([0, 1, 1, 0]), 2, { minClusterSize: 2, minSamples: 1 }).labels)).toEqual([-1, -1]);
+  });
+
+  it('fewer points than the minimum cluster size: all noise (no cluster but the root can be that large, and the root is never selected)', () => {
+    const pts: Points = { n: 6, dim: 1, x: Float64Array.from([0, 0.1, 0.2, 5, 5.1, 9]) };
+    const res = hdbscanDense(distanceMatrix(pts, 'euclidean'), pts.n, { minClusterSize: 7, minSamples: 2 });
+    expect(Array.from(res.labels)).toEqual([-1, -1, -1, -1, -1, -1]);
+    expect(Array.from(res.probabilities)).toEqual([0, 0, 0, 0, 0, 0]);
   });
 
   it('exact duplicates (zero distances) give finite, valid output', () => {
