@@ -76,7 +76,7 @@ describe('diffLandscapes on invented runs with known overlap', () => {
   });
 
   it('gives the same answer with worker threads as on one thread', async () => {
-    const { A, B } = pairedRuns(77, K, 100, 50, 50, 0.004, 0.03);
+    const { A, B } = pairedRuns(77, K, 100, 30, 30, 0.004, 0.03);
     const la = landscapeOf(A, K);
     const lb = landscapeOf(B, K);
     const one = await diffLandscapes(la, lb, 'a', 'b', { threads: 1 });
@@ -84,6 +84,16 @@ describe('diffLandscapes on invented runs with known overlap', () => {
     expect(two.structures).toEqual(one.structures);
     expect(two.pairs).toEqual(one.pairs);
     expect(one.counts.both).toBe(100);
+  });
+
+  it('still matches runs without energies, leaving ranks and the correlation empty and saying why', async () => {
+    const { A, B } = pairedRuns(9, K, 4, 1, 2, 0.004, 0.2);
+    for (const s of B) s.energy = null;
+    const d = await diffLandscapes(landscapeOf(A, K), landscapeOf(B, K), 'a', 'b', { threads: 1 });
+    expect(d.counts.both).toBe(4);
+    expect(d.spearman).toBeNull();
+    expect(d.pairs.every((p) => p.rankB === null && p.energyRelShift === null && p.rankA !== null)).toBe(true);
+    expect(d.notes).toContain('Run B has no energies, so its energy ranks, the shifts and the rank correlation are left empty.');
   });
 
   it('refuses runs made with different k or hydrogen settings, naming both', async () => {

@@ -55,8 +55,6 @@ export interface DiffStructure {
   nearestOtherIndex: number | null;
   nearestOther: string | null;
   nearestOtherDistance: number | null;
-  /** Embedding coordinates in its own run's landscape map (Å), when the run has an embedding. */
-  xy: [number, number] | null;
 }
 
 export interface MatchedPair {
@@ -129,6 +127,11 @@ export async function diffLandscapes(
   const scaleB = energyScale(b.parameters.energyUnit, unit);
   if (scaleB !== 1) notes.push(`Run B's energies (${b.parameters.energyUnit}) are converted to ${unit}.`);
 
+  for (const [label, l] of [['A', a], ['B', b]] as const) {
+    if (l.kept.length > 0 && l.kept.every((i) => l.structures[i].energy === null)) {
+      notes.push(`Run ${label} has no energies, so its energy ranks, the shifts and the rank correlation are left empty.`);
+    }
+  }
   const keptA = a.kept;
   const keptB = b.kept;
   const invA = invariantsByIndex(a);
@@ -145,8 +148,6 @@ export async function diffLandscapes(
 
   const ranksA = energyRanks(a);
   const ranksB = energyRanks(b);
-  const coordsA = coordsByIndex(a);
-  const coordsB = coordsByIndex(b);
 
   const pairs: MatchedPair[] = [];
   for (const p of matching.pairs) {
@@ -180,7 +181,7 @@ export async function diffLandscapes(
       partnerIndex: partner >= 0 ? keptB[partner] : null, partner: partner >= 0 ? b.structures[keptB[partner]].id : null,
       partnerDistance: partner >= 0 ? pairCost(matching.pairs, j) : null,
       nearestOtherIndex: near >= 0 ? keptB[near] : null, nearestOther: near >= 0 ? b.structures[keptB[near]].id : null,
-      nearestOtherDistance: near >= 0 ? ab.nearestDistance[j] : null, xy: coordsA.get(i) ?? null,
+      nearestOtherDistance: near >= 0 ? ab.nearestDistance[j] : null,
     });
   });
   keptB.forEach((i, j) => {
@@ -194,7 +195,7 @@ export async function diffLandscapes(
       partnerIndex: partner >= 0 ? keptA[partner] : null, partner: partner >= 0 ? a.structures[keptA[partner]].id : null,
       partnerDistance: partner >= 0 ? pairCost(matching.pairs, partner) : null,
       nearestOtherIndex: near >= 0 ? keptA[near] : null, nearestOther: near >= 0 ? a.structures[keptA[near]].id : null,
-      nearestOtherDistance: near >= 0 ? ba.nearestDistance[j] : null, xy: coordsB.get(i) ?? null,
+      nearestOtherDistance: near >= 0 ? ba.nearestDistance[j] : null,
     });
   });
 
@@ -246,12 +247,6 @@ function pairCost(pairs: Array<{ a: number; b: number; cost: number }>, aLocal: 
     else hi = mid - 1;
   }
   return null;
-}
-
-function coordsByIndex(l: Landscape): Map<number, [number, number]> {
-  const map = new Map<number, [number, number]>();
-  if (l.embedding && l.embedding.coords.length === l.kept.length) l.kept.forEach((i, j) => map.set(i, l.embedding!.coords[j]));
-  return map;
 }
 
 function summary(label: 'A' | 'B', path: string, l: Landscape): RunSummary {
