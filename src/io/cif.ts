@@ -3,7 +3,8 @@
 // ./cif-split.ts; turning items into a crystal record by ./crystal-record.ts.
 //
 // Rules implemented (each pinned by test/cif-syntax.test.ts):
-// - tokens are separated by white space (space, tab, CR, LF); `#` outside a value starts a comment to end of line;
+// - tokens are separated by white space (space, tab, CR, LF; other control characters, which CIF does not allow,
+//   are taken as white space too); `#` outside a value starts a comment to end of line;
 // - `'...'` / `"..."` quoted strings: the closing quote counts only when followed by white space or end of
 //   text, so `'a'b'` is the string `a'b` (doubled quotes `''` are NOT an escape in CIF 1.1);
 //   a quoted string cannot span lines;
@@ -33,8 +34,6 @@ export interface CifLoop {
   starts: number[];
   ends: number[];
   kinds: ValueKind[];
-  /** 1-based line of each value in the file. */
-  lines: number[];
   /** 1-based line of `loop_`. */
   line: number;
 }
@@ -59,6 +58,8 @@ export interface CifBlock {
   line: number;
   /** The block text that value ranges point into. */
   text: string;
+  /** 1-based file line of the text's first character. */
+  firstLine: number;
   /** Data name (lower-cased) -> where its values are. */
   items: Map<string, CifItem>;
   loops: CifLoop[];
@@ -84,7 +85,8 @@ export interface CifColumn {
   starts: number[];
   ends: number[];
   kinds: ValueKind[];
-  lines: number[];
+  /** 1-based file line of the block text's first character (lines of values are counted from it on demand). */
+  firstLine: number;
   /** Stride through the arrays (loop width; 1 for single items) and starting offset. */
   stride: number;
   offset: number;
@@ -97,7 +99,7 @@ export function cifColumn(block: CifBlock, name: string): CifColumn | null {
   const item = block.items.get(name.toLowerCase());
   if (!item) return null;
   if (item.loop === null) {
-    return { text: block.text, starts: [item.start], ends: [item.end], kinds: [item.kind], lines: [item.line], stride: 1, offset: 0, length: 1 };
+    return { text: block.text, starts: [item.start], ends: [item.end], kinds: [item.kind], firstLine: block.firstLine, stride: 1, offset: 0, length: 1 };
   }
   const w = item.loop.names.length;
   return {
@@ -105,7 +107,7 @@ export function cifColumn(block: CifBlock, name: string): CifColumn | null {
     starts: item.loop.starts,
     ends: item.loop.ends,
     kinds: item.loop.kinds,
-    lines: item.loop.lines,
+    firstLine: block.firstLine,
     stride: w,
     offset: item.col,
     length: item.loop.starts.length / w,
@@ -128,9 +130,20 @@ export function kindAt(col: CifColumn, i: number): ValueKind {
   return col.kinds[col.offset + i * col.stride]!;
 }
 
-/** 1-based file line of value i of a column. */
+/** 1-based file line of value i of a column (counted on demand: lines are needed only in messages). */
 export function lineAt(col: CifColumn, i: number): number {
-  return col.lines[col.offset + i * col.stride]!;
+  const end = col.starts[col.offset + i * col.stride]!;
+  let line = col.firstLine;
+  for (let p = col.text.indexOf('\n'); p >= 0 && p < end; p = col.text.indexOf('\n', p + 1)) line++;
+  return line;
+}
+
+/** True when values i and j of a column (i before j) sit on the same line. */
+export function sameLineAt(col: CifColumn, i: number, j: number): boolean {
+  const from = col.ends[col.offset + i * col.stride]!;
+  const to = col.starts[col.offset + j * col.stride]!;
+  const p = col.text.indexOf('\n', from);
+  return p < 0 || p >= to;
 }
 
 /** True when value i is the unquoted `?` or `.` (unknown or inapplicable). */
@@ -236,7 +249,7 @@ export function parseCifBlock(text: string, firstLine = 1): CifBlock {
   if (tok !== TokenType.DataHeader) {
     throw new CifSyntaxError(tok === TokenType.End ? 'no data_ block found' : `expected a data_ line, found '${t.value}'`, t.line);
   }
-  const block: CifBlock = { name: t.value, line: t.line, text, items: new Map(), loops: [], warnings: [] };
+  const block: CifBlock = { name: t.value, line: t.line, text, firstLine, items: new Map(), loops: [], warnings: [] };
   if (block.name.length === 0) throw new CifSyntaxError("'data_' must be followed by a block name", t.line);
 
   tok = t.next();
@@ -254,7 +267,7 @@ export function parseCifBlock(text: string, firstLine = 1): CifBlock {
         break;
       }
       case TokenType.Loop: {
-        const loop: CifLoop = { names: [], starts: [], ends: [], kinds: [], lines: [], line: t.line };
+        const loop: CifLoop = { names: [], starts: [], ends: [], kinds: [], line: t.line };
         tok = t.next();
         while (tok === TokenType.Name) {
           loop.names.push(t.value.toLowerCase());
@@ -265,7 +278,6 @@ export function parseCifBlock(text: string, firstLine = 1): CifBlock {
           loop.starts.push(t.start);
           loop.ends.push(t.end);
           loop.kinds.push(t.kind);
-          loop.lines.push(t.line);
           tok = t.next();
         }
         const w = loop.names.length;
@@ -369,7 +381,8 @@ class Tokenizer {
       if (c === 10) {
         this.curLine++;
         i++;
-      } else if (c === 32 || c === 9 || c === 13 || c === 12 || c === 11) {
+      } else if (c <= 32) {
+        // space, tab, CR, FF, VT (other control characters, not allowed in CIF, also separate tokens)
         i++;
       } else if (c === 35) {
         // # comment to end of line
@@ -381,9 +394,8 @@ class Tokenizer {
     }
     this.line = this.curLine;
     const c = s.charCodeAt(i);
-    const atLineStart = i === 0 || s.charCodeAt(i - 1) === 10 || s.charCodeAt(i - 1) === 13;
 
-    if (c === 59 && atLineStart) {
+    if (c === 59 && (i === 0 || s.charCodeAt(i - 1) === 10 || s.charCodeAt(i - 1) === 13)) {
       // ; text field: runs to the next line that begins with ;
       let j = i + 1;
       for (;;) {
@@ -413,7 +425,7 @@ class Tokenizer {
         if (j >= n) throw new CifSyntaxError(`quoted string ${clip(s.slice(i, j))} is never closed`, this.line);
         const d = s.charCodeAt(j);
         if (d === 10 || d === 13) throw new CifSyntaxError(`quoted string ${clip(s.slice(i, j))} is not closed on its line`, this.line);
-        if (d === c && (j + 1 >= n || isSpace(s.charCodeAt(j + 1)))) break;
+        if (d === c && (j + 1 >= n || s.charCodeAt(j + 1) <= 32)) break;
         j++;
       }
       this.start = i + 1;
@@ -425,7 +437,7 @@ class Tokenizer {
 
     // Bare token: runs to white space.
     let j = i + 1;
-    while (j < n && !isSpace(s.charCodeAt(j))) j++;
+    while (j < n && s.charCodeAt(j) > 32) j++;
     this.pos = j;
     const len = j - i;
     if (c === 95) {
@@ -479,10 +491,6 @@ function addItem(block: CifBlock, name: string, item: CifItem, line: number): vo
     return;
   }
   block.items.set(name, item);
-}
-
-function isSpace(c: number): boolean {
-  return c === 32 || c === 10 || c === 13 || c === 9 || c === 12 || c === 11;
 }
 
 function isDigit(c: number): boolean {

@@ -14,6 +14,7 @@ import {
   lineAt,
   numberAt,
   parseCifBlock,
+  sameLineAt,
   valueAt,
   ValueKind,
   type CifBlock,
@@ -193,12 +194,12 @@ function readListedOps(block: CifBlock, notes: string[]): SymOp[] | string | nul
     const kind = col.kinds[idx]!;
     if (kind === ValueKind.Unknown || kind === ValueKind.Inapplicable) continue;
     let text = valueAt(col, r);
-    const line = col.lines[idx]!;
+    const first = r;
     if (bareLoop && kind === ValueKind.Bare) {
       // Join split pieces on the same line: `-x,` `y,` `-z` -> `-x,y,-z`.
       while (needsMore(text) && r + 1 < col.length) {
         const nx = col.offset + (r + 1) * col.stride;
-        if (col.lines[nx] !== line || col.kinds[nx] !== ValueKind.Bare) break;
+        if (!sameLineAt(col, r, r + 1) || col.kinds[nx] !== ValueKind.Bare) break;
         r++;
         text += valueAt(col, r);
         joined = true;
@@ -208,7 +209,7 @@ function readListedOps(block: CifBlock, notes: string[]): SymOp[] | string | nul
     try {
       op = cachedOp(text);
     } catch (e) {
-      return `line ${line}: symmetry operation ${ops.length + 1} of ${name} ('${clip(text)}') cannot be read: ${(e as Error).message}`;
+      return `line ${lineAt(col, first)}: symmetry operation ${ops.length + 1} of ${name} ('${clip(text)}') cannot be read: ${(e as Error).message}`;
     }
     ops.push(op);
   }
@@ -322,7 +323,7 @@ function readSites(block: CifBlock, notes: string[]): Site[] | string {
   }
   const n = xs.length;
   if (ys.length !== n || zs.length !== n || !sameLoop(xs, ys) || !sameLoop(xs, zs)) {
-    return `line ${xs.lines[xs.offset]}: _atom_site_fract_x, _y and _z are not in the same loop`;
+    return `line ${lineAt(xs, 0)}: _atom_site_fract_x, _y and _z are not in the same loop`;
   }
   const labels = sameLoopColumn(block, '_atom_site_label', xs);
   const types = sameLoopColumn(block, '_atom_site_type_symbol', xs);
@@ -331,7 +332,7 @@ function readSites(block: CifBlock, notes: string[]): Site[] | string {
   const assemblies = sameLoopColumn(block, '_atom_site_disorder_assembly', xs);
   const calc = sameLoopColumn(block, '_atom_site_calc_flag', xs);
   if (labels === null && types === null) {
-    return `line ${xs.lines[xs.offset]}: the atom-site loop has neither _atom_site_label nor _atom_site_type_symbol, so no element can be read`;
+    return `line ${lineAt(xs, 0)}: the atom-site loop has neither _atom_site_label nor _atom_site_type_symbol, so no element can be read`;
   }
 
   // Elements named in _chemical_formula_sum settle labels such as 'NA1' (Na, not N) when no type symbol is given.
@@ -342,7 +343,6 @@ function readSites(block: CifBlock, notes: string[]): Site[] | string {
   let partial = 0;
   for (let i = 0; i < n; i++) {
     const label = labels !== null ? valueAt(labels, i) : `${valueAt(types!, i)}${i + 1}`;
-    const line = xs.lines[xs.offset + i * xs.stride]!;
     if (calc !== null && valueAt(calc, i).toLowerCase() === 'dum') {
       dummies.push(label);
       continue;
@@ -354,9 +354,9 @@ function readSites(block: CifBlock, notes: string[]): Site[] | string {
     }
     if ('error' in el) {
       if (kindAt(xs, i) === ValueKind.Unknown) {
-        return `line ${line}: atom-site row ${i + 1} ('${label}') has '?' in place of its coordinates and no readable element; complete or remove the row`;
+        return `line ${lineAt(xs, i)}: atom-site row ${i + 1} ('${label}') has '?' in place of its coordinates and no readable element; complete or remove the row`;
       }
-      return `line ${line}: ${el.error}`;
+      return `line ${lineAt(xs, i)}: ${el.error}`;
     }
     if (el.note !== undefined) notes.push(el.note);
 
@@ -379,7 +379,7 @@ function readSites(block: CifBlock, notes: string[]): Site[] | string {
         unknownH.push(label);
         continue;
       }
-      return `line ${line}: site ${label} (${el.element}) has '?' in place of its coordinates; the structure would be incomplete without it`;
+      return `line ${lineAt(xs, i)}: site ${label} (${el.element}) has '?' in place of its coordinates; the structure would be incomplete without it`;
     }
 
     let occupancy = 1;
@@ -388,7 +388,7 @@ function readSites(block: CifBlock, notes: string[]): Site[] | string {
       if (k !== ValueKind.Unknown && k !== ValueKind.Inapplicable) {
         occupancy = numberAt(occs, i);
         if (!Number.isFinite(occupancy) || occupancy < 0) {
-          return `line ${line}: occupancy of site ${label} is '${clip(valueAt(occs, i))}', not a number between 0 and 1`;
+          return `line ${lineAt(xs, i)}: occupancy of site ${label} is '${clip(valueAt(occs, i))}', not a number between 0 and 1`;
         }
         if (occupancy > 1.0001) notes.push(`site ${label} has occupancy ${valueAt(occs, i)} > 1`);
         if (occupancy < 0.9999) partial++;
@@ -406,7 +406,7 @@ function readSites(block: CifBlock, notes: string[]): Site[] | string {
   if (dummies.length > 0) notes.push(`dummy sites (calc flag 'dum') left out: ${listLabels(dummies)}`);
   if (unknownH.length > 0) notes.push(`hydrogen sites with '?' coordinates left out: ${listLabels(unknownH)}`);
   if (partial > 0) notes.push(`${partial} site(s) with partial occupancy`);
-  if (sites.length === 0) return `line ${xs.lines[xs.offset]}: the atom-site loop lists no site with coordinates`;
+  if (sites.length === 0) return `line ${lineAt(xs, 0)}: the atom-site loop lists no site with coordinates`;
   return sites;
 }
 
@@ -465,12 +465,12 @@ function readEnergy(block: CifBlock, item: string | null, notes: string[]): numb
   }
   const text = valueAt(col, 0);
   if (isMissingAt(col, 0)) {
-    notes.push(`no energy: ${name} is '${text}' (line ${col.lines[col.offset]})`);
+    notes.push(`no energy: ${name} is '${text}' (line ${lineAt(col, 0)})`);
     return null;
   }
   const v = cifNumber(text.trim());
   if (!Number.isFinite(v)) {
-    notes.push(`no energy: ${name} is '${clip(text)}' (line ${col.lines[col.offset]}), not a number`);
+    notes.push(`no energy: ${name} is '${clip(text)}' (line ${lineAt(col, 0)}), not a number`);
     return null;
   }
   return v;
