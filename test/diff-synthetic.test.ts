@@ -75,17 +75,6 @@ describe('diffLandscapes on invented runs with known overlap', () => {
     }
   });
 
-  it('gives the same answer with worker threads as on one thread', async () => {
-    const { A, B } = pairedRuns(77, K, 100, 30, 30, 0.004, 0.03);
-    const la = landscapeOf(A, K);
-    const lb = landscapeOf(B, K);
-    const one = await diffLandscapes(la, lb, 'a', 'b', { threads: 1 });
-    const two = await diffLandscapes(la, lb, 'a', 'b', { threads: 2 });
-    expect(two.structures).toEqual(one.structures);
-    expect(two.pairs).toEqual(one.pairs);
-    expect(one.counts.both).toBe(100);
-  });
-
   it('still matches runs without energies, leaving ranks and the correlation empty and saying why', async () => {
     const { A, B } = pairedRuns(9, K, 4, 1, 2, 0.004, 0.2);
     for (const s of B) s.energy = null;
