@@ -110,6 +110,11 @@ describe('Hall-symbol parser on every Hall symbol in gemmi\'s table (live)', () 
   const table = gemmiJson<{ hall: string; ops: GemmiOp[] }[]>(
     `out = []\nextra = ['P 2yb (0 0 1)', 'P 2yb (x,y,z+1/4)', '-P 2ybc (1 2 3)', 'P 31 2 (0 0 4)', 'P 2yb (z,x,y)', 'F 4d 2 3 -1d']\nfor h in [s.hall for s in gemmi.spacegroup_table()] + extra:\n    g = gemmi.symops_from_hall(h)\n    out.append({"hall": h, "ops": ${GEMMI_OPS_TO_LIST}})\nprint(json.dumps(out))`,
   );
+  it('refuses malformed Hall symbols with a message naming them', () => {
+    for (const bad of ['Q 1', 'P 5', 'P 2q', 'P 2 (1 2)', '-P', 'P 2 2 2 2 2', 'P 2 (0 0 1', 'P 2*', 'S 1']) {
+      expect(() => opsFromHall(bad), bad).toThrow(/Hall symbol/);
+    }
+  });
   it('reads at least the 530 settings of International Tables', () => {
     expect(table.length).toBeGreaterThanOrEqual(530);
   });

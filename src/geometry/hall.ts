@@ -4,7 +4,8 @@
 //
 // A Hall symbol is `[-]L  N1[A1][T1]  [N2[A2][T2]]  [N3[A3][T3]]  [N4...]  [(origin shift)]`:
 //   - `-` : the group is centrosymmetric (the inversion -1 is a generator);
-//   - L   : lattice centring P A B C I R S T F (adds centring translations);
+//   - L   : lattice centring P A B C I R F (adds centring translations; the rare S and T
+//           centrings of Hall's paper are not used by the 530 standard settings and are refused);
 //   - each matrix symbol: optional `-` (improper), order N in 1 2 3 4 6, an axis (x y z, ' " for the
 //     face diagonals, * for the body diagonal; omitted axes follow Hall's default rules), and
 //     translation letters a b c n u v w d or a screw subscript digit;
@@ -69,8 +70,6 @@ const CENTRING: Record<string, [number, number, number][]> = {
   C: [[1 / 2, 1 / 2, 0]],
   I: [[1 / 2, 1 / 2, 1 / 2]],
   R: [[2 / 3, 1 / 3, 1 / 3], [1 / 3, 2 / 3, 2 / 3]],
-  S: [[1 / 3, 1 / 3, 2 / 3], [2 / 3, 2 / 3, 1 / 3]],
-  T: [[1 / 3, 2 / 3, 1 / 3], [2 / 3, 1 / 3, 2 / 3]],
   F: [[0, 1 / 2, 1 / 2], [1 / 2, 0, 1 / 2], [1 / 2, 1 / 2, 0]],
 };
 
@@ -98,7 +97,7 @@ export function hallGenerators(hall: string): SymOp[] {
   }
   const centring = CENTRING[lattice.toUpperCase()];
   if (lattice.length !== 1 || centring === undefined) {
-    throw new Error(`Hall symbol '${hall}': unknown lattice symbol '${lattice}' (expected one of P A B C I R S T F)`);
+    throw new Error(`Hall symbol '${hall}': unknown lattice symbol '${lattice}' (expected one of P A B C I R F)`);
   }
   for (const t of centring) gens.push({ rot: [1, 0, 0, 0, 1, 0, 0, 0, 1], trans: [...t] });
 
