@@ -36,6 +36,7 @@ beforeAll(() => {
   writeFileSync(join(dir, 'set', 'sub', 'c.cif.gz'), gzipSync(block('c1', -4) + block('c2', -5)));
   writeFileSync(join(dir, 'set', 'sub', 'deeper', 'd.cif'), block('d1', -6));
   writeFileSync(join(dir, 'empty.cif'), '');
+  writeFileSync(join(dir, 'bom.cif'), '\uFEFF' + block('m1', 0));
   writeFileSync(join(dir, 'binary.cif'), Buffer.from([0x89, 0x50, 0x4e, 0x47, 0x00, 0x01, 0x02, 0x03, 0x00]));
   writeFileSync(join(dir, 'plain.cif.gz'), block('p1', 0));
   let many = '';
@@ -91,6 +92,11 @@ describe('readStructures', () => {
     expect(c2.kind === 'record' && c2.record.source).toBe(`${join(dir, 'set', 'sub', 'c.cif.gz')}#c2`);
     expect(c2.kind === 'record' && c2.record.line).toBe(15);
     expect(c2.kind === 'record' && c2.record.text).toBe(block('c2', -5));
+  });
+
+  it('reads a file that starts with a UTF-8 byte-order mark', async () => {
+    const r = await collect(readCifFile(join(dir, 'bom.cif')));
+    expect(ids(r)).toEqual(['m1']);
   });
 
   it('turns an empty file into one rejection with block ""', async () => {

@@ -2,6 +2,7 @@
 // quoted strings close only before white space, text fields, ? and ., reserved words, case-insensitive names,
 // loops, save frames. Expected values are what that specification says the text means.
 import { describe, expect, it } from 'vitest';
+import fc from 'fast-check';
 import { cifColumn, cifNumber, CifSyntaxError, kindAt, lineAt, parseCifBlock, valueAt, ValueKind, type CifBlock } from '../src/io/cif.js';
 
 function values(block: CifBlock, name: string): string[] {
@@ -106,6 +107,28 @@ describe('numbers with standard uncertainties (CIF 1.1 numeric values)', () => {
     expect(cifNumber('+3.')).toBe(3);
     expect(cifNumber('1.5e2')).toBe(150);
     expect(cifNumber('2E-1(3)')).toBe(0.2);
+  });
+
+  it('gives exactly the double that ECMAScript Number() gives for the same digits, with or without an su', () => {
+    // Reference: the ECMAScript Number() string conversion (correctly rounded), on CIF-shaped numerals.
+    const numeral = fc
+      .tuple(
+        fc.constantFrom('', '-', '+'),
+        fc.stringMatching(/^[0-9]{0,12}$/),
+        fc.boolean(),
+        fc.stringMatching(/^[0-9]{0,12}$/),
+        fc.option(fc.tuple(fc.constantFrom('e', 'E'), fc.constantFrom('', '-', '+'), fc.integer({ min: 0, max: 40 }))),
+      )
+      .filter(([, a, , b]) => a.length + b.length > 0)
+      .map(([sign, a, point, b, exp]) => `${sign}${a}${point || b.length > 0 ? '.' : ''}${b}${exp === null ? '' : `${exp[0]}${exp[1]}${exp[2]}`}`);
+    fc.assert(
+      fc.property(numeral, fc.option(fc.nat(999)), (text, su) => {
+        const expected = Number(text);
+        expect(Object.is(cifNumber(text), expected)).toBe(true);
+        if (su !== null) expect(Object.is(cifNumber(`${text}(${su})`), expected)).toBe(true);
+      }),
+      { numRuns: 3000, seed: 42 },
+    );
   });
 
   it('returns NaN for text that is not a CIF number', () => {

@@ -111,6 +111,8 @@ export async function* readCifFile(file: string, opts: ReadOptions = {}): AsyncG
         asciiSoFar = false;
         text = decoder.write(chunk);
       }
+      // A byte-order mark (as some Windows editors write) would hide the first data_ line.
+      if (first && text.charCodeAt(0) === 0xfeff) text = text.slice(1);
       const bad = binaryAt(text, first);
       if (bad) {
         source.destroy();
@@ -154,6 +156,7 @@ export async function* readCifFile(file: string, opts: ReadOptions = {}): AsyncG
 
 /** All blocks of a CIF text held in memory (tests, small inputs). Never throws for bad content. */
 export function readCifText(text: string, file: string, opts: ReadOptions = {}): BlockResult[] {
+  if (text.charCodeAt(0) === 0xfeff) text = text.slice(1);
   if (text.length === 0) return [fileRejected(file, 'the file is empty')];
   if (binaryAt(text, true)) return [fileRejected(file, 'binary data (not CIF text); the file is not read')];
   const splitter = new CifBlockSplitter();
