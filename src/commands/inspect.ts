@@ -92,45 +92,54 @@ export function inspectRecord(record: CrystalRecord, opts: InspectOptions): { en
   }
 }
 
-/** Read every input and inspect every block. */
-export async function inspectInputs(paths: string[], opts: InspectOptions): Promise<InspectReport> {
+/**
+ * Read every input and inspect every block. `onItem`, when given, sees each structure or rejection as
+ * soon as it is ready (the text output streams through it, so a large multi-block file prints as it goes).
+ */
+export async function inspectInputs(
+  paths: string[], opts: InspectOptions, onItem?: (item: { entry: InspectEntry } | { rejected: InspectRejected }) => void,
+): Promise<InspectReport> {
   const report: InspectReport = { structures: [], rejected: [] };
   for await (const r of readStructures(paths, { energyItem: opts.energyItem ?? null })) {
-    if (r.kind === 'rejected') {
-      report.rejected.push(rejectedFromBlock(r.rejected));
-      continue;
-    }
-    const out = inspectRecord(r.record, opts);
+    const out = r.kind === 'rejected' ? { rejected: rejectedFromBlock(r.rejected) } : inspectRecord(r.record, opts);
     if ('entry' in out) report.structures.push(out.entry);
     else report.rejected.push(out.rejected);
+    onItem?.(out);
   }
   return report;
 }
 
-/** Human-readable form of the report. */
-export function formatInspectText(report: InspectReport): string {
+/** Human-readable form of one structure. */
+export function formatEntryText(s: InspectEntry): string {
+  const c = s.cell;
   const lines: string[] = [];
-  for (const s of report.structures) {
-    const c = s.cell;
-    lines.push(`${s.id}  (${s.source}, line ${s.line})`);
-    lines.push(`  cell          a ${fmt(c.a, 4)}  b ${fmt(c.b, 4)}  c ${fmt(c.c, 4)} Å   alpha ${fmt(c.alpha, 3)}  beta ${fmt(c.beta, 3)}  gamma ${fmt(c.gamma, 3)}°`);
-    lines.push(`  volume        ${fmt(s.volumeA3, 2)} Å³`);
-    lines.push(`  space group   ${s.spaceGroup ?? '(not stated)'}; ${s.operations} operation(s) ${describeOrigin(s.operationsFrom)}`);
-    lines.push(`  atoms/cell    ${s.atomsPerCell} (hydrogens included); periodic set ${s.setPoints} points, ${s.asymmetricUnitPoints} in the asymmetric unit (hydrogens ${s.hydrogens === 'keep' ? 'kept' : 'dropped'})`);
-    lines.push(`  density       ${fmt(s.densityGPerCm3, 4)} g/cm³`);
-    lines.push(`  Z             ${s.z}${s.zPrime === null ? '' : `   Z' ${Math.round(s.zPrime * 1000) / 1000}`}`);
-    lines.push(`  molecules     ${s.formulas.join(', ')}`);
-    if (s.energy !== null) lines.push(`  energy        ${s.energy}`);
-    for (const n of s.notes) lines.push(`  note: ${n}`);
-    lines.push('');
-  }
-  if (report.rejected.length > 0) {
-    lines.push(`rejected (${report.rejected.length}):`);
-    for (const r of report.rejected) lines.push(`  ${r.source}, line ${r.line}: ${r.reason}`);
-    lines.push('');
-  }
-  lines.push(`${report.structures.length} structure(s) read, ${report.rejected.length} rejected`);
-  return `${lines.join('\n')}\n`;
+  lines.push(`${s.id}  (${s.source}, line ${s.line})`);
+  lines.push(`  cell          a ${fmt(c.a, 4)}  b ${fmt(c.b, 4)}  c ${fmt(c.c, 4)} Å   alpha ${fmt(c.alpha, 3)}  beta ${fmt(c.beta, 3)}  gamma ${fmt(c.gamma, 3)}°`);
+  lines.push(`  volume        ${fmt(s.volumeA3, 2)} Å³`);
+  lines.push(`  space group   ${s.spaceGroup ?? '(not stated)'}; ${s.operations} operation(s) ${describeOrigin(s.operationsFrom)}`);
+  lines.push(`  atoms/cell    ${s.atomsPerCell} (hydrogens included); periodic set ${s.setPoints} points, ${s.asymmetricUnitPoints} in the asymmetric unit (hydrogens ${s.hydrogens === 'keep' ? 'kept' : 'dropped'})`);
+  lines.push(`  density       ${fmt(s.densityGPerCm3, 4)} g/cm³`);
+  lines.push(`  Z             ${s.z}${s.zPrime === null ? '' : `   Z' ${Math.round(s.zPrime * 1000) / 1000}`}`);
+  lines.push(`  molecules     ${s.formulas.join(', ')}`);
+  if (s.energy !== null) lines.push(`  energy        ${s.energy}`);
+  for (const n of s.notes) lines.push(`  note: ${n}`);
+  return `${lines.join('\n')}\n\n`;
+}
+
+/** Human-readable form of one rejected block. */
+export function formatRejectedText(r: InspectRejected): string {
+  return `rejected: ${r.source}, line ${r.line}: ${r.reason}\n\n`;
+}
+
+/** Human-readable form of a whole report (structures, then rejections, then counts). */
+export function formatInspectText(report: InspectReport): string {
+  return (
+    report.structures.map(formatEntryText).join('') + report.rejected.map(formatRejectedText).join('') + formatSummary(report)
+  );
+}
+
+function formatSummary(report: InspectReport): string {
+  return `${report.structures.length} structure(s) read, ${report.rejected.length} rejected\n`;
 }
 
 export function parseHydrogens(value: string): HydrogenPolicy {
@@ -148,8 +157,16 @@ export function registerInspect(program: Command): void {
     .option('--energy-item <name>', 'CIF data item that holds each structure\'s energy')
     .action(async (inputs: string[], o: { json?: boolean; hydrogens: string; energyItem?: string }) => {
       const opts: InspectOptions = { hydrogens: parseHydrogens(o.hydrogens), energyItem: o.energyItem ?? null };
-      const report = await inspectInputs(inputs, opts);
-      process.stdout.write(o.json ? `${JSON.stringify(report, null, 2)}\n` : formatInspectText(report));
+      let report: InspectReport;
+      if (o.json) {
+        report = await inspectInputs(inputs, opts);
+        process.stdout.write(`${JSON.stringify(report, null, 2)}\n`);
+      } else {
+        report = await inspectInputs(inputs, opts, (item) => {
+          process.stdout.write('entry' in item ? formatEntryText(item.entry) : formatRejectedText(item.rejected));
+        });
+        process.stdout.write(formatSummary(report));
+      }
       if (report.structures.length === 0) {
         throw new Error(`no structure could be used from ${inputs.join(', ')} (${report.rejected.length} block(s) rejected, reasons above)`);
       }
