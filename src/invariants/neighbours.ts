@@ -140,42 +140,104 @@ export function nearestNeighbourDistances(
   if (!(r0 > 0)) throw new Error('the initial search radius must be positive');
 
   const out = new Float64Array(qs.length * k);
-  // Centre of the wrapped motif (middle of its bounding box in the frame) and the farthest point from it.
-  let lo0 = Infinity, lo1 = Infinity, lo2 = Infinity, hi0 = -Infinity, hi1 = -Infinity, hi2 = -Infinity;
-  const proj = prep.proj;
-  for (let p = 0; p < m; p++) {
-    lo0 = Math.min(lo0, proj[p * 3]); hi0 = Math.max(hi0, proj[p * 3]);
-    lo1 = Math.min(lo1, proj[p * 3 + 1]); hi1 = Math.max(hi1, proj[p * 3 + 1]);
-    lo2 = Math.min(lo2, proj[p * 3 + 2]); hi2 = Math.max(hi2, proj[p * 3 + 2]);
+  const { frame, proj, dim } = prep;
+  const nq = qs.length;
+  // Query positions: each query moved by the lattice vector that brings it next to the first query
+  // (nearest-plane rounding in the triangular frame), so the queries form a compact cluster and an
+  // asymmetric unit cut by the cell faces comes back whole. Distances do not change under translation.
+  const qpos = new Float64Array(nq * 3);
+  for (let qi = 0; qi < nq; qi++) {
+    const q = qs[qi];
+    let x = proj[q * 3], y = proj[q * 3 + 1], z = proj[q * 3 + 2];
+    if (qi > 0) {
+      const n0 = Math.round((x - qpos[0]) / frame[0]);
+      x -= n0 * frame[0];
+      y -= n0 * frame[3];
+      z -= n0 * frame[4];
+      if (dim > 1) {
+        const n1 = Math.round((y - qpos[1]) / frame[1]);
+        y -= n1 * frame[1];
+        z -= n1 * frame[5];
+      }
+      if (dim > 2) z -= Math.round((z - qpos[2]) / frame[2]) * frame[2];
+    }
+    qpos[qi * 3] = x;
+    qpos[qi * 3 + 1] = y;
+    qpos[qi * 3 + 2] = z;
   }
-  const c0 = (lo0 + hi0) / 2, c1 = (lo1 + hi1) / 2, c2 = (lo2 + hi2) / 2;
-  const offsetFromCentre = new Float64Array(m);
-  let spread = 0;
-  for (let p = 0; p < m; p++) {
-    const d = Math.hypot(proj[p * 3] - c0, proj[p * 3 + 1] - c1, proj[p * 3 + 2] - c2);
-    offsetFromCentre[p] = d;
-    spread = Math.max(spread, d);
+  // Groups: a cluster much wider than the search radius is cut into boxes about r0 wide, each with
+  // its own cloud, so that no cloud is much wider than r0 plus its box.
+  const lo = [Infinity, Infinity, Infinity];
+  const hi = [-Infinity, -Infinity, -Infinity];
+  for (let qi = 0; qi < nq; qi++) {
+    for (let c = 0; c < 3; c++) {
+      lo[c] = Math.min(lo[c], qpos[qi * 3 + c]);
+      hi[c] = Math.max(hi[c], qpos[qi * 3 + c]);
+    }
   }
-  let cloud = buildCloud(prep, c0, c1, c2, r0 + spread);
+  const cuts = [1, 1, 1];
+  for (let c = 0; c < 3; c++) cuts[c] = Math.max(1, Math.min(4, Math.floor((hi[c] - lo[c]) / r0)));
+  const groupOf = new Int32Array(nq);
+  const groups = cuts[0] * cuts[1] * cuts[2];
+  for (let qi = 0; qi < nq; qi++) {
+    let g = 0;
+    for (let c = 0; c < 3; c++) {
+      const w = (hi[c] - lo[c]) / cuts[c];
+      const cell = w > 0 ? Math.min(cuts[c] - 1, Math.floor((qpos[qi * 3 + c] - lo[c]) / w)) : 0;
+      g = g * cuts[c] + cell;
+    }
+    groupOf[qi] = g;
+  }
+  // A translate of the query itself is at least the shortest lattice vector away, which is at least the
+  // shortest orthogonalised length; a cloud entry of the query's own motif point closer than a tiny
+  // fraction of that is the query itself.
+  let shortest = frame[0];
+  if (dim > 1) shortest = Math.min(shortest, frame[1]);
+  if (dim > 2) shortest = Math.min(shortest, frame[2]);
+  const selfSq = (1e-6 * shortest) ** 2;
+
   // Squared distances of the candidates within R; grown when a pass sees more, never per candidate.
   let seen = new Float64Array(Math.max(64, 2 * k));
   let keys = new Int32Array(seen.length);
   let starts = new Int32Array(seen.length + 1);
   let sorted = new Float64Array(seen.length);
-  for (let qi = 0; qi < qs.length; qi++) {
+  const members = new Int32Array(nq);
+  for (let g = 0; g < groups; g++) {
+    let size = 0;
+    for (let qi = 0; qi < nq; qi++) if (groupOf[qi] === g) members[size++] = qi;
+    if (size === 0) continue;
+    // The group's centre (middle of its bounding box) and its farthest query from it.
+    const glo = [Infinity, Infinity, Infinity];
+    const ghi = [-Infinity, -Infinity, -Infinity];
+    for (let t = 0; t < size; t++) {
+      for (let c = 0; c < 3; c++) {
+        glo[c] = Math.min(glo[c], qpos[members[t] * 3 + c]);
+        ghi[c] = Math.max(ghi[c], qpos[members[t] * 3 + c]);
+      }
+    }
+    const c0 = (glo[0] + ghi[0]) / 2, c1 = (glo[1] + ghi[1]) / 2, c2 = (glo[2] + ghi[2]) / 2;
+    let spread = 0;
+    for (let t = 0; t < size; t++) {
+      const qi = members[t];
+      spread = Math.max(spread, Math.hypot(qpos[qi * 3] - c0, qpos[qi * 3 + 1] - c1, qpos[qi * 3 + 2] - c2));
+    }
+    let cloud = buildCloud(prep, c0, c1, c2, r0 + spread);
+    for (let t = 0; t < size; t++) {
+    const qi = members[t];
     const q = qs[qi];
-    const dq = offsetFromCentre[q];
+    const qx = qpos[qi * 3] - c0, qy = qpos[qi * 3 + 1] - c1, qz = qpos[qi * 3 + 2] - c2;
+    const dq = Math.hypot(qx, qy, qz);
     let radius = r0;
     let count = 0;
     for (;;) {
       if (radius + dq > cloud.radius) cloud = buildCloud(prep, c0, c1, c2, (radius + spread) * 1.0001);
-      count = scanCloud(cloud, q, radius, dq, seen);
+      count = scanCloud(cloud, q, qx, qy, qz, radius, dq, selfSq, seen);
       if (count > seen.length) {
         seen = new Float64Array(2 * count);
         continue; // same radius again, now with room for every candidate
       }
       if (count >= k) break;
-      const grow = count > 0 ? Math.pow((k + 1) / count, 1 / prep.dim) : 2;
+      const grow = count > 0 ? Math.pow((k + 1) / count, 1 / dim) : 2;
       radius *= Math.max(1.25, grow);
     }
     if (keys.length < count) {
@@ -189,17 +251,18 @@ export function nearestNeighbourDistances(
     const rsq = radius * radius * (1 + 1e-9);
     for (let i = 0; i <= count; i++) starts[i] = 0;
     for (let i = 0; i < count; i++) {
-      const t = seen[i] / rsq;
-      const f = prep.dim === 3 ? t * Math.sqrt(t) : prep.dim === 2 ? t : Math.sqrt(t);
+      const f0 = seen[i] / rsq;
+      const f = dim === 3 ? f0 * Math.sqrt(f0) : dim === 2 ? f0 : Math.sqrt(f0);
       const key = Math.min(count - 1, Math.floor(f * count));
       keys[i] = key;
       starts[key + 1]++;
     }
-    for (let b = 0; b < count; b++) starts[b + 1] += starts[b];
+    for (let bk = 0; bk < count; bk++) starts[bk + 1] += starts[bk];
     for (let i = 0; i < count; i++) sorted[starts[keys[i]]++] = seen[i];
     insertionSort(sorted, count);
     const base = qi * k;
     for (let j = 0; j < k; j++) out[base + j] = Math.sqrt(sorted[j]);
+    }
   }
   return out;
 }
@@ -227,8 +290,8 @@ interface Cloud {
   xyz: Float64Array;
   /** SHELLS+1 offsets: shell s holds points [start[s], start[s+1]), distances in [radius*s/SHELLS, radius*(s+1)/SHELLS]. */
   start: Int32Array;
-  /** Position in the cloud of each motif point itself (untranslated), -1 when outside the cloud. */
-  self: Int32Array;
+  /** Motif point each cloud point is a translate of. */
+  owner: Int32Array;
 }
 
 function buildCloud(prep: PreparedSet, c0: number, c1: number, c2: number, radius: number): Cloud {
@@ -237,15 +300,15 @@ function buildCloud(prep: PreparedSet, c0: number, c1: number, c2: number, radiu
   let cap = 1024;
   let raw = new Float64Array(cap * 3);
   let shell = new Int32Array(cap);
-  let isSelf = new Int32Array(cap);
+  let ownerRaw = new Int32Array(cap);
   let n = 0;
   for (;;) {
-    n = enumerateBall(prep, c0, c1, c2, radius, raw, shell, isSelf, cap);
+    n = enumerateBall(prep, c0, c1, c2, radius, raw, shell, ownerRaw, cap);
     if (n <= cap) break;
     cap = 2 * n;
     raw = new Float64Array(cap * 3);
     shell = new Int32Array(cap);
-    isSelf = new Int32Array(cap);
+    ownerRaw = new Int32Array(cap);
   }
   // Counting sort by shell.
   const start = new Int32Array(SHELLS + 1);
@@ -253,15 +316,15 @@ function buildCloud(prep: PreparedSet, c0: number, c1: number, c2: number, radiu
   for (let s = 0; s < SHELLS; s++) start[s + 1] += start[s];
   const fill = start.slice(0, SHELLS);
   const xyz = new Float64Array(n * 3);
-  const self = new Int32Array(m).fill(-1);
+  const owner = new Int32Array(n);
   for (let i = 0; i < n; i++) {
     const at = fill[shell[i]]++;
     xyz[at * 3] = raw[i * 3];
     xyz[at * 3 + 1] = raw[i * 3 + 1];
     xyz[at * 3 + 2] = raw[i * 3 + 2];
-    if (isSelf[i] >= 0) self[isSelf[i]] = at;
+    owner[at] = ownerRaw[i];
   }
-  return { radius, xyz, start, self };
+  return { radius, xyz, start, owner };
 }
 
 /**
@@ -276,7 +339,7 @@ function enumerateBall(
   radius: number,
   raw: Float64Array,
   shell: Int32Array,
-  isSelf: Int32Array,
+  owner: Int32Array,
   cap: number,
 ): number {
   const { frame, proj, m, dim } = prep;
@@ -325,7 +388,7 @@ function enumerateBall(
             raw[count * 3 + 1] = x1;
             raw[count * 3 + 2] = x2;
             shell[count] = Math.min(SHELLS - 1, Math.floor(Math.sqrt(dsq) * shellScale));
-            isSelf[count] = n0 === 0 && n1 === 0 && n2 === 0 ? p : -1;
+            owner[count] = p;
           }
           count++;
         }
@@ -336,37 +399,38 @@ function enumerateBall(
 }
 
 /**
- * Squared distances from motif point q to every cloud point within `radius` of it, written into
- * `seen`; the scan covers the shells that can hold such points (distance from the centre up to
- * radius + dq). Returns how many there are (only the first seen.length are written).
+ * Squared distances from query q (motif point q at (qx, qy, qz) relative to the centre) to every cloud
+ * point within `radius` of it except the query itself, written into `seen`; the scan covers the
+ * shells that can hold such points (distance from the centre up to radius + dq). Returns how many
+ * there are (only the first seen.length are written).
  */
-function scanCloud(cloud: Cloud, q: number, radius: number, dq: number, seen: Float64Array): number {
+function scanCloud(cloud: Cloud, q: number, qx: number, qy: number, qz: number, radius: number, dq: number, selfSq: number, seen: Float64Array): number {
   const xyz = cloud.xyz;
+  const owner = cloud.owner;
   const capacity = seen.length;
-  // The cloud's coordinates are relative to the centre; so are the query's.
   const reach = radius + dq;
   // One shell of slack so that rounding at a shell boundary never drops a point.
   const lastShell = Math.min(SHELLS - 1, Math.floor((reach / cloud.radius) * SHELLS) + 1);
   const end = cloud.start[lastShell + 1];
-  // The query's own entry (always present: every motif point lies within the cloud radius of the centre).
-  const skip = cloud.self[q];
-  if (skip < 0) throw new Error('internal error: a motif point is missing from its own neighbour cloud');
-  const qx = xyz[skip * 3];
-  const qy = xyz[skip * 3 + 1];
-  const qz = xyz[skip * 3 + 2];
   // Widen by a hair so that rounding never drops a candidate at distance exactly `radius`.
   const rr = radius * (1 + 1e-12) + 1e-12;
   const rsq = rr * rr;
+  let selfFound = false;
   let count = 0;
   for (let i = 0; i < end; i++) {
     const dx = xyz[i * 3] - qx;
     const dy = xyz[i * 3 + 1] - qy;
     const dz = xyz[i * 3 + 2] - qz;
     const dsq = dx * dx + dy * dy + dz * dz;
-    if (dsq <= rsq && i !== skip) {
+    if (dsq <= rsq) {
+      if (dsq <= selfSq && !selfFound && owner[i] === q) {
+        selfFound = true; // the query point itself
+        continue;
+      }
       if (count < capacity) seen[count] = dsq;
       count++;
     }
   }
+  if (!selfFound) throw new Error('internal error: the query point is missing from its own neighbour cloud');
   return count;
 }

@@ -42,26 +42,31 @@ export function pdd(set: PeriodicSet, k: number, opts: PddOptions = {}): Pdd {
 }
 
 /**
- * Sort weighted rows lexicographically and merge rows that agree within `toleranceAngstrom` in every
- * column (L-infinity), adding their weights. A row joins the first earlier kept row it is close to
- * (rows equal up to rounding need not be adjacent in the sorted order, so the scan looks back over
- * every kept row whose first entry is within the tolerance). The kept row keeps its own values. The
- * output order is lexicographic with entries closer than the tolerance treated as equal.
+ * Merge rows that agree within `toleranceAngstrom` in every column (L-infinity), adding their weights,
+ * and sort the result lexicographically (entries closer than the tolerance count as equal, so that
+ * rows whose leading entries differ only by rounding come out in the same order for every
+ * description of the set). A row joins the first earlier kept row it is close to; the kept row keeps
+ * its own values. To find close rows cheaply, rows are visited in order of their sums: rows within
+ * the tolerance in every column have sums within k times the tolerance.
  */
 export function collapseRows(rows: Float64Array, weights: Float64Array, k: number, toleranceAngstrom: number): Pdd {
   const n = weights.length;
   if (rows.length !== n * k) throw new Error(`expected ${n}*${k} row entries, got ${rows.length}`);
   if (!(toleranceAngstrom >= 0)) throw new Error(`the collapse tolerance must be >= 0, not ${toleranceAngstrom}`);
+  const sums = new Float64Array(n);
+  let largest = 0;
+  for (let i = 0; i < n; i++) {
+    let t = 0;
+    for (let j = 0; j < k; j++) t += rows[i * k + j];
+    sums[i] = t;
+    largest = Math.max(largest, Math.abs(t));
+  }
+  // Sums of rows within the tolerance differ by at most k*tolerance, plus the rounding of the sums.
+  const sumSlack = k * toleranceAngstrom + 4 * k * Number.EPSILON * largest;
   const order = new Int32Array(n);
   for (let i = 0; i < n; i++) order[i] = i;
-  order.sort((a, b) => {
-    for (let j = 0; j < k; j++) {
-      const d = rows[a * k + j] - rows[b * k + j];
-      if (d !== 0) return d;
-    }
-    return a - b;
-  });
-  const kept = new Int32Array(n); // source row of each kept row, in sorted order
+  order.sort((a, b) => sums[a] - sums[b] || a - b);
+  const kept = new Int32Array(n); // source row of each kept row
   const keptWeight = new Float64Array(n);
   let nKept = 0;
   for (let s = 0; s < n; s++) {
@@ -69,10 +74,11 @@ export function collapseRows(rows: Float64Array, weights: Float64Array, k: numbe
     let into = -1;
     for (let t = nKept - 1; t >= 0; t--) {
       const r = kept[t];
-      if (rows[i * k] - rows[r * k] > toleranceAngstrom) break;
+      if (sums[i] - sums[r] > sumSlack) break;
       let close = true;
       for (let j = 0; j < k; j++) {
-        if (Math.abs(rows[i * k + j] - rows[r * k + j]) > toleranceAngstrom) {
+        const d = rows[i * k + j] - rows[r * k + j];
+        if (d > toleranceAngstrom || d < -toleranceAngstrom) {
           close = false;
           break;
         }
@@ -87,8 +93,6 @@ export function collapseRows(rows: Float64Array, weights: Float64Array, k: numbe
       nKept++;
     }
   }
-  // Final order: lexicographic with entries within the tolerance counted as equal, so that rows whose
-  // leading entries differ only by rounding come out in the same order for every description of the set.
   const final = new Int32Array(nKept);
   for (let t = 0; t < nKept; t++) final[t] = t;
   final.sort((a, b) => {
