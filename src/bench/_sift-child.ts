@@ -1,0 +1,30 @@
+// Child process of the sift benchmark: one end-to-end sift (as the command runs it: read, invariants, collapse,
+// neighbours, families, every output file written) in a fresh process, reporting its own peak memory.
+// Usage: node dist/bench/_sift-child.js <cif> <energies.csv> <out> <cacheDir> <toleranceAngstrom> <threads>
+import { performance } from 'node:perf_hooks';
+import { sift } from '../landscape/sift.js';
+import { siftFiles } from '../landscape/sift-files.js';
+import { writeFilesAtomically } from '../io/outputs.js';
+
+const [cif, energies, out, cacheDir, tolerance, threads] = process.argv.slice(2);
+const t0 = performance.now();
+const run = await sift({
+  inputs: [cif],
+  energiesFile: energies,
+  cacheDir,
+  toleranceAngstrom: Number(tolerance),
+  threads: Number(threads),
+});
+writeFilesAtomically(out, siftFiles(run));
+const seconds = (performance.now() - t0) / 1000;
+process.stdout.write(
+  `${JSON.stringify({
+    seconds,
+    // Peak resident set size of this process (worker threads included), kB -> MB.
+    peakMb: process.resourceUsage().maxRSS / 1024,
+    counts: run.landscape.counts,
+    families: run.landscape.families.length,
+    cache: { hits: run.cache.hits, misses: run.cache.misses },
+    timings: run.landscape.run.timingsSeconds,
+  })}\n`,
+);
