@@ -56,6 +56,8 @@ describe('elementFromSite', () => {
     ['D', 'D1', 'H', /deuterium/],
     ['C', 'CA1', 'C', null],
     ['Ca2+', 'CA1', 'Ca', null],
+    ['Csp3', 'C1', 'C', /could be Cs/],
+    ['Cval', 'C1', 'C', /read as C/],
     // from the label
     [null, 'Cl1', 'Cl', null],
     [null, 'C12A', 'C', null],

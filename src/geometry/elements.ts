@@ -152,7 +152,13 @@ function readSymbolPrefix(text: string, what: string): ElementReading {
   // Both readings are elements: mixed case ('Ca1', 'Cl1') says two letters, capitals are ambiguous.
   const secondIsLower = second === second.toLowerCase();
   if (what === 'type symbol') {
-    // Type symbols are element symbols by definition (CIF core dictionary), so two letters win.
+    // Type symbols start with the element symbol (CIF core dictionary), so two letters win, unless
+    // more letters follow (an atom-type name such as 'Csp3'), which leaves both readings open.
+    if (letters.length > 2) {
+      const r = hydrogenIsotope(one);
+      const element = 'element' in r ? r.element : one;
+      return { element, note: `type symbol '${text}' read as ${element}, could be ${two}` };
+    }
     return { element: two };
   }
   if (secondIsLower) return { element: two };
