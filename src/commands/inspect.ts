@@ -8,6 +8,8 @@ import type { HydrogenPolicy } from '../landscape/schema.js';
 import { readStructures } from '../io/read.js';
 import { crystalFacts } from '../geometry/facts.js';
 import { toPeriodicSet } from '../geometry/periodic-set.js';
+import { pdd } from '../invariants/pdd.js';
+import { amd } from '../invariants/amd.js';
 
 /** Default hydrogen handling: left out, since X-ray hydrogen positions are short and uncertain (common practice). */
 export const DEFAULT_HYDROGENS: HydrogenPolicy = 'drop';
@@ -15,7 +17,12 @@ export const DEFAULT_HYDROGENS: HydrogenPolicy = 'drop';
 export interface InspectOptions {
   hydrogens: HydrogenPolicy;
   energyItem?: string | null;
+  /** PDD depth; when set, each entry carries its PDD and AMD (the --json output). */
+  k?: number;
 }
+
+/** Default PDD depth for `inspect --json` (the project-wide default k). */
+export const DEFAULT_INSPECT_K = 100;
 
 /** One structure as `inspect --json` reports it. */
 export interface InspectEntry {
@@ -39,6 +46,10 @@ export interface InspectEntry {
   /** Symmetry orbits among those points (points of the asymmetric unit). */
   asymmetricUnitPoints: number;
   notes: string[];
+  /** PDD of the periodic set: k, weights (adding up to 1) and rows of k ascending distances in Å (when `k` is asked for). */
+  pdd?: { k: number; weights: number[]; rows: number[][] };
+  /** AMD vector in Å (k values), when `k` is asked for. */
+  amd?: number[];
 }
 
 export interface InspectRejected {
@@ -76,7 +87,16 @@ export function inspectEntryJson(
     setPoints: set.atomicNumbers.length,
     asymmetricUnitPoints: set.asym.length,
     notes: uniqueNotes([...record.notes, ...facts.notes, ...setNotes]),
+    ...(opts.k === undefined ? {} : invariantsJson(set, opts.k)),
   };
+}
+
+/** PDD and AMD of a set as plain JSON arrays (src/invariants/pdd.ts, amd.ts). */
+function invariantsJson(set: PeriodicSet, k: number): { pdd: { k: number; weights: number[]; rows: number[][] }; amd: number[] } {
+  const p = pdd(set, k);
+  const rows: number[][] = [];
+  for (let i = 0; i < p.weights.length; i++) rows.push(Array.from(p.rows.subarray(i * k, (i + 1) * k)));
+  return { pdd: { k, weights: Array.from(p.weights), rows }, amd: Array.from(amd(p)) };
 }
 
 /** Inspect one record; a structure that cannot be used becomes a rejection with the reason. */
@@ -142,6 +162,13 @@ function formatSummary(report: InspectReport): string {
   return `${report.structures.length} structure(s) read, ${report.rejected.length} rejected\n`;
 }
 
+/** The -k value: a whole number of neighbours, at least 1. */
+export function parseDepth(value: string): number {
+  const k = Number(value);
+  if (!/^\s*\d+\s*$/.test(value) || !Number.isInteger(k) || k < 1) throw new Error(`-k must be a whole number of neighbours, at least 1, not '${value}'`);
+  return k;
+}
+
 export function parseHydrogens(value: string): HydrogenPolicy {
   if (value === 'keep' || value === 'drop') return value;
   throw new Error(`--hydrogens must be keep or drop, not '${value}'`);
@@ -155,8 +182,10 @@ export function registerInspect(program: Command): void {
     .option('--json', 'print one JSON document instead of text')
     .option('--hydrogens <keep|drop>', 'keep or drop hydrogen (and deuterium) atoms in the periodic set', DEFAULT_HYDROGENS)
     .option('--energy-item <name>', 'CIF data item that holds each structure\'s energy')
-    .action(async (inputs: string[], o: { json?: boolean; hydrogens: string; energyItem?: string }) => {
+    .option('-k <n>', 'PDD depth (neighbours per row) for the PDD and AMD in the --json output', String(DEFAULT_INSPECT_K))
+    .action(async (inputs: string[], o: { json?: boolean; hydrogens: string; energyItem?: string; k: string }) => {
       const opts: InspectOptions = { hydrogens: parseHydrogens(o.hydrogens), energyItem: o.energyItem ?? null };
+      if (o.json) opts.k = parseDepth(o.k);
       let report: InspectReport;
       if (o.json) {
         report = await inspectInputs(inputs, opts);
