@@ -116,7 +116,20 @@ describe('symmetry operations in every spelling', () => {
     const rec = record(readCifText(`data_s\n${CELL}_space_group_name_H-M_alt 'P 1 21/c 1'\n${SITES}`, 's.cif'));
     expect(rec.opsOrigin).toBe('symbol');
     expect(rec.ops.length).toBe(4);
-    expect(rec.notes.join()).toMatch(/built from the space-group symbol/);
+    expect(rec.notes.join()).toMatch(/the 4 operations were built from the H-M symbol 'P 1 21\/c 1'/);
+  });
+
+  it('builds operations from a Hall symbol when no operations and no supported H-M symbol are given', () => {
+    // R -3 c (hexagonal axes) is not in the H-M list; its Hall symbol '-R 3 2"c' gives the 36 operations
+    // of International Tables Vol. A space group 167 (hexagonal setting: 12 point operations x 3 centrings).
+    const rec = record(readCifText(`data_s\n${CELL}_symmetry_space_group_name_H-M 'R -3 c'\n_symmetry_space_group_name_Hall '-R 3 2"c'\n${SITES}`, 's.cif'));
+    expect(rec.opsOrigin).toBe('symbol');
+    expect(rec.ops.length).toBe(36);
+    expect(rec.spaceGroup).toBe('R -3 c');
+    expect(rec.notes.join()).toMatch(/built from the Hall symbol '-R 3 2"c'/);
+    const p21c = record(readCifText(`data_s\n${CELL}_space_group_name_Hall '-P 2ybc'\n${SITES}`, 's.cif'));
+    const key = (o: { rot: number[]; trans: number[] }): string => `${o.rot.join(',')}|${o.trans.map((t) => ((t % 1) + 1) % 1).join(',')}`;
+    expect(new Set(p21c.ops.map(key))).toEqual(new Set(P21C_OPS.map(key)));
   });
 
   it('rejects a block with only an unsupported symbol, naming it and the supported list', () => {
@@ -234,6 +247,7 @@ describe('bad input: every block read or rejected with file, block, line and rea
     ['non-numeric coordinate', `data_b\n${CELL}${SITES}N2 N 0.1 abc 0.3\n`, /^line 16: y coordinate of site N2 is 'abc', not a number/],
     ['unknown element', `data_b\n${CELL}${SITES}Qq1 Qq 0.1 0.2 0.3\n`, /^line 16: .*Qq/],
     ['no atom sites', `data_b\n${CELL}`, /no atom sites/],
+    ['no structure at all', `data_b\n_journal_year 2003\n_publ_section_title\n;\nA title\n;\n`, /holds no crystal structure/],
     ['Cartesian only', `data_b\n${CELL}loop_\n_atom_site_label\n_atom_site_Cartn_x\n_atom_site_Cartn_y\n_atom_site_Cartn_z\nC1 0 0 0\n`, /only in Cartesian/],
     ['loop count', `data_b\n${CELL}${SITES}N2 N 0.1 0.2\n`, /^line 8: loop_ .*14 values for 5 names/],
     ['unterminated quote', `data_b\n${CELL}_chemical_name 'never closed\n${SITES}`, /^line 8: quoted string/],

@@ -4,6 +4,7 @@
 // (`_space_group_symop_operation_xyz`) and the older (`_symmetry_equiv_pos_as_xyz`) spellings.
 import type { BlockResult, CellParams, CrystalRecord, Site, SymOp } from '../types.js';
 import { opsFromSymbol, opKey, parseSymopXyz, SUPPORTED_SYMBOLS } from '../geometry/symmetry.js';
+import { opsFromHall } from '../geometry/hall.js';
 import { elementFromSite, type ElementReading } from '../geometry/elements.js';
 import {
   cifColumn,
@@ -72,6 +73,11 @@ export function blockResult(raw: RawBlock, file: string, opts: ReadOptions = {})
 export function recordFromBlock(block: CifBlock, text: string, file: string, opts: ReadOptions = {}): CrystalRecord | string {
   const notes: string[] = [...block.warnings];
 
+  // A block with neither cell nor sites is not a structure (publication data, reflections): say so plainly.
+  if (cifColumn(block, '_cell_length_a') === null && cifColumn(block, '_atom_site_fract_x') === null) {
+    return 'the block holds no crystal structure (no _cell_length_* and no _atom_site_fract_*), as in a publication or reflection-data block';
+  }
+
   // ---- cell ----
   const cell = { a: 0, b: 0, c: 0, alpha: 0, beta: 0, gamma: 0 } as CellParams;
   for (const [key, name] of CELL_NAMES) {
@@ -107,23 +113,29 @@ export function recordFromBlock(block: CifBlock, text: string, file: string, opt
   const spaceGroup = hm ?? hall;
   const listed = readListedOps(block, notes);
   if (typeof listed === 'string') return listed;
+  // The symbol that can be expanded: a supported H-M symbol, else a Hall symbol (explicit generators).
+  const symbolRef: SymbolRef | null =
+    hm !== null && cachedSymbolOps(hm, 'H-M') !== null
+      ? { symbol: hm, kind: 'H-M' }
+      : hall !== null && cachedSymbolOps(hall, 'Hall') !== null
+        ? { symbol: hall, kind: 'Hall' }
+        : null;
   let ops: SymOp[];
   let opsOrigin: CrystalRecord['opsOrigin'];
   if (listed !== null) {
     ops = listed;
     opsOrigin = 'listed';
-    if (spaceGroup !== null) compareWithSymbol(ops, spaceGroup, hm !== null ? 'H-M' : 'Hall', notes);
-  } else if (spaceGroup !== null) {
-    const built = symbolOps(hm) ?? symbolOps(hall);
-    if (built === null) {
-      return (
-        `no symmetry operations are listed and the space-group symbol '${spaceGroup}' is not one this reader can expand ` +
-        `(supported: ${SUPPORTED_SYMBOLS.join(', ')}); list the operations with _space_group_symop_operation_xyz`
-      );
-    }
-    ops = built;
+    if (symbolRef !== null) compareWithSymbol(ops, symbolRef, notes);
+  } else if (symbolRef !== null) {
+    ops = cachedSymbolOps(symbolRef.symbol, symbolRef.kind)!.map((op) => ({ rot: op.rot.slice(), trans: op.trans.slice() }));
     opsOrigin = 'symbol';
-    notes.push(`operations built from the space-group symbol '${spaceGroup}' (standard setting; no operations were listed)`);
+    notes.push(`no operations are listed: the ${ops.length} operations were built from the ${symbolRef.kind} symbol '${symbolRef.symbol}'`);
+  } else if (spaceGroup !== null) {
+    return (
+      `no symmetry operations are listed and the space-group symbol '${spaceGroup}' is not one this reader can expand ` +
+      `(H-M symbols supported: ${SUPPORTED_SYMBOLS.join(', ')}; any Hall symbol in _space_group_name_Hall is expanded); ` +
+      `list the operations with _space_group_symop_operation_xyz or give the Hall symbol`
+    );
   } else {
     const num = firstText(block, NUMBER_NAMES);
     if (num !== null && cifNumber(num) !== 1) {
@@ -240,38 +252,46 @@ function cachedOp(text: string): SymOp {
   return { rot: op.rot.slice(), trans: op.trans.slice() };
 }
 
-/** Symbol -> its operations (null when unsupported); prediction files repeat a few symbols in every block. */
+type SymbolKind = 'H-M' | 'Hall';
+interface SymbolRef {
+  symbol: string;
+  kind: SymbolKind;
+}
+
+/** (kind, symbol) -> its operations (null when it cannot be expanded); files repeat a few symbols in every block. */
 const symbolCache = new Map<string, SymOp[] | null>();
 
-function cachedSymbolOps(symbol: string): SymOp[] | null {
-  let ops = symbolCache.get(symbol);
+function cachedSymbolOps(symbol: string, kind: SymbolKind): SymOp[] | null {
+  const key = `${kind}\u0000${symbol}`;
+  let ops = symbolCache.get(key);
   if (ops === undefined) {
-    ops = opsFromSymbol(symbol);
+    if (kind === 'H-M') ops = opsFromSymbol(symbol);
+    else {
+      try {
+        ops = opsFromHall(symbol);
+      } catch {
+        ops = null;
+      }
+    }
     if (symbolCache.size >= OP_CACHE_MAX) symbolCache.clear();
-    symbolCache.set(symbol, ops);
+    symbolCache.set(key, ops);
   }
   return ops;
 }
 
-function symbolOps(symbol: string | null): SymOp[] | null {
-  if (symbol === null) return null;
-  const ops = cachedSymbolOps(symbol);
-  return ops === null ? null : ops.map((op) => ({ rot: op.rot.slice(), trans: op.trans.slice() }));
-}
-
 /** Keys of a symbol's operations, for comparing with listed ones. */
-const symbolKeyCache = new Map<string, Set<string> | null>();
+const symbolKeyCache = new Map<string, Set<string>>();
 
-/** Note when listed operations are not the default setting of the declared symbol (the listed ones are used). */
-function compareWithSymbol(ops: SymOp[], symbol: string, kind: string, notes: string[]): void {
-  let symbolKeys = symbolKeyCache.get(symbol);
+/** Note when listed operations are not the setting the declared symbol names (the listed ones are used). */
+function compareWithSymbol(ops: SymOp[], ref: SymbolRef, notes: string[]): void {
+  const { symbol, kind } = ref;
+  const key = `${kind}\u0000${symbol}`;
+  let symbolKeys = symbolKeyCache.get(key);
   if (symbolKeys === undefined) {
-    const fromSymbol = cachedSymbolOps(symbol);
-    symbolKeys = fromSymbol === null ? null : new Set(fromSymbol.map(opKey));
+    symbolKeys = new Set(cachedSymbolOps(symbol, kind)!.map(opKey));
     if (symbolKeyCache.size >= OP_CACHE_MAX) symbolKeyCache.clear();
-    symbolKeyCache.set(symbol, symbolKeys);
+    symbolKeyCache.set(key, symbolKeys);
   }
-  if (symbolKeys === null) return;
   const listedKeys = new Set(ops.map(opKey));
   let same = listedKeys.size === symbolKeys.size;
   if (same) for (const k of listedKeys) if (!symbolKeys.has(k)) same = false;
