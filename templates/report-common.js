@@ -85,18 +85,30 @@
     return points > 400 && hasWebGL() ? 'scattergl' : 'scatter';
   }
 
-  /** Rows of k little-endian Float32 values packed in base64; returns row(r) -> Float64Array. */
-  function float32Rows(base64, k) {
-    var bytes = null;
+  /**
+   * Rows of k packed values (src/report/sift-data.ts packAmd): `f32` is little-endian Float32,
+   * `u16-delta` little-endian Uint16 differences on a grid of `step`. Returns row(r) -> Float64Array;
+   * the base64 text is decoded on first use.
+   */
+  function packedRows(base64, k, encoding, step) {
+    var view = null;
     return function (r) {
-      if (bytes === null) {
+      if (view === null) {
         var bin = atob(base64);
-        bytes = new Uint8Array(bin.length);
+        var bytes = new Uint8Array(bin.length);
         for (var i = 0; i < bin.length; i++) bytes[i] = bin.charCodeAt(i);
+        view = new DataView(bytes.buffer);
       }
-      var view = new DataView(bytes.buffer);
       var out = new Float64Array(k);
-      for (var j = 0; j < k; j++) out[j] = view.getFloat32((r * k + j) * 4, true);
+      if (encoding === 'f32') {
+        for (var j = 0; j < k; j++) out[j] = view.getFloat32((r * k + j) * 4, true);
+      } else {
+        var q = 0;
+        for (var j2 = 0; j2 < k; j2++) {
+          q += view.getUint16((r * k + j2) * 2, true);
+          out[j2] = q * step;
+        }
+      }
       return out;
     };
   }
@@ -130,7 +142,9 @@
     var all = true;
     Object.keys(readyParts).forEach(function (k) { if (!readyParts[k]) all = false; });
     window.polysiftReadyParts = readyParts;
-    if (all) {
+    if (all && !window.polysiftReady) {
+      // Milliseconds since navigation started, read by the report benchmark.
+      window.polysiftReadyAtMs = performance.now();
       window.polysiftReady = true;
       document.documentElement.setAttribute('data-ready', 'true');
     }
@@ -142,7 +156,7 @@
 
   /**
    * A sortable, filterable, paged table over items (numbers). Header buttons sort (click, Enter, Space;
-   * aria-sort tells the order); rows are focusable: Enter or Space activates, arrow keys move.
+   * aria-sort tells the order); rows are focusable: Enter or Space activates, arrow keys, Home and End move.
    *   opts.table, opts.columns [{label, numeric, wrap, value(item), text(item), cell(item) optional}],
    *   opts.items, opts.pageSize, opts.filterInput, opts.filterText(item), opts.countEl,
    *   opts.prevButton, opts.nextButton, opts.pageEl, opts.onActivate(item), opts.rowLabel(item)
@@ -216,7 +230,11 @@
       var start = page * pageSize;
       var end = Math.min(view.length, start + pageSize);
       var frag = document.createDocumentFragment();
-      for (var p = start; p < end; p++) frag.appendChild(makeRow(view[p]));
+      // One row is in the tab order (the selected one when it is on this page, else the first);
+      // arrow keys move between rows.
+      var onPage = view.slice(start, end);
+      var tabItem = onPage.indexOf(selected) >= 0 ? selected : onPage[0];
+      for (var p = start; p < end; p++) frag.appendChild(makeRow(view[p], view[p] === tabItem));
       body.appendChild(frag);
       var pages = Math.max(1, Math.ceil(view.length / pageSize));
       if (opts.pageEl) opts.pageEl.textContent = view.length === 0 ? 'no rows' : 'rows ' + (start + 1) + '–' + end + ' of ' + view.length + ' (page ' + (page + 1) + ' of ' + pages + ')';
@@ -225,10 +243,10 @@
       if (opts.countEl) opts.countEl.textContent = query ? view.length + ' of ' + items.length + ' match' : items.length + ' rows';
     }
 
-    function makeRow(it) {
+    function makeRow(it, inTabOrder) {
       var tr = el('tr', { 'data-item': it });
       if (opts.onActivate) {
-        tr.tabIndex = 0;
+        tr.tabIndex = inTabOrder ? 0 : -1;
         tr.setAttribute('aria-selected', it === selected ? 'true' : 'false');
         if (opts.rowLabel) tr.setAttribute('aria-label', opts.rowLabel(it));
       }
@@ -256,10 +274,20 @@
         } else if (ev.key === 'ArrowDown' || ev.key === 'ArrowUp') {
           ev.preventDefault();
           var next = ev.key === 'ArrowDown' ? tr.nextElementSibling : tr.previousElementSibling;
-          if (next) next.focus();
+          if (next) moveFocus(tr, next);
+        } else if (ev.key === 'Home' || ev.key === 'End') {
+          ev.preventDefault();
+          var edge = ev.key === 'Home' ? body.firstElementChild : body.lastElementChild;
+          if (edge) moveFocus(tr, edge);
         }
       });
     }
+    function moveFocus(from, to) {
+      from.tabIndex = -1;
+      to.tabIndex = 0;
+      to.focus();
+    }
+
     if (opts.prevButton) opts.prevButton.addEventListener('click', function () { if (page > 0) { page--; render(); } });
     if (opts.nextButton) opts.nextButton.addEventListener('click', function () { if ((page + 1) * pageSize < view.length) { page++; render(); } });
     if (opts.filterInput) {
@@ -310,7 +338,7 @@
     fmtDistance: fmtDistance,
     hasWebGL: hasWebGL,
     scatterType: scatterType,
-    float32Rows: float32Rows,
+    packedRows: packedRows,
     plotConfig: plotConfig,
     baseLayout: baseLayout,
     markReady: markReady,

@@ -3,7 +3,9 @@
   'use strict';
   var P = window.PolysiftPage;
   var el = P.el;
+  performance.mark('polysift:start');
   var D = P.readData();
+  performance.mark('polysift:data');
   var S = D.s;
   var unit = D.parameters.energyUnit;
   var hasEnergies = D.lowestEnergy !== null;
@@ -41,10 +43,11 @@
   var amdOf = null;
   if (D.amd) {
     D.amd.index.forEach(function (s, r) { amdRow[s] = r; });
-    amdOf = P.float32Rows(D.amd.base64, D.amd.k);
+    amdOf = P.packedRows(D.amd.base64, D.amd.k, D.amd.encoding, D.amdStepAngstrom);
   }
 
-  function source(i) { return D.files[S.file[i]] + '#' + S.block[i]; }
+  function blockOf(i) { return S.block[i] === null ? S.id[i] : S.block[i]; }
+  function source(i) { return D.files[S.file[i]] + '#' + blockOf(i); }
   function yOf(i) { return hasEnergies ? S.energyRel[i] : 0; }
   function familyColour(f) { return f < 0 ? D.unassignedColour : D.familyColours[f % D.familyColours.length]; }
   function familySymbol(f) { return f < 0 ? 'circle' : SYMBOLS[Math.floor(f / D.familyColours.length) % SYMBOLS.length]; }
@@ -128,11 +131,15 @@
       opacity: 0.92,
     },
   });
-  report.traces.highlight = traces.length;
-  traces.push({
-    type: 'scatter', mode: 'markers', name: 'Selected', x: [], y: [], hoverinfo: 'skip',
-    marker: { size: 26, symbol: 'circle-open', color: '#111111', line: { width: 3 } },
-  });
+
+  // The selected structure is ringed by a layout shape of fixed pixel size: moving a shape redraws only
+  // the shape, where restyling a trace would recompute every trace of a 10,000-point plot.
+  function ring(x, y, radiusPx) {
+    return {
+      type: 'circle', xref: 'x', yref: 'y', xsizemode: 'pixel', ysizemode: 'pixel', xanchor: x, yanchor: y,
+      x0: -radiusPx, x1: radiusPx, y0: -radiusPx, y1: radiusPx, layer: 'above', line: { color: '#111111', width: 2.5 },
+    };
+  }
 
   function hoverText(i) {
     var lines = ['<b>' + P.escapeForPlot(S.id[i]) + '</b>',
@@ -163,7 +170,9 @@
   });
   if (D.familySizes.length > shown.length) legend.appendChild(el('span', null, '… and ' + (D.familySizes.length - shown.length) + ' more families'));
 
+  performance.mark('polysift:traces');
   Plotly.newPlot(landscapeDiv, traces, landscapeLayout, P.plotConfig).then(function () {
+    performance.mark('polysift:landscape');
     landscapeDiv.on('plotly_click', function (ev) { onPlotClick(ev, 'landscape'); });
     P.markReady('landscape');
     // The other panels draw after the landscape so that it appears first.
@@ -221,10 +230,10 @@
   // ---- Selection: marker, map, row and panel follow one structure ------------------------------
   function select(i, from) {
     report.selected = i;
-    Plotly.restyle(landscapeDiv, { x: [[S.density[i]]], y: [[yOf(i)]] }, [report.traces.highlight]);
-    if (report.traces.mapHighlight !== undefined && D.embedding && keptPos[i] !== undefined) {
+    Plotly.relayout(landscapeDiv, { shapes: [ring(S.density[i], yOf(i), 13)] });
+    if (report.mapDrawn && keptPos[i] !== undefined) {
       var xy = D.embedding.coords[keptPos[i]];
-      Plotly.restyle(mapDiv, { x: [[xy[0]]], y: [[xy[1]]] }, [report.traces.mapHighlight]);
+      Plotly.relayout(mapDiv, { shapes: [ring(xy[0], xy[1], 11)] });
     }
     keptTable.reveal(i, from === 'table');
     showPanel(i);
@@ -236,7 +245,8 @@
     document.getElementById('panel-body').hidden = true;
     document.getElementById('panel-empty').hidden = false;
     report.selected = null;
-    Plotly.restyle(landscapeDiv, { x: [[]], y: [[]] }, [report.traces.highlight]);
+    Plotly.relayout(landscapeDiv, { shapes: [] });
+    if (report.mapDrawn) Plotly.relayout(mapDiv, { shapes: [] });
   });
   document.getElementById('amd-difference').addEventListener('change', function () {
     if (report.selected !== null) drawAmd(report.selected);
@@ -254,7 +264,7 @@
     function fact(name, value) { facts.appendChild(el('dt', null, name)); facts.appendChild(el('dd', null, value)); }
     fact('Source', source(i));
     fact('File', D.files[S.file[i]]);
-    fact('Block', S.block[i] + ' (line ' + S.line[i] + ')');
+    fact('Block', blockOf(i) + ' (line ' + S.line[i] + ')');
     fact('Rel. energy', energyText(i));
     fact('Energy', S.energy[i] === null ? '–' : P.fmt(S.energy[i], 3) + ' ' + unit);
     fact('Density', P.fmt(S.density[i], 4) + ' g/cm³');
@@ -368,14 +378,13 @@
         symbol: D.kept.map(function (i) { return familySymbol(S.family[i]); }), line: { color: '#ffffff', width: 0.5 },
       },
     });
-    report.traces.mapHighlight = 1;
     var sel = report.selected !== null && keptPos[report.selected] !== undefined ? em.coords[keptPos[report.selected]] : null;
-    traces.push({ type: 'scatter', mode: 'markers', x: sel ? [sel[0]] : [], y: sel ? [sel[1]] : [], hoverinfo: 'skip',
-      marker: { size: 22, symbol: 'circle-open', color: '#111111', line: { width: 3 } } });
     Plotly.newPlot(mapDiv, traces, P.baseLayout({
+      shapes: sel ? [ring(sel[0], sel[1], 11)] : [],
       xaxis: { title: { text: 'map x (Å)' }, zeroline: false, gridcolor: '#e6eaee' },
       yaxis: { title: { text: 'map y (Å)' }, zeroline: false, gridcolor: '#e6eaee', scaleanchor: 'x', scaleratio: 1 },
     }), P.plotConfig).then(function () {
+      report.mapDrawn = true;
       mapDiv.on('plotly_click', function (ev) { onPlotClick(ev, 'map'); });
     });
   }

@@ -15,7 +15,7 @@ import { launchChromium, openFile, type PageWatch } from './helpers/browser.js';
 const SCREENS = join(process.cwd(), 'reports', 'test-screens');
 
 interface ReportGlobals {
-  polysiftReport: { traces: { kept: number; duplicates: number; highlight: number }; selected: number | null };
+  polysiftReport: { traces: { kept: number; duplicates: number }; selected: number | null };
 }
 
 describe('the sift report in a browser', () => {
@@ -102,7 +102,10 @@ describe('the sift report in a browser', () => {
       const box = gd.getBoundingClientRect();
       return { x: box.left + gd._fullLayout.xaxis._offset + gd._fullLayout.xaxis.l2p(t.x[p]!), y: box.top + gd._fullLayout.yaxis._offset + gd._fullLayout.yaxis.l2p(t.y[p]!) };
     }, target.point);
+    // As a user does: hover until the label shows (the plot picks the clicked point from its hover data), then click.
+    await w.page.mouse.move(pos.x - 3, pos.y - 3);
     await w.page.mouse.move(pos.x, pos.y);
+    await w.page.waitForSelector('#landscape-plot .hoverlayer .hovertext', { timeout: 15_000 });
     await w.page.mouse.click(pos.x, pos.y);
     await w.page.waitForFunction((want) => document.getElementById('panel-id')?.textContent === want, id, { timeout: 15_000 });
     expect(await w.page.isVisible('#panel-body')).toBe(true);
@@ -114,9 +117,14 @@ describe('the sift report in a browser', () => {
     const listed = (await w.page.locator('#members-table tbody tr td:first-child').allTextContents()).sort();
     expect(listed).toEqual(dupIds);
     // Its AMD curve and its neighbours' are drawn.
-    const curves = await w.page.evaluate(() => (document.getElementById('amd-plot') as unknown as { data: unknown[] }).data.length);
+    const curves = await w.page.evaluate(() => (document.getElementById('amd-plot') as unknown as { data: Array<{ y: number[] }> }).data);
     const neighbourCount = land.edges.filter((e) => e[0] === idx || e[1] === idx).length;
-    expect(curves).toBe(Math.min(5, neighbourCount) + 1);
+    expect(curves.length).toBe(Math.min(5, neighbourCount) + 1);
+    // Its own curve (drawn last) is its AMD from landscape.json, decoded in the page to within 1e-4 Å.
+    const own = land.invariants.kept.find((r) => r.index === idx)!.amd;
+    const drawn = curves[curves.length - 1]!.y;
+    expect(drawn.length).toBe(own.length);
+    own.forEach((v, j) => expect(Math.abs(drawn[j]! - v)).toBeLessThan(1e-4));
   });
 
   it('sorting the table by a column header reorders its rows (click, then Enter and Space on the header button)', async () => {
@@ -155,14 +163,17 @@ describe('the sift report in a browser', () => {
     expect(next).not.toBe(idx);
     await w.page.keyboard.press('Enter');
     await w.page.waitForFunction((want) => document.getElementById('panel-id')?.textContent === want, land.structures[next]!.id);
+    // The marker is ringed: one shape anchored at the structure's density and relative energy.
     const hl = await w.page.evaluate(() => {
       const g = window as unknown as ReportGlobals;
-      const gd = document.getElementById('landscape-plot') as unknown as { data: Array<{ x: number[]; y: number[] }> };
-      return { x: gd.data[g.polysiftReport.traces.highlight]!.x, selected: g.polysiftReport.selected };
+      const gd = document.getElementById('landscape-plot') as unknown as { layout: { shapes: Array<{ xanchor: number; yanchor: number }> } };
+      return { shapes: gd.layout.shapes, selected: g.polysiftReport.selected };
     });
     expect(hl.selected).toBe(next);
-    expect(hl.x.length).toBe(1);
-    expect(hl.x[0]).toBeCloseTo(land.structures[next]!.densityGPerCm3!, 5);
+    expect(hl.shapes.length).toBe(1);
+    expect(hl.shapes[0]!.xanchor).toBeCloseTo(land.structures[next]!.densityGPerCm3!, 5);
+    expect(hl.shapes[0]!.yanchor).toBeCloseTo(land.structures[next]!.energyRel!, 4);
+    expect(await w.page.evaluate(() => document.querySelectorAll('#landscape-plot .shapelayer path').length)).toBeGreaterThan(0);
   });
 
   it('the filter box narrows the table to matching structures', async () => {

@@ -7,7 +7,7 @@ import { runInNewContext } from 'node:vm';
 import { escapeHtml, inlineScriptSource, jsonForScript } from '../src/report/escape.js';
 import { colourAt, colourClasses, stepColourscale, VIRIDIS_STOPS } from '../src/report/colours.js';
 import { logHistogram } from '../src/report/log-histogram.js';
-import { buildEdgeClasses, buildSiftPageData, edgeClassOf, EDGE_CLASSES } from '../src/report/sift-data.js';
+import { AMD_STEP_ANGSTROM, buildEdgeClasses, buildSiftPageData, edgeClassOf, EDGE_CLASSES, packAmd, unpackAmdRow } from '../src/report/sift-data.js';
 import { renderSiftReport, LANDSCAPE_CAUTION } from '../src/report/sift-report.js';
 import { plotlyBundlePath, readPlotlyBundle } from '../src/report/assets.js';
 import { PAGE_DATA_ID } from '../src/report/page.js';
@@ -143,7 +143,7 @@ describe('page data of the sift report', () => {
     expect(data.s.id.length).toBe(land.structures.length);
     land.structures.forEach((r, i) => {
       expect(data.s.id[i]).toBe(r.id);
-      expect(data.files[data.s.file[i]!]! + '#' + data.s.block[i]).toBe(r.source);
+      expect(data.files[data.s.file[i]!]! + '#' + (data.s.block[i] ?? data.s.id[i])).toBe(r.source);
       expect(data.statusCodes[data.s.status[i]!]).toBe(r.status);
       if (r.energyRel === null) expect(data.s.energyRel[i]).toBeNull();
       else expect(data.s.energyRel[i]).toBeCloseTo(r.energyRel, 4);
@@ -170,13 +170,25 @@ describe('page data of the sift report', () => {
     expect(buildEdgeClasses(Infinity, -Infinity).colours).toEqual([]);
   });
 
-  it('packs the AMD rows as Float32 that decode to the stored values', () => {
+  it('packs the AMD rows on a 1e-4 Å grid (2 bytes a value) that decodes to within half a step', () => {
     const amd = data.amd!;
-    const buf = Buffer.from(amd.base64, 'base64');
-    expect(buf.length).toBe(amd.index.length * amd.k * 4);
+    expect(amd.encoding).toBe('u16-delta');
+    expect(Buffer.from(amd.base64, 'base64').length).toBe(amd.index.length * amd.k * 2);
     land.invariants.kept.forEach((row, r) => {
       expect(amd.index[r]).toBe(row.index);
-      for (const j of [0, amd.k - 1]) expect(buf.readFloatLE((r * amd.k + j) * 4)).toBeCloseTo(row.amd[j]!, 5);
+      const back = unpackAmdRow(amd, r);
+      for (let j = 0; j < amd.k; j++) expect(Math.abs(back[j]! - row.amd[j]!)).toBeLessThanOrEqual(AMD_STEP_ANGSTROM / 2 + 1e-12);
+    });
+  });
+
+  it('falls back to Float32 when an AMD value does not fit the grid, and decodes it to Float32 precision', () => {
+    const odd = syntheticLandscape({ kept: 10, seed: 3 });
+    odd.invariants.kept[2]!.amd[0] = 7.5; // first value above 65535 steps of 1e-4 Å
+    const packed = packAmd(odd)!;
+    expect(packed.encoding).toBe('f32');
+    odd.invariants.kept.forEach((row, r) => {
+      const back = unpackAmdRow(packed, r);
+      for (let j = 0; j < packed.k; j++) expect(back[j]).toBeCloseTo(row.amd[j]!, 5);
     });
   });
 
@@ -209,7 +221,7 @@ describe('the report HTML', () => {
   });
 
   it('embeds the page data so that it parses back to the landscape strings, hostile ones included', () => {
-    const data = embeddedData(html) as { s: { id: string[]; block: string[] }; files: string[] };
+    const data = embeddedData(html) as { s: { id: string[]; block: Array<string | null> }; files: string[] };
     HOSTILE.forEach((h, i) => {
       expect(data.s.id[i]).toBe(h);
       expect(data.s.block[i]).toBe(`blk-${h}`);

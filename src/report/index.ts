@@ -5,4 +5,4 @@ export { escapeHtml, jsonForScript, inlineScriptSource } from './escape.js';
 export { readTemplate, readPlotlyBundle, plotlyBundlePath, templatesDir } from './assets.js';
 export { VIRIDIS_STOPS, FAMILY_COLOURS, UNASSIGNED_COLOUR, colourAt, colourClasses, stepColourscale, familyColour } from './colours.js';
 export { logHistogram, type LogHistogram } from './log-histogram.js';
-export { buildSiftPageData, buildEdgeClasses, edgeClassOf, EDGE_CLASSES, type SiftPageData } from './sift-data.js';
+export { buildSiftPageData, buildEdgeClasses, edgeClassOf, packAmd, unpackAmdRow, AMD_STEP_ANGSTROM, EDGE_CLASSES, type SiftPageData, type EdgeClasses, type PackedAmd } from './sift-data.js';

@@ -1,7 +1,7 @@
 // The sift report's page data: the landscape reshaped into columns (one array per field, indexed by
 // structure index) so that 10,000 structures stay a few MB and parse quickly, plus what the page
 // would otherwise compute: EMD colour classes of the neighbourhood lines, the nearest-neighbour
-// histogram, and the kept structures' AMD vectors packed as little-endian Float32 in base64.
+// histogram, and the kept structures' AMD vectors packed compactly in base64 (see packAmd).
 import type { ConvergenceCurve, Embedding, Landscape, SiftParameters, Status } from '../landscape/schema.js';
 import { colourClasses, FAMILY_COLOURS, stepColourscale, UNASSIGNED_COLOUR, VIRIDIS_STOPS } from './colours.js';
 import { logHistogram, type LogHistogram } from './log-histogram.js';
@@ -15,7 +15,8 @@ export interface StructureColumns {
   id: string[];
   /** Index into `SiftPageData.files`. */
   file: number[];
-  block: string[];
+  /** Block name, null when it equals the id (the usual case; keeps the page small). */
+  block: Array<string | null>;
   line: number[];
   /** Index into `STATUS_CODES`. */
   status: number[];
@@ -71,8 +72,9 @@ export interface SiftPageData {
   /** Family id -> number of kept structures. */
   familySizes: Array<[number, number]>;
   embedding: Embedding | null;
-  /** AMD rows of kept structures: `index[r]` is the structure of row r; `base64` holds rows*k Float32 (LE). */
-  amd: { k: number; index: number[]; base64: string } | null;
+  /** AMD rows of kept structures: `index[r]` is the structure of row r; `base64` holds rows*k values (see packAmd). */
+  amd: PackedAmd | null;
+  amdStepAngstrom: number;
   nnHistogram: LogHistogram;
   convergence: ConvergenceCurve | null;
 }
@@ -97,7 +99,7 @@ export function buildSiftPageData(landscape: Landscape, title: string): SiftPage
     if (status < 0) throw new Error(`landscape: structure ${r.id} has an unknown status "${String(r.status)}"`);
     s.id.push(String(r.id));
     s.file.push(intern(String(r.file), files, fileIds));
-    s.block.push(String(r.block));
+    s.block.push(String(r.block) === String(r.id) ? null : String(r.block));
     s.line.push(r.line);
     s.status.push(status);
     s.reason.push(r.reason ?? '');
@@ -172,6 +174,7 @@ export function buildSiftPageData(landscape: Landscape, title: string): SiftPage
         }
       : null,
     amd: packAmd(landscape),
+    amdStepAngstrom: AMD_STEP_ANGSTROM,
     nnHistogram: logHistogram(nn, 10),
     convergence: landscape.convergence,
   };
@@ -197,18 +200,69 @@ export function edgeClassOf(dAngstrom: number, bounds: readonly number[]): numbe
   return 0;
 }
 
-function packAmd(landscape: Landscape): SiftPageData['amd'] {
+/** Resolution of the packed AMD values in Å (far below any difference the panel is there to show). */
+export const AMD_STEP_ANGSTROM = 1e-4;
+
+export interface PackedAmd {
+  k: number;
+  index: number[];
+  /**
+   * `u16-delta`: per row, the AMD on a grid of AMD_STEP_ANGSTROM, stored as differences between
+   * consecutive values (AMD is non-decreasing: each PDD row is sorted ascending) in little-endian Uint16;
+   * half the size of Float32. `f32`: little-endian Float32, used when a value does not fit the grid.
+   */
+  encoding: 'u16-delta' | 'f32';
+  base64: string;
+}
+
+/** Pack the kept structures' AMD vectors for the page. */
+export function packAmd(landscape: Landscape): PackedAmd | null {
   const inv = landscape.invariants;
   if (!inv || inv.kept.length === 0) return null;
   const k = inv.kept[0]!.amd.length;
-  const buf = Buffer.alloc(inv.kept.length * k * 4);
   const index: number[] = [];
-  inv.kept.forEach((row, r) => {
+  for (const row of inv.kept) {
     if (row.amd.length !== k) throw new Error(`landscape: AMD of structure ${row.index} has ${row.amd.length} values, expected ${k}`);
     index.push(row.index);
-    for (let j = 0; j < k; j++) buf.writeFloatLE(row.amd[j]!, (r * k + j) * 4);
+  }
+  const u16 = Buffer.alloc(inv.kept.length * k * 2);
+  let fits = true;
+  for (let r = 0; r < inv.kept.length && fits; r++) {
+    const amd = inv.kept[r]!.amd;
+    let prev = 0;
+    for (let j = 0; j < k; j++) {
+      const q = Math.round(amd[j]! / AMD_STEP_ANGSTROM);
+      const d = q - prev;
+      if (!(d >= 0 && d <= 0xffff)) {
+        fits = false;
+        break;
+      }
+      u16.writeUInt16LE(d, (r * k + j) * 2);
+      prev = q;
+    }
+  }
+  if (fits) return { k, index, encoding: 'u16-delta', base64: u16.toString('base64') };
+  const f32 = Buffer.alloc(inv.kept.length * k * 4);
+  inv.kept.forEach((row, r) => {
+    for (let j = 0; j < k; j++) f32.writeFloatLE(row.amd[j]!, (r * k + j) * 4);
   });
-  return { k, index, base64: buf.toString('base64') };
+  return { k, index, encoding: 'f32', base64: f32.toString('base64') };
+}
+
+/** Decode one row of packed AMD values (the page does the same in report-common.js). */
+export function unpackAmdRow(packed: PackedAmd, row: number): Float64Array {
+  const buf = Buffer.from(packed.base64, 'base64');
+  const out = new Float64Array(packed.k);
+  if (packed.encoding === 'f32') {
+    for (let j = 0; j < packed.k; j++) out[j] = buf.readFloatLE((row * packed.k + j) * 4);
+  } else {
+    let q = 0;
+    for (let j = 0; j < packed.k; j++) {
+      q += buf.readUInt16LE((row * packed.k + j) * 2);
+      out[j] = q * AMD_STEP_ANGSTROM;
+    }
+  }
+  return out;
 }
 
 function intern(value: string, table: string[], ids: Map<string, number>): number {
