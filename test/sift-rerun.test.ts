@@ -54,12 +54,13 @@ describe('sift re-runs', () => {
     expect(first.status, first.stderr).toBe(0);
     const before = new Map(readdirSync(out).filter((f) => !f.startsWith('.')).map((f) => [f, readFileSync(join(out, f), 'utf8')]));
     // Without the cache the run takes a few seconds; interrupt it once it reports its second stage.
-    const child = spawn(tsx, [cli, 'sift', cif, '--energies', energies, '--out', out, '--no-cache', '--duplicate-tolerance', '0.03', '--threads', '1'], {
+    // Node itself with the TypeScript loader (not the tsx launcher), so the signal reaches the sift process directly.
+    const child = spawn(process.execPath, ['--import', 'tsx', cli, 'sift', cif, '--energies', energies, '--out', out, '--no-cache', '--duplicate-tolerance', '0.03', '--threads', '1'], {
       stdio: ['ignore', 'pipe', 'pipe'],
     });
     let stderr = '';
     let sent = false;
-    const exit = new Promise<number | null>((resolve) => child.on('exit', (code) => resolve(code)));
+    const exit = new Promise<number | null>((resolve) => child.on('close', (code) => resolve(code)));
     child.stderr.on('data', (d: Buffer) => {
       stderr += d.toString();
       if (!sent && stderr.includes('building periodic sets')) {

@@ -24,6 +24,8 @@ import { amd as computeAmd } from '../invariants/amd.js';
 import { emd, amdDistance } from '../metric/emd.js';
 import { distanceMatrix, nearestAcross, nearestNeighbours, pairsWithin } from '../metric/graph.js';
 import { hdbscanDense, hdbscanLazy, coreDistancesFromNeighbours } from '../cluster/hdbscan.js';
+import { embed2d } from '../cluster/embedding.js';
+import { embed2dLandmarks } from '../cluster/embedding-landmarks.js';
 import { convergenceCurve, defaultWindows } from './convergence.js';
 import { collapseDuplicates, visitOrder } from './collapse.js';
 import { blockKey, loadCache, saveCache, type CacheEntry } from './cache.js';
@@ -44,13 +46,16 @@ export const DEFAULT_MIN_FAMILY_SIZE = 5;
 /** Nearest kept neighbours stored per kept structure (edges of the report's neighbourhood lines). */
 export const DEFAULT_NEIGHBOURS = 5;
 /**
- * Largest number of kept structures for which the full EMD matrix is computed (dense HDBSCAN and the metric
- * map): 3,000 kept structures are 4.5 million EMDs and a 72 MB matrix. Above it, HDBSCAN runs lazily from the
- * exact neighbour graph and the AMD lower bound, and the metric map is made for the lowest-energy
- * EMBED_LIMIT kept structures only (said in the embedding's method).
+ * Largest number of kept structures for which the full EMD matrix is computed (dense HDBSCAN, full metric map):
+ * 300 kept structures are 44,850 EMDs, a few seconds on 2 threads at the measured 0.1-0.5 ms per EMD of
+ * 11-44-row PDDs at k = 100 (the matrix itself, 0.7 MB, is never the limit; the EMD count grows as n^2).
+ * Above it HDBSCAN runs lazily from the exact neighbour graph and the AMD lower bound (same labels), and the
+ * metric map is landmark MDS (src/cluster/embedding-landmarks.ts, method named in the landscape).
  */
-export const DENSE_LIMIT = 3000;
-export const EMBED_LIMIT = 3000;
+export const DENSE_LIMIT = 300;
+/** Above DENSE_LIMIT the metric map is landmark MDS with this many landmarks (LANDMARKS x kept EMDs), up to EMBED_LIMIT kept structures. */
+export const LANDMARKS = 60;
+export const EMBED_LIMIT = 20000;
 /** Records sent to a worker at a time when building periodic sets. */
 const PREPARE_CHUNK = 250;
 
@@ -297,57 +302,86 @@ export async function sift(opts: SiftOptions): Promise<SiftRun> {
   for (const p of keptLocal) items[p].row.members = 0;
   for (let p = 0; p < items.length; p++) items[collapsed.keptOf[p]].row.members++;
 
-  // ---- neighbours: among kept structures, duplicates to kept ones, and every structure's nearest ----
+  // ---- neighbours ----
+  // Every pair within the tolerance is known from the collapse, which settles two things without more EMDs:
+  // a duplicate's nearest kept structure lies within the tolerance (its own kept structure does), and any
+  // structure with a partner within the tolerance has its nearest neighbour among those partners.
   progress.stage('nearest neighbours', items.length);
   const keptItems = keptLocal.map((p) => graphItems[p]);
   const nKept = keptItems.length;
-  const kNbr = Math.min(Math.max(params.neighbours, params.minSamples), nKept - 1);
-  const edges: Array<[number, number, number]> = [];
-  let keptNbr: { indices: Int32Array; distances: Float64Array } | null = null;
-  if (kNbr >= 1) {
-    keptNbr = await nearestNeighbours(keptItems, kNbr, { threads });
-    const seen = new Set<string>();
-    for (let r = 0; r < nKept; r++) {
-      const row = items[keptLocal[r]].row;
-      row.nearestIndex = items[keptLocal[keptNbr.indices[r * kNbr]]].row.index;
-      row.nearest = items[keptLocal[keptNbr.indices[r * kNbr]]].row.id;
-      row.nearestDistance = keptNbr.distances[r * kNbr];
-      for (let q = 0; q < Math.min(params.neighbours, kNbr); q++) {
-        const a = row.index;
-        const b = items[keptLocal[keptNbr.indices[r * kNbr + q]]].row.index;
-        const key = a < b ? `${a},${b}` : `${b},${a}`;
-        if (seen.has(key)) continue;
-        seen.add(key);
-        edges.push(a < b ? [a, b, keptNbr.distances[r * kNbr + q]] : [b, a, keptNbr.distances[r * kNbr + q]]);
+  const nearestPair = new Float64Array(items.length).fill(Infinity);
+  const nearestKeptOfDup = new Int32Array(items.length).fill(-1);
+  const nearestKeptD = new Float64Array(items.length).fill(Infinity);
+  for (let t = 0; t < close.i.length; t++) {
+    const a = close.i[t];
+    const b = close.j[t];
+    const d = close.distances[t];
+    if (d < nearestPair[a]) nearestPair[a] = d;
+    if (d < nearestPair[b]) nearestPair[b] = d;
+    for (const [x, y] of [
+      [a, b],
+      [b, a],
+    ]) {
+      // x a duplicate, y kept: the nearest kept structure of x (ties to the lower-energy kept structure).
+      if (keptPos[x] >= 0 || keptPos[y] < 0) continue;
+      if (d < nearestKeptD[x] || (d === nearestKeptD[x] && keptPos[y] < keptPos[nearestKeptOfDup[x]])) {
+        nearestKeptD[x] = d;
+        nearestKeptOfDup[x] = y;
       }
     }
-    edges.sort((x, y) => x[0] - y[0] || x[1] - y[1]);
   }
-  const dupLocal: number[] = [];
-  for (let p = 0; p < items.length; p++) if (keptPos[p] < 0) dupLocal.push(p);
-  if (dupLocal.length > 0 && nKept >= 2) {
+  for (let p = 0; p < items.length; p++) {
+    if (keptPos[p] >= 0) continue;
+    const row = items[p].row;
+    const y = nearestKeptOfDup[p];
+    row.nearestIndex = items[y].row.index;
+    row.nearest = items[y].row.id;
+    row.nearestDistance = nearestKeptD[p];
+  }
+  // Structures with no partner within the tolerance: their nearest other structure by search.
+  const alone: number[] = [];
+  for (let p = 0; p < items.length; p++) if (nearestPair[p] === Infinity) alone.push(p);
+  if (alone.length > 0 && items.length >= 2) {
     const across = await nearestAcross(
-      dupLocal.map((p) => graphItems[p]),
-      keptItems,
+      alone.map((p) => graphItems[p]),
+      graphItems,
       2,
       { threads },
     );
-    dupLocal.forEach((p, q) => {
-      // The nearest kept structure other than the one it was collapsed into.
-      for (let c = 0; c < 2; c++) {
-        const r = across.indices[q * 2 + c];
-        if (keptLocal[r] === collapsed.keptOf[p]) continue;
-        const row = items[p].row;
-        row.nearestIndex = items[keptLocal[r]].row.index;
-        row.nearest = items[keptLocal[r]].row.id;
-        row.nearestDistance = across.distances[q * 2 + c];
-        break;
-      }
+    alone.forEach((p, q) => {
+      for (let c = 0; c < across.k; c++)
+        if (across.indices[q * across.k + c] !== p) {
+          nearestPair[p] = across.distances[q * across.k + c];
+          break;
+        }
     });
   }
-  if (items.length >= 2) {
-    const nn = await nearestNeighbours(graphItems, 1, { threads });
-    for (let p = 0; p < items.length; p++) items[p].row.nnDistance = nn.distances[p];
+  for (let p = 0; p < items.length; p++) items[p].row.nnDistance = nearestPair[p] === Infinity ? null : nearestPair[p];
+  // Kept structures: their nearest kept neighbours (edges of the report, core distances of HDBSCAN).
+  const kNbr = Math.min(Math.max(params.neighbours, params.minSamples), nKept - 1);
+  const edges: Array<[number, number, number]> = [];
+  let keptNbr: { k: number; indices: Int32Array; distances: Float64Array } | null = null;
+  if (kNbr >= 1) {
+    keptNbr = await nearestNeighbours(keptItems, kNbr, { threads });
+    const kk = keptNbr.k;
+    const seen = new Set<string>();
+    for (let r = 0; r < nKept; r++) {
+      const row = items[keptLocal[r]].row;
+      const first = keptLocal[keptNbr.indices[r * kk]];
+      row.nearestIndex = items[first].row.index;
+      row.nearest = items[first].row.id;
+      row.nearestDistance = keptNbr.distances[r * kk];
+      for (let q = 0; q < Math.min(params.neighbours, kk); q++) {
+        const a = row.index;
+        const b = items[keptLocal[keptNbr.indices[r * kk + q]]].row.index;
+        const key = a < b ? `${a},${b}` : `${b},${a}`;
+        if (seen.has(key)) continue;
+        seen.add(key);
+        const d = keptNbr.distances[r * kk + q];
+        edges.push(a < b ? [a, b, d] : [b, a, d]);
+      }
+    }
+    edges.sort((x, y) => x[0] - y[0] || x[1] - y[1]);
   }
   progress.done();
   t = lap('neighbours', t);
@@ -355,32 +389,38 @@ export async function sift(opts: SiftOptions): Promise<SiftRun> {
   // ---- families (HDBSCAN over kept structures) and the metric map ----
   const familyLabels = new Int32Array(nKept).fill(-1);
   let embedding: Embedding | null = null;
-  await loadEmbedder();
-  if (nKept >= 2 && params.minSamples <= nKept) {
-    progress.stage('families', nKept);
+  // EMDs asked for on this thread (lazy HDBSCAN, landmark map) are remembered, since both ask for many of the same pairs.
+  const memo = new Map<number, number>();
+  const keptEmd = (a: number, b: number): number => {
+    const key = a < b ? a * nKept + b : b * nKept + a;
+    let d = memo.get(key);
+    if (d === undefined) {
+      d = emd(keptItems[a].pdd, keptItems[b].pdd);
+      memo.set(key, d);
+    }
+    return d;
+  };
+  if (nKept >= 2) {
+    progress.stage('families and metric map', nKept);
+    const hdbOptions = { minClusterSize: params.minFamilySize, minSamples: params.minSamples };
+    const clusterable = params.minSamples <= nKept && params.minFamilySize <= nKept;
     if (nKept <= DENSE_LIMIT) {
       const dist = await distanceMatrix(keptItems, { threads });
-      familyLabels.set(hdbscanDense(dist, nKept, { minClusterSize: params.minFamilySize, minSamples: params.minSamples }).labels);
-      embedding = embeddingOf(dist, nKept, nKept);
+      if (clusterable) familyLabels.set(hdbscanDense(dist, nKept, hdbOptions).labels);
+      embedding = embeddingOf(embed2d(dist, nKept));
     } else {
-      const core = coreDistancesFromNeighbours(keptNbr!.distances, nKept, kNbr, params.minSamples);
-      const res = hdbscanLazy(
-        nKept,
-        (a, b) => emd(keptItems[a].pdd, keptItems[b].pdd),
-        (a, b) => amdDistance(keptItems[a].amd, keptItems[b].amd),
-        core,
-        { minClusterSize: params.minFamilySize, minSamples: params.minSamples },
-      );
-      familyLabels.set(res.labels);
-      const m = Math.min(EMBED_LIMIT, nKept);
-      const sub = await distanceMatrix(keptItems.slice(0, m), { threads });
-      messages.push(`metric map drawn for the ${m} lowest-energy kept structures of ${nKept} (EMBED_LIMIT)`);
-      embedding = embeddingOf(sub, m, nKept);
+      if (clusterable) {
+        const core = coreDistancesFromNeighbours(keptNbr!.distances, nKept, keptNbr!.k, params.minSamples);
+        const res = hdbscanLazy(nKept, keptEmd, (a, b) => amdDistance(keptItems[a].amd, keptItems[b].amd), core, hdbOptions);
+        familyLabels.set(res.labels);
+      }
+      if (nKept <= EMBED_LIMIT) {
+        const e = embed2dLandmarks(nKept, keptEmd, { landmarks: LANDMARKS });
+        embedding = embeddingOf(e);
+      } else messages.push(`no metric map: ${nKept} kept structures is more than ${EMBED_LIMIT}`);
     }
+    if (!clusterable) messages.push(`families not computed: ${nKept} kept structure(s), fewer than the minimum family size or samples`);
     progress.done();
-  } else if (nKept >= 1) {
-    messages.push(`families not computed: ${nKept} kept structure(s), fewer than the minimum samples ${params.minSamples}`);
-    if (nKept >= 2) embedding = embeddingOf(await distanceMatrix(keptItems, { threads }), nKept, nKept);
   }
   const families: Family[] = [];
   for (let r = 0; r < nKept; r++) {
@@ -500,28 +540,11 @@ function reject(w: Work, reason: string): void {
   w.row.reason = reason;
 }
 
-type Embed2d = (dist: Float64Array, n: number) => { method: string; coords: Array<[number, number]>; quality: Array<{ name: string; value: number }> };
-let embed2d: Embed2d | null = null;
-
-// TEMPORARY until src/cluster/embedding.ts lands: loaded when present.
-async function loadEmbedder(): Promise<void> {
-  if (embed2d) return;
-  try {
-    const modName = '../cluster/embedding.js';
-    embed2d = ((await import(modName)) as { embed2d: Embed2d }).embed2d;
-  } catch {
-    embed2d = null;
-  }
-}
-
-function embeddingOf(dist: Float64Array, n: number, nKept: number): Embedding | null {
-  if (!embed2d) return null;
-  const e = embed2d(dist, n);
-  const coords = e.coords.map(([x, y]) => [round6(x), round6(y)] as [number, number]);
+function embeddingOf(e: { method: string; coords: Array<[number, number]>; quality: Array<{ name: string; value: number }> }): Embedding {
   return {
-    method: n < nKept ? `${e.method} (lowest-energy ${n} of ${nKept} kept structures)` : e.method,
+    method: e.method,
     quality: e.quality.map((q) => ({ name: q.name, value: round6(q.value) })),
-    coords,
+    coords: e.coords.map(([x, y]) => [round6(x), round6(y)] as [number, number]),
   };
 }
 
