@@ -3,6 +3,7 @@
 // stays flat however large the file. File-level failures (missing, unreadable, empty, binary, not gzip)
 // become one RejectedBlock with block "" so they still appear in every output.
 import { createReadStream } from 'node:fs';
+import { pipeline } from 'node:stream';
 import { open, readdir, stat } from 'node:fs/promises';
 import { join } from 'node:path';
 import { StringDecoder } from 'node:string_decoder';
@@ -93,8 +94,20 @@ export async function* readCifFile(file: string, opts: ReadOptions = {}): AsyncG
     return;
   }
 
-  let source: Readable = createReadStream(file, { highWaterMark: CHUNK_BYTES });
-  if (gzip) source = source.pipe(createGunzip());
+  const fileStream = createReadStream(file, { highWaterMark: CHUNK_BYTES });
+  // pipeline() passes a read error of the file on to the gunzip stream, so the loop below sees it.
+  const source: Readable = gzip ? pipeline(fileStream, createGunzip(), () => {}) : fileStream;
+  try {
+    yield* streamBlocks(file, source, gzip, opts);
+  } finally {
+    // Also when the caller stops early: close the file and the gunzip stream.
+    fileStream.destroy();
+    source.destroy();
+  }
+}
+
+/** Decode, split and read the blocks of an open stream. */
+async function* streamBlocks(file: string, source: Readable, gzip: boolean, opts: ReadOptions): AsyncGenerator<BlockResult> {
   const decoder = new StringDecoder('utf8');
   const splitter = new CifBlockSplitter();
   const out: RawBlock[] = [];
@@ -115,7 +128,6 @@ export async function* readCifFile(file: string, opts: ReadOptions = {}): AsyncG
       if (first && text.charCodeAt(0) === 0xfeff) text = text.slice(1);
       const bad = binaryAt(text, first);
       if (bad) {
-        source.destroy();
         yield fileRejected(file, `binary data (not CIF text) near line ${splitter.linesRead}; the rest of the file is not read`);
         return;
       }
@@ -128,7 +140,6 @@ export async function* readCifFile(file: string, opts: ReadOptions = {}): AsyncG
       out.length = 0;
     }
   } catch (e) {
-    source.destroy();
     const cur = splitter.current;
     const what = gzip ? 'the gzip data is damaged or cut short' : 'reading failed';
     yield {
