@@ -12,7 +12,7 @@ import { pdd } from '../invariants/pdd.js';
 import { amd } from '../invariants/amd.js';
 
 /** Default hydrogen handling: left out, since X-ray hydrogen positions are short and uncertain (common practice). */
-export const DEFAULT_HYDROGENS: HydrogenPolicy = 'drop';
+export const DEFAULT_HYDROGENS: HydrogenPolicy = 'keep';
 
 export interface InspectOptions {
   hydrogens: HydrogenPolicy;
