@@ -11,7 +11,7 @@ import { toPeriodicSet } from '../geometry/periodic-set.js';
 import { pdd } from '../invariants/pdd.js';
 import { amd } from '../invariants/amd.js';
 
-/** Default hydrogen handling: left out, since X-ray hydrogen positions are short and uncertain (common practice). */
+/** Default hydrogen handling: kept, as in `sift` (predicted structures place hydrogens reliably); drop them for X-ray structures. */
 export const DEFAULT_HYDROGENS: HydrogenPolicy = 'keep';
 
 export interface InspectOptions {
