@@ -46,6 +46,24 @@ export interface HdbscanResult {
   probabilities: Float64Array;
 }
 
+/** An exact k-nearest-neighbour graph: row i lists the k nearest other points of i and their distances. */
+export interface KnownNeighbours {
+  k: number;
+  /** n*k point indices, row-major. */
+  indices: Int32Array;
+  /** n*k distances matching `indices`, ascending per row; must be the values `distance` returns. */
+  distances: Float64Array;
+}
+
+export interface LazyHdbscanOptions extends HdbscanOptions {
+  /**
+   * The exact neighbour graph the core distances came from, if at hand. Its distances are then used
+   * without calling `distance`, and a pair outside both points' lists is at least as far apart as
+   * either point's k-th neighbour, which rules out most pairs before any bound is computed.
+   */
+  neighbours?: KnownNeighbours;
+}
+
 export interface LazyHdbscanResult extends HdbscanResult {
   /** How many times `distance` was called while building the spanning tree. */
   distanceEvaluations: number;
@@ -81,16 +99,20 @@ export function hdbscanLazy(
   distance: (i: number, j: number) => number,
   lowerBound: (i: number, j: number) => number,
   coreDistances: Float64Array,
-  opts: HdbscanOptions,
+  opts: LazyHdbscanOptions,
 ): LazyHdbscanResult {
   checkOptions(n, opts);
+  const graph = opts.neighbours;
+  if (graph && (graph.indices.length !== n * graph.k || graph.distances.length !== n * graph.k)) {
+    throw new Error(`hdbscanLazy: neighbour graph has ${graph.indices.length} entries, expected ${n}*${graph.k}`);
+  }
   if (coreDistances.length !== n) throw new Error(`hdbscanLazy: ${coreDistances.length} core distances for ${n} points`);
   for (let i = 0; i < n; i++) {
     if (!(coreDistances[i] >= 0)) throw new Error(`hdbscanLazy: core distance of point ${i} is ${coreDistances[i]}`);
   }
   if (n < 2) return { ...trivialResult(n), distanceEvaluations: 0 };
   const counter = { evaluations: 0 };
-  const mst = primLazy(n, distance, lowerBound, coreDistances, counter);
+  const mst = primLazy(n, distance, lowerBound, coreDistances, graph ?? null, counter);
   return { ...labelsFromSpanningTree(mst, n, opts.minClusterSize), distanceEvaluations: counter.evaluations };
 }
 
@@ -170,40 +192,159 @@ function primLazy(
   distance: (i: number, j: number) => number,
   lowerBound: (i: number, j: number) => number,
   core: Float64Array,
+  graph: KnownNeighbours | null,
   counter: { evaluations: number },
 ): SpanningTree {
   const tree = allocTree(n);
   const inTree = new Uint8Array(n);
+  // best[j]: smallest mutual reachability from j to the tree among the pairs looked at so far (exact
+  // values); pending[j]: a floor for the pairs (tree point, j) not looked at yet, which are the tree
+  // points added at positions seen[j] .. size-1 of `order`. j's true distance to the tree is
+  // min(best[j], what the pending pairs give) >= min(best[j], pending[j]).
   const best = new Float64Array(n).fill(Infinity);
+  const pending = new Float64Array(n).fill(Infinity);
+  const seen = new Int32Array(n);
+  const order = new Int32Array(n);
+  let size = 0;
+  // from the neighbour graph: each point's k-th neighbour distance, and for each point the points
+  // listing it (reverse lists), so both directions of a known pair are found in O(k)
+  const k = graph ? graph.k : 0;
+  const radius = new Float64Array(n);
+  const known = new Float64Array(n);
+  const knownFor = new Int32Array(n).fill(-1);
+  const revStart = new Int32Array(n + 1);
+  const revFrom = new Int32Array(n * k);
+  const revDist = new Float64Array(n * k);
+  if (graph && k > 0) {
+    for (let i = 0; i < n; i++) radius[i] = graph.distances[i * k + k - 1];
+    for (let t = 0; t < n * k; t++) revStart[graph.indices[t] + 1]++;
+    for (let i = 0; i < n; i++) revStart[i + 1] += revStart[i];
+    const fill = revStart.slice(0, n);
+    for (let i = 0; i < n; i++) {
+      for (let t = i * k; t < i * k + k; t++) {
+        const j = graph.indices[t];
+        revFrom[fill[j]] = i;
+        revDist[fill[j]++] = graph.distances[t];
+      }
+    }
+  }
+  // distances known for free from point c: mark them in `known` (valid while knownFor[j] === c)
+  const markKnown = (c: number) => {
+    if (!graph || k === 0) return;
+    for (let q = c * k; q < c * k + k; q++) {
+      known[graph.indices[q]] = graph.distances[q];
+      knownFor[graph.indices[q]] = c;
+    }
+    for (let q = revStart[c]; q < revStart[c + 1]; q++) {
+      known[revFrom[q]] = revDist[q];
+      knownFor[revFrom[q]] = c;
+    }
+  };
+  // settle j's pending pairs: free ones directly, the others in order of increasing floor, so that
+  // only pairs whose floor is below j's final distance to the tree are evaluated
+  const candFrom = new Int32Array(n);
+  const candFloor = new Float64Array(n);
+  const candOrder = new Int32Array(n);
+  const resolve = (j: number) => {
+    let m = 0;
+    for (let p = seen[j]; p < size; p++) {
+      const c = order[p];
+      let floor = core[c] > core[j] ? core[c] : core[j];
+      if (floor >= best[j]) continue;
+      if (isKnown(c, j)) {
+        const r = mutualReachability(core[c], core[j], knownDistance(c, j));
+        if (r < best[j]) best[j] = r;
+        continue;
+      }
+      // outside both neighbour lists: at least as far as either point's k-th neighbour
+      if (radius[c] > floor) floor = radius[c];
+      if (radius[j] > floor) floor = radius[j];
+      if (floor >= best[j]) continue;
+      const lb = lowerBound(c, j);
+      if (lb > floor) floor = lb;
+      if (floor >= best[j]) continue;
+      candFrom[m] = c;
+      candFloor[m] = floor;
+      candOrder[m] = m;
+      m++;
+    }
+    const ranked = candOrder.subarray(0, m).sort((a, b) => candFloor[a] - candFloor[b] || a - b);
+    for (let t = 0; t < m; t++) {
+      const q = ranked[t];
+      if (candFloor[q] >= best[j]) break;
+      const c = candFrom[q];
+      const d = distance(c, j);
+      counter.evaluations++;
+      if (!(d >= 0)) throw new Error(`hdbscanLazy: distance(${c}, ${j}) is ${d}; distances must be >= 0`);
+      const r = mutualReachability(core[c], core[j], d);
+      if (r < best[j]) best[j] = r;
+    }
+    seen[j] = size;
+    pending[j] = Infinity;
+  };
+  // is j in c's neighbour list or c in j's? (binary-free: scan the two short lists)
+  const isKnown = (c: number, j: number): boolean => {
+    if (!graph || k === 0) return false;
+    for (let q = c * k; q < c * k + k; q++) if (graph.indices[q] === j) return true;
+    for (let q = j * k; q < j * k + k; q++) if (graph.indices[q] === c) return true;
+    return false;
+  };
+  const knownDistance = (c: number, j: number): number => {
+    const g = graph as KnownNeighbours;
+    for (let q = c * k; q < c * k + k; q++) if (g.indices[q] === j) return g.distances[q];
+    for (let q = j * k; q < j * k + k; q++) if (g.indices[q] === c) return g.distances[q];
+    return NaN;
+  };
+
   let current = 0;
   for (let t = 0; t < n - 1; t++) {
     inTree[current] = 1;
+    order[size++] = current;
+    markKnown(current);
     const coreC = core[current];
-    let next = -1;
-    let nextWeight = Infinity;
+    const radiusC = radius[current];
+    // cheap floors for the new pairs (current, j); free exact values for graph neighbours
     for (let j = 0; j < n; j++) {
       if (inTree[j]) continue;
-      // mr(current, j) >= max(core_c, core_j, bound): when that already reaches best[j], best[j] cannot drop
-      let floor = coreC > core[j] ? coreC : core[j];
-      if (floor < best[j]) {
-        const lb = lowerBound(current, j);
-        if (lb > floor) floor = lb;
-        if (floor < best[j]) {
-          const d = distance(current, j);
-          counter.evaluations++;
-          if (!(d >= 0)) throw new Error(`hdbscanLazy: distance(${current}, ${j}) is ${d}; distances must be >= 0`);
-          const r = mutualReachability(coreC, core[j], d);
-          if (r < best[j]) best[j] = r;
+      const floor = coreC > core[j] ? coreC : core[j];
+      if (knownFor[j] === current) {
+        const r = mutualReachability(coreC, core[j], known[j]);
+        if (r < best[j]) best[j] = r;
+        // the pair is settled; if it was j's only pending one, nothing is pending any more
+        if (seen[j] === size - 1) seen[j] = size;
+        else if (floor < pending[j]) pending[j] = floor;
+      } else {
+        let f = floor;
+        if (radiusC > f) f = radiusC;
+        if (radius[j] > f) f = radius[j];
+        // the bound only matters when it could lower j's pending floor below what is known
+        if (f < pending[j] && f < best[j]) {
+          const lb = lowerBound(current, j);
+          if (lb > f) f = lb;
+        }
+        if (f < pending[j]) pending[j] = f;
+      }
+    }
+    // the next point is the one with the smallest distance to the tree (lowest index on ties), as
+    // the dense version picks it: resolve candidates until the best one needs no resolving
+    let next = -1;
+    for (;;) {
+      next = -1;
+      let key = Infinity;
+      for (let j = 0; j < n; j++) {
+        if (inTree[j]) continue;
+        const kj = pending[j] < best[j] ? pending[j] : best[j];
+        if (next < 0 || kj < key) {
+          next = j;
+          key = kj;
         }
       }
-      if (next < 0 || best[j] < nextWeight) {
-        next = j;
-        nextWeight = best[j];
-      }
+      if (!(pending[next] < best[next])) break;
+      resolve(next);
     }
     tree.from[t] = current;
     tree.to[t] = next;
-    tree.weight[t] = nextWeight;
+    tree.weight[t] = best[next];
     current = next;
   }
   return tree;
