@@ -85,6 +85,22 @@ describe('exact neighbour search in a periodic set', () => {
     );
   });
 
+  it('equals brute force on cells with many points, where the queries are split into groups with a cloud each', () => {
+    const rand = seededRandom(2024);
+    for (const [d, m, k] of [[1, 40, 6], [2, 60, 8], [3, 80, 10]] as const) {
+      // (no skewing here: the brute-force block must stay small with this many points)
+      const set = randomSet(rand, d, m);
+      const fast = nearestNeighbourDistances(set, k);
+      let reach = 2;
+      let brute = bruteForce(set, k, reach);
+      while (Math.max(...Array.from({ length: m }, (_, q) => brute.rows[q * k + k - 1])) >= brute.safeRadius) {
+        reach *= 1.5;
+        brute = bruteForce(set, k, reach);
+      }
+      for (let i = 0; i < m * k; i++) expect(Math.abs(fast[i] - brute.rows[i])).toBeLessThan(1e-9);
+    }
+  });
+
   it('gives the same answer whatever the starting radius: too small forces the widening passes (stopping rule)', () => {
     const rand = seededRandom(11);
     for (let d = 1; d <= 3; d++) {
