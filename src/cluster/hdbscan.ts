@@ -90,9 +90,14 @@ export function hdbscanDense(dist: Float64Array, n: number, opts: HdbscanOptions
  * The same result as `hdbscanDense` without an n*n matrix. `distance(i, j)` is the metric,
  * `lowerBound(i, j) <= distance(i, j)` a cheap bound (for PDDs the AMD L-infinity bound), and
  * `coreDistances` the exact core distances for `opts.minSamples` (see `coreDistancesFromNeighbours`).
- * A pair is evaluated only when max(lowerBound, core_i, core_j) is below the best mutual
- * reachability known for the candidate point, so the spanning tree (and every tie) is the one
- * the dense version builds.
+ * Prim's algorithm keeps, for each point outside the tree, the best mutual reachability found so
+ * far and a floor for the pairs not yet evaluated (max of the two core distances, the two k-th
+ * neighbour distances when `opts.neighbours` is given, and the bound). Only the candidate with the
+ * smallest value is settled, its open pairs evaluated in order of increasing floor until the floor
+ * reaches the best value found. Minima are exact and ties go to the lowest index as in the dense
+ * version, so the spanning tree (every tie included) and the labels are the dense version's.
+ * Cost: O(n^2) cheap floor updates and bound calls at most; the expensive `distance` calls are what
+ * the floors save (about half of all pairs on clustered PDD sets with the AMD bound, measured).
  */
 export function hdbscanLazy(
   n: number,
