@@ -4,7 +4,7 @@ import { mkdtempSync, readFileSync, rmSync, writeFileSync } from 'node:fs';
 import { tmpdir } from 'node:os';
 import { join } from 'node:path';
 import { describe, expect, it } from 'vitest';
-import { amdDistance, emd } from '../src/metric/emd.js';
+import { amdDistance, emd, rowMinBound } from '../src/metric/emd.js';
 import type { Pdd } from '../src/types.js';
 import { amdOf, makePdd, pddToJson, randomPdd, rng } from './metric-random.js';
 
@@ -162,6 +162,24 @@ describe('emd', () => {
       const a = randomPdd(rand, 1 + Math.floor(rand() * 30), k, () => 2 + rand());
       const b = randomPdd(rand, 1 + Math.floor(rand() * 30), k, () => 2 + rand());
       expect(amdDistance(amdOf(a), amdOf(b))).toBeLessThanOrEqual(emd(a, b) + 1e-12);
+    }
+  });
+
+  it('is bounded below by the row-minimum relaxation, which is exact when one side has a single row (Rubner et al. 2000)', () => {
+    const rand = rng(17);
+    const rm = (a: Pdd, b: Pdd, limit = Infinity) =>
+      rowMinBound(a.rows, a.weights, 0, a.weights.length, b.rows, 0, b.weights.length, a.k, limit);
+    for (let t = 0; t < 400; t++) {
+      const k = 1 + Math.floor(rand() * 12);
+      const value = t % 2 ? () => Math.floor(rand() * 3) : () => 2 + rand();
+      const a = randomPdd(rand, 1 + Math.floor(rand() * 15), k, value);
+      const b = randomPdd(rand, t % 5 === 0 ? 1 : 1 + Math.floor(rand() * 15), k, value);
+      const d = emd(a, b);
+      expect(rm(a, b)).toBeLessThanOrEqual(d + 1e-12);
+      if (b.weights.length === 1) expect(rm(a, b)).toBeCloseTo(d, 12);
+      // With a limit, the value returned is either the full bound or already above the limit.
+      const limited = rm(a, b, d / 2);
+      expect(limited === rm(a, b) || limited > d / 2).toBe(true);
     }
   });
 

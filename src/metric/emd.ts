@@ -467,3 +467,54 @@ function comparePacked(
   }
   return 0;
 }
+
+/**
+ * A lower bound of the EMD that needs no transport solve: every unit of A's row i travels at least
+ * min_j cost(i, j), so EMD >= sum_i w_i min_j cost(i, j) (the relaxation of the transportation problem that
+ * drops the demand constraints; Rubner, Tomasi & Guibas, IJCV 2000, use the same idea for their bounds).
+ * Each cost is abandoned as soon as it cannot lower the current row minimum, and the sum stops as soon as it
+ * exceeds `limit` (the returned value is then only known to exceed `limit`). Same packed layout as `emdPacked`.
+ */
+export function rowMinBound(
+  aRows: Float64Array,
+  aWeights: Float64Array,
+  aFirst: number,
+  aCount: number,
+  bRows: Float64Array,
+  bFirst: number,
+  bCount: number,
+  k: number,
+  limit: number,
+): number {
+  let totalA = 0;
+  for (let r = 0; r < aCount; r++) {
+    const w = aWeights[aFirst + r];
+    if (w > 0) totalA += w;
+  }
+  let sum = 0;
+  for (let i = 0; i < aCount; i++) {
+    const w = aWeights[aFirst + i];
+    if (!(w > 0)) continue;
+    const ao = (aFirst + i) * k;
+    // Start with the row at the same relative position: rows are sorted, so it is often the closest one.
+    const j0 = Math.min(bCount - 1, Math.floor((i * bCount) / aCount));
+    let best = Infinity;
+    for (let s = 0; s < bCount; s++) {
+      const j = s === 0 ? j0 : s <= j0 ? s - 1 : s;
+      const bo = (bFirst + j) * k;
+      let max = 0;
+      let t = 0;
+      for (; t < k; t++) {
+        const d = aRows[ao + t] - bRows[bo + t];
+        if (d > max) max = d;
+        else if (-d > max) max = -d;
+        else continue;
+        if (max >= best) break;
+      }
+      if (t === k && max < best) best = max;
+    }
+    sum += (w / totalA) * best;
+    if (sum > limit) return sum;
+  }
+  return sum;
+}

@@ -4,9 +4,11 @@
 // (the AMD bound: "Average minimum distances of periodic point sets", MATCH Commun. Math. Comput. Chem. 2022).
 // The first inequality lets a sweep along one sorted AMD column stop early; the second skips EMDs.
 // Ties are broken by (distance, index) ascending, so results equal a brute-force sort exactly.
-import { emdPacked } from './emd.js';
+import { emdPacked, rowMinBound } from './emd.js';
 import type { PackedSet, SortedIndex } from './packed.js';
-import { sortByKey, sortStackLength } from './sort-keyed.js';
+
+/** Refinement levels of a candidate's lower bound (see `refine` in knnChunk); at EXACT its EMD is computed. */
+const EXACT = 3;
 
 /**
  * Widen a threshold before comparing a lower bound with it: the AMDs and the EMD are computed in floating
@@ -28,6 +30,26 @@ export interface KnnTask {
   end: number;
   /** Neighbours per query (already limited to the number of available targets). */
   k: number;
+  /** Optional groups of near-identical targets (see `groupTargets` in graph.ts), for triangle-inequality bounds. */
+  groups: TargetGroups | null;
+  /** Optional EMDs already computed within one set: item i's pairs are start[i]..start[i+1]-1. */
+  known: KnownPairs | null;
+}
+
+export interface KnownPairs {
+  start: Int32Array;
+  other: Int32Array;
+  distance: Float64Array;
+}
+
+/**
+ * Targets grouped around leaders: target t lies within leaderDistance[t] (an exact EMD) of target leaderOf[t].
+ * Since EMD is a metric, EMD(q, t) >= EMD(q', leaderOf[t]) - EMD(q, q') - leaderDistance[t] for any q', so one EMD to
+ * a leader bounds a whole group from below.
+ */
+export interface TargetGroups {
+  leaderOf: Int32Array;
+  leaderDistance: Float64Array;
 }
 
 export interface KnnChunk {
@@ -41,7 +63,8 @@ export interface KnnChunk {
 
 /** Exact k nearest targets under EMD for each query of the chunk. */
 export function knnChunk(task: KnnTask): KnnChunk {
-  const { queries, targets, index, sameSet, queryOrder, start, end, k } = task;
+  const { queries, targets, index, sameSet, queryOrder, start, end, k, groups } = task;
+  const known = sameSet ? task.known : null;
   const dim = targets.k;
   const nt = targets.count;
   const { order, keys, columns } = index;
@@ -59,10 +82,9 @@ export function knnChunk(task: KnnTask): KnnChunk {
   const bestD = new Float64Array(k);
   const bestI = new Int32Array(k);
   const stamp = new Int32Array(nt).fill(-1);
-  const candidateBound = new Float64Array(nt);
-  let candidates: Int32Array = new Int32Array(64);
-  let sortStack = new Int32Array(sortStackLength(64));
+  const heap = new BoundHeap();
   const cache = new PairCache();
+  const rowMinCache = new PairCache();
   let emdEvaluations = 0;
   let boundEvaluations = 0;
 
@@ -88,6 +110,28 @@ export function knnChunk(task: KnnTask): KnnChunk {
     return d;
   };
 
+  // Row-minimum bound of the pair (q, t), computed from the smaller index within one set so that it is one number
+  // per pair; with limit = Infinity it is complete and cached.
+  const rowMin = (q: number, t: number, limit: number): number => {
+    const a = sameSet && t < q ? t : q;
+    const b = sameSet && t < q ? q : t;
+    const hit = rowMinCache.get(a, b);
+    if (hit >= 0) return hit;
+    const v = rowMinBound(
+      queries.rows,
+      queries.weights,
+      queries.rowStart[a],
+      queries.rowStart[a + 1] - queries.rowStart[a],
+      targets.rows,
+      targets.rowStart[b],
+      targets.rowStart[b + 1] - targets.rowStart[b],
+      dim,
+      limit,
+    );
+    if (limit === Infinity) rowMinCache.set(a, b, v);
+    return v;
+  };
+
   for (let r = 0; r < count; r++) {
     const q = queryOrder[start + r];
     outQueries[r] = q;
@@ -107,6 +151,13 @@ export function knnChunk(task: KnnTask): KnnChunk {
       hi0 = lo;
     }
     const lo0 = hi0 - 1;
+    // Distances already known from the grouping (pairs within its radius) need no second EMD.
+    if (known !== null) {
+      for (let e = known.start[q]; e < known.start[q + 1]; e++) {
+        const t = known.other[e];
+        cache.set(t < q ? t : q, t < q ? q : t, known.distance[e]);
+      }
+    }
 
     // Stage 1: the k targets with the smallest AMD bounds, found by sweeping outwards along the key column.
     let filled = 0;
@@ -138,9 +189,34 @@ export function knnChunk(task: KnnTask): KnnChunk {
       found = insert(bestD, bestI, found, k, distance(q, t), t);
     }
 
-    // Stage 3: every other target whose bound does not exceed T is a candidate; visit them by increasing bound.
+    // Within one set the query's own leader stands in for it (at a known distance); across sets the query is its own.
+    const qLeader = groups !== null && sameSet ? groups.leaderOf[q] : q;
+    const qLeaderDistance = groups !== null && sameSet ? groups.leaderDistance[q] : 0;
+    // The leaders can tighten t's bound unless they are q and t themselves (then it is the EMD) or coincide.
+    const refinable = (t: number): boolean => {
+      if (groups === null) return false;
+      const tLeader = groups.leaderOf[t];
+      if (sameSet && tLeader === qLeader) return false;
+      return tLeader !== t || qLeader !== q;
+    };
+    // Lower bounds of EMD(q, t), from cheap to dear (each level is tried once per candidate):
+    //   0: through the leaders, with the row-minimum bound between the leaders;
+    //   1: through the leaders, with the EMD between the leaders (shared by both groups);
+    //   2: the row-minimum bound between q and t themselves.
+    const refine = (level: number, q: number, t: number, limitNow: number): number => {
+      if (level === 2) return rowMin(q, t, limitNow);
+      if (!refinable(t)) return -Infinity;
+      const tLeader = groups!.leaderOf[t];
+      const through = level === 0 ? rowMin(qLeader, tLeader, Infinity) : distance(qLeader, tLeader);
+      return through - qLeaderDistance - groups!.leaderDistance[t];
+    };
+
+    // Stage 3: every other target whose AMD bound does not exceed T is a candidate. Candidates are visited best
+    // first by their lower bound; a candidate's first visit may only tighten its bound through the leaders
+    // (triangle inequality) and send it back, its second visit computes the EMD. The search ends when the smallest
+    // bound left exceeds T, which only shrinks.
     const limit = widen(bestD[k - 1]);
-    let nc = 0;
+    heap.clear();
     lo = lo0;
     hi = hi0;
     while (lo >= 0 && qKey - keys[lo] <= limit) {
@@ -148,38 +224,41 @@ export function knnChunk(task: KnnTask): KnnChunk {
       if (stamp[t] === q || (sameSet && t === q)) continue;
       boundEvaluations++;
       const b = bound(qAmd, qo, tAmd, t * dim, columns, dim, limit);
-      if (b > limit) continue;
-      if (nc === candidates.length) {
-        candidates = grow(candidates);
-        sortStack = new Int32Array(sortStackLength(candidates.length));
-      }
-      candidateBound[t] = b;
-      candidates[nc++] = t;
+      if (b <= limit) heap.add(b, t, 0);
     }
     while (hi < nt && keys[hi] - qKey <= limit) {
       const t = order[hi++];
       if (stamp[t] === q || (sameSet && t === q)) continue;
       boundEvaluations++;
       const b = bound(qAmd, qo, tAmd, t * dim, columns, dim, limit);
-      if (b > limit) continue;
-      if (nc === candidates.length) {
-        candidates = grow(candidates);
-        sortStack = new Int32Array(sortStackLength(candidates.length));
-      }
-      candidateBound[t] = b;
-      candidates[nc++] = t;
+      if (b <= limit) heap.add(b, t, 0);
     }
-    sortByKey(candidates, nc, candidateBound, sortStack);
-    for (let c = 0; c < nc; c++) {
-      const t = candidates[c];
-      // T only shrinks, so once a bound exceeds it all later (larger) bounds do too.
-      if (candidateBound[t] > widen(bestD[k - 1])) break;
+    heap.heapify();
+    while (heap.size > 0) {
+      const key = heap.topKey();
+      const t = heap.topId();
+      let level = heap.topFlag();
+      heap.pop();
+      const limitNow = widen(bestD[k - 1]);
+      if (key > limitNow) break;
+      // Tighten the bound step by step; as soon as it rises, send the candidate back to the queue.
+      let raised = key;
+      while (level < EXACT && raised === key) {
+        const lb = refine(level, q, t, limitNow);
+        level++;
+        if (lb > raised) raised = lb;
+      }
+      if (raised > key) {
+        if (raised <= limitNow) heap.push(raised, t, level);
+        continue;
+      }
       const d = distance(q, t);
       if (d < bestD[k - 1] || (d === bestD[k - 1] && t < bestI[k - 1])) insert(bestD, bestI, k, k, d, t);
     }
     outIndices.set(bestI, r * k);
     outDistances.set(bestD, r * k);
     cache.maybeClear();
+    rowMinCache.maybeClear();
   }
   return { queries: outQueries, indices: outIndices, distances: outDistances, emdEvaluations, boundEvaluations };
 }
@@ -304,10 +383,102 @@ function insert(vals: Float64Array, ids: Int32Array, size: number, cap: number, 
   return size < cap ? size + 1 : cap;
 }
 
-function grow(a: Int32Array): Int32Array {
-  const b = new Int32Array(a.length * 2);
-  b.set(a);
-  return b;
+/** Binary min-heap of (bound, target, flag) ordered by (bound, target), in growable typed arrays. */
+class BoundHeap {
+  size = 0;
+  private key = new Float64Array(256);
+  private id = new Int32Array(256);
+  private flag = new Uint8Array(256);
+
+  clear(): void {
+    this.size = 0;
+  }
+
+  /** Append without ordering (call heapify before popping). */
+  add(key: number, id: number, flag: number): void {
+    if (this.size === this.key.length) this.grow();
+    this.key[this.size] = key;
+    this.id[this.size] = id;
+    this.flag[this.size] = flag;
+    this.size++;
+  }
+
+  heapify(): void {
+    for (let i = (this.size >> 1) - 1; i >= 0; i--) this.down(i);
+  }
+
+  push(key: number, id: number, flag: number): void {
+    this.add(key, id, flag);
+    let i = this.size - 1;
+    while (i > 0) {
+      const p = (i - 1) >> 1;
+      if (!this.less(i, p)) break;
+      this.swap(i, p);
+      i = p;
+    }
+  }
+
+  topKey(): number {
+    return this.key[0];
+  }
+
+  topId(): number {
+    return this.id[0];
+  }
+
+  topFlag(): number {
+    return this.flag[0];
+  }
+
+  pop(): void {
+    this.size--;
+    if (this.size > 0) {
+      this.key[0] = this.key[this.size];
+      this.id[0] = this.id[this.size];
+      this.flag[0] = this.flag[this.size];
+      this.down(0);
+    }
+  }
+
+  private down(i: number): void {
+    for (;;) {
+      const l = 2 * i + 1;
+      if (l >= this.size) return;
+      const r = l + 1;
+      const c = r < this.size && this.less(r, l) ? r : l;
+      if (!this.less(c, i)) return;
+      this.swap(c, i);
+      i = c;
+    }
+  }
+
+  private less(a: number, b: number): boolean {
+    return this.key[a] < this.key[b] || (this.key[a] === this.key[b] && this.id[a] < this.id[b]);
+  }
+
+  private swap(a: number, b: number): void {
+    const k = this.key[a];
+    this.key[a] = this.key[b];
+    this.key[b] = k;
+    const d = this.id[a];
+    this.id[a] = this.id[b];
+    this.id[b] = d;
+    const f = this.flag[a];
+    this.flag[a] = this.flag[b];
+    this.flag[b] = f;
+  }
+
+  private grow(): void {
+    const key = new Float64Array(this.key.length * 2);
+    key.set(this.key);
+    this.key = key;
+    const id = new Int32Array(this.id.length * 2);
+    id.set(this.id);
+    this.id = id;
+    const flag = new Uint8Array(this.flag.length * 2);
+    flag.set(this.flag);
+    this.flag = flag;
+  }
 }
 
 /**

@@ -4,7 +4,7 @@
 // is split into chunks of queries spread over worker threads, and the invariants are packed once per call into
 // shared typed arrays that every worker reads in place.
 import { chunkRanges, defaultThreads, mapInWorkers } from '../parallel/pool.js';
-import type { KnnChunk, KnnTask, MatrixTask, WithinChunk, WithinTask } from './graph-search.js';
+import type { KnnChunk, KnnTask, KnownPairs, MatrixTask, TargetGroups, WithinChunk, WithinTask } from './graph-search.js';
 import { buildIndex, packItems, type MetricItem, type PackedSet, type SortedIndex } from './packed.js';
 
 export type { MetricItem } from './packed.js';
@@ -12,7 +12,7 @@ export type { MetricItem } from './packed.js';
 export interface GraphOptions {
   /** Worker threads (1 = calling thread). Default: available cores. Results do not depend on it. */
   threads?: number;
-  /** Called as chunks finish: (chunks done, chunks in total). */
+  /** Called as chunks finish: (items done, items in total), approximately until the last chunk. */
   onProgress?: (done: number, total: number) => void;
 }
 
@@ -60,7 +60,11 @@ export async function nearestNeighbours(items: readonly MetricItem[], k: number,
   const pairsConsidered = (n * (n - 1)) / 2;
   if (kk === 0) return emptyGraph(pairsConsidered);
   const index = buildIndex(set, shared);
-  return runKnn(set, set, index, true, index.order, kk, threads, opts, pairsConsidered);
+  const grouped = await groupTargets(set, index, threads, shared);
+  const g = await runKnn(set, set, index, true, index.order, kk, threads, opts, pairsConsidered, grouped.groups, grouped.known);
+  g.emdEvaluations += grouped.emdEvaluations;
+  g.boundEvaluations += grouped.boundEvaluations;
+  return g;
 }
 
 /** For each query, its k nearest targets under EMD, exactly (for comparing two runs, or finding references). */
@@ -88,7 +92,11 @@ export async function nearestAcross(
   for (let q = 0; q < qset.count; q++) qKey[q] = qset.amd[q * qset.k + key];
   const qOrder = Int32Array.from({ length: qset.count }, (_, q) => q).sort((a, b) => qKey[a] - qKey[b] || a - b);
   const queryOrder = shared ? toShared(qOrder) : qOrder;
-  return runKnn(qset, tset, index, false, queryOrder, kk, threads, opts, pairsConsidered);
+  const grouped = await groupTargets(tset, index, threads, shared);
+  const g = await runKnn(qset, tset, index, false, queryOrder, kk, threads, opts, pairsConsidered, grouped.groups, null);
+  g.emdEvaluations += grouped.emdEvaluations;
+  g.boundEvaluations += grouped.boundEvaluations;
+  return g;
 }
 
 /** All pairs i < j with EMD <= radiusAngstrom, exactly, sorted by i then j. */
@@ -105,8 +113,15 @@ export async function pairsWithin(items: readonly MetricItem[], radiusAngstrom: 
     return { i: new Int32Array(0), j: new Int32Array(0), distances: new Float64Array(0), emdEvaluations: 0, boundEvaluations: 0, pairsConsidered, evaluationsAvoided: pairsConsidered };
   }
   const index = buildIndex(set, shared);
-  const tasks: WithinTask[] = chunkRanges(n, Math.ceil(n / QUERIES_PER_CHUNK)).map(([start, end]) => ({ set, index, start, end, radiusAngstrom }));
-  const parts = await mapInWorkers<WithinTask, WithinChunk>(SEARCH_URL, 'withinChunk', tasks, { threads, onProgress: opts.onProgress });
+  return withinPacked(set, index, radiusAngstrom, threads, opts);
+}
+
+async function withinPacked(set: PackedSet, index: SortedIndex, radiusAngstrom: number, threads: number, opts: GraphOptions): Promise<PairsWithin> {
+  const n = set.count;
+  const pairsConsidered = (n * (n - 1)) / 2;
+  const ranges = chunkRanges(n, Math.ceil(n / QUERIES_PER_CHUNK));
+  const tasks: WithinTask[] = ranges.map(([start, end]) => ({ set, index, start, end, radiusAngstrom }));
+  const parts = await mapInWorkers<WithinTask, WithinChunk>(SEARCH_URL, 'withinChunk', tasks, { threads, onProgress: itemProgress(opts, n, ranges.length) });
   let total = 0;
   let emdEvaluations = 0;
   let boundEvaluations = 0;
@@ -152,7 +167,10 @@ export async function distanceMatrix(items: readonly MetricItem[], opts: GraphOp
       start = i + 1;
     }
   }
-  const parts = await mapInWorkers<MatrixTask, Float64Array>(SEARCH_URL, 'matrixChunk', tasks, { threads, onProgress: opts.onProgress });
+  const parts = await mapInWorkers<MatrixTask, Float64Array>(SEARCH_URL, 'matrixChunk', tasks, {
+    threads,
+    onProgress: opts.onProgress ? (done, total) => opts.onProgress?.(done === total ? n : tasks[done - 1].end, n) : undefined,
+  });
   for (let t = 0; t < tasks.length; t++) {
     const part = parts[t];
     let o = 0;
@@ -177,9 +195,12 @@ async function runKnn(
   threads: number,
   opts: GraphOptions,
   pairsConsidered: number,
+  groups: TargetGroups | null,
+  known: KnownPairs | null,
 ): Promise<NeighbourGraph> {
   const nq = queries.count;
-  const tasks: KnnTask[] = chunkRanges(nq, Math.ceil(nq / QUERIES_PER_CHUNK)).map(([start, end]) => ({
+  const ranges = chunkRanges(nq, Math.ceil(nq / QUERIES_PER_CHUNK));
+  const tasks: KnnTask[] = ranges.map(([start, end]) => ({
     queries,
     targets,
     index,
@@ -188,8 +209,10 @@ async function runKnn(
     start,
     end,
     k,
+    groups,
+    known,
   }));
-  const parts = await mapInWorkers<KnnTask, KnnChunk>(SEARCH_URL, 'knnChunk', tasks, { threads, onProgress: opts.onProgress });
+  const parts = await mapInWorkers<KnnTask, KnnChunk>(SEARCH_URL, 'knnChunk', tasks, { threads, onProgress: itemProgress(opts, nq, ranges.length) });
   const indices = new Int32Array(nq * k);
   const distances = new Float64Array(nq * k);
   let emdEvaluations = 0;
@@ -204,6 +227,89 @@ async function runKnn(
     boundEvaluations += p.boundEvaluations;
   }
   return { k, indices, distances, emdEvaluations, boundEvaluations, pairsConsidered };
+}
+
+/**
+ * Group near-identical targets around leaders so that one EMD to a leader bounds a whole group (triangle inequality;
+ * EMD is a metric, Rubner et al. IJCV 2000). The grouping radius only affects speed, never results: it is a small
+ * fraction of the typical AMD distance between structures, so that copies of one structure (duplicate minima)
+ * share a leader while distinct structures do not. Leaders are taken in index order; every pair within the radius
+ * is found exactly (pairs-within search), so the grouping is deterministic.
+ */
+async function groupTargets(
+  set: PackedSet,
+  index: SortedIndex,
+  threads: number,
+  shared: boolean,
+): Promise<{ groups: TargetGroups | null; known: KnownPairs | null; emdEvaluations: number; boundEvaluations: number }> {
+  const n = set.count;
+  const radius = groupingRadius(set);
+  if (n < 64 || !(radius > 0)) return { groups: null, known: null, emdEvaluations: 0, boundEvaluations: 0 };
+  const close = await withinPacked(set, index, radius, threads, {});
+  // Neighbour lists within the radius (both directions).
+  const degree = shared ? new Int32Array(new SharedArrayBuffer(4 * (n + 1))) : new Int32Array(n + 1);
+  for (let p = 0; p < close.i.length; p++) {
+    degree[close.i[p] + 1]++;
+    degree[close.j[p] + 1]++;
+  }
+  for (let i = 0; i < n; i++) degree[i + 1] += degree[i];
+  const fill = degree.slice(0, n);
+  const pairs = 2 * close.i.length;
+  const other = shared ? new Int32Array(new SharedArrayBuffer(4 * Math.max(1, pairs)), 0, pairs) : new Int32Array(pairs);
+  const dist = shared ? new Float64Array(new SharedArrayBuffer(8 * Math.max(1, pairs)), 0, pairs) : new Float64Array(pairs);
+  for (let p = 0; p < close.i.length; p++) {
+    const a = close.i[p];
+    const b = close.j[p];
+    other[fill[a]] = b;
+    dist[fill[a]++] = close.distances[p];
+    other[fill[b]] = a;
+    dist[fill[b]++] = close.distances[p];
+  }
+  const leaderOf = shared ? new Int32Array(new SharedArrayBuffer(4 * n)) : new Int32Array(n);
+  const leaderDistance = shared ? new Float64Array(new SharedArrayBuffer(8 * n)) : new Float64Array(n);
+  leaderOf.fill(-1);
+  for (let i = 0; i < n; i++) {
+    if (leaderOf[i] !== -1) continue;
+    leaderOf[i] = i;
+    leaderDistance[i] = 0;
+    for (let e = degree[i]; e < degree[i + 1]; e++) {
+      const j = other[e];
+      if (leaderOf[j] === -1) {
+        leaderOf[j] = i;
+        leaderDistance[j] = dist[e];
+      }
+    }
+  }
+  return {
+    groups: { leaderOf, leaderDistance },
+    known: { start: degree, other, distance: dist },
+    emdEvaluations: close.emdEvaluations,
+    boundEvaluations: close.boundEvaluations,
+  };
+}
+
+/** 5% of the median AMD distance over a fixed sample of pairs (0 when all AMDs coincide). */
+function groupingRadius(set: PackedSet): number {
+  const n = set.count;
+  const k = set.k;
+  const samples = Math.min(2000, n);
+  const d = new Float64Array(samples);
+  for (let s = 0; s < samples; s++) {
+    const a = (s * 7919) % n;
+    const b = (s * 104729 + 1 + Math.floor(n / 2)) % n;
+    let max = 0;
+    for (let j = 0; j < k; j++) max = Math.max(max, Math.abs(set.amd[a * k + j] - set.amd[b * k + j]));
+    d[s] = max;
+  }
+  d.sort();
+  return 0.05 * d[Math.floor(samples / 2)];
+}
+
+/** Turn chunk progress into item progress for the caller. */
+function itemProgress(opts: GraphOptions, items: number, chunks: number): ((done: number, total: number) => void) | undefined {
+  const cb = opts.onProgress;
+  if (!cb) return undefined;
+  return (done, total) => cb(done === total ? items : Math.min(items, Math.round((done * items) / chunks)), items);
 }
 
 function checkK(k: number): void {

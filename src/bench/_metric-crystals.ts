@@ -1,0 +1,121 @@
+// Molecular-crystal-like periodic sets for the metric benchmarks (not a benchmark itself: the leading underscore
+// keeps the runner from treating it as one). An invented rigid 11-atom molecule, four copies related by the
+// P2_1/c operations (x,y,z; -x,y+1/2,-z+1/2; -x,-y,-z; x,-y+1/2,z+1/2: International Tables Vol. A, No. 14),
+// in a monoclinic cell of about 14 Å³ per atom (a molecular-crystal-like density; common practice, from memory).
+// Distinct packings differ in cell, orientation and position; copies of a packing differ by optimiser-like noise.
+import type { PeriodicSet } from '../types.js';
+
+/** Invented molecule, Cartesian Å: a slightly puckered six-ring with five substituents. */
+const MOLECULE = [
+  0, 1.4, 0.05, 1.21, 0.7, -0.05, 1.21, -0.7, 0.05, 0, -1.4, -0.05, -1.21, -0.7, 0.05, -1.21, 0.7, -0.05,
+  0.1, 2.85, 0.2, 2.5, 1.45, -0.2, 2.4, -1.45, 0.25, -0.1, -2.8, -0.15, -2.55, 1.5, 0.3,
+];
+
+const OPS = [
+  [1, 1, 1, 0, 0, 0],
+  [-1, 1, -1, 0, 0.5, 0.5],
+  [-1, -1, -1, 0, 0, 0],
+  [1, -1, 1, 0, 0.5, 0.5],
+];
+
+interface PackingParams {
+  a: number;
+  b: number;
+  betaRad: number;
+  rot: number[];
+  centre: number[];
+}
+
+/**
+ * `packings` distinct structures, each repeated `copies` times with noise of about `noiseAngstrom` per atom
+ * (and a matching relative noise on the cell). Returned packing by packing: copies of packing p are p*copies...
+ */
+export function noisyPackings(packings: number, copies: number, noiseAngstrom: number, seed: number): PeriodicSet[] {
+  const rand = seeded(seed);
+  const out: PeriodicSet[] = [];
+  for (let p = 0; p < packings; p++) {
+    const params = randomPacking(rand);
+    for (let c = 0; c < copies; c++) out.push(build(params, c === 0 ? 0 : noiseAngstrom, rand));
+  }
+  return out;
+}
+
+/** A P1 cell of `atoms` random points at about 15 Å³ per atom: PDDs whose rows are all distinct. */
+export function randomP1(atoms: number, seed: number): PeriodicSet {
+  const rand = seeded(seed);
+  const edge = Math.cbrt(15 * atoms);
+  const basis = Float64Array.from([edge * (0.9 + 0.2 * rand()), 0, 0, edge * 0.1 * rand(), edge * (0.9 + 0.2 * rand()), 0, edge * 0.1 * rand(), edge * 0.1 * rand(), edge * (0.9 + 0.2 * rand())]);
+  const frac = Float64Array.from({ length: 3 * atoms }, () => rand());
+  const m = atoms;
+  return { dim: 3, basis, motif: fracToCart(basis, frac), atomicNumbers: new Uint8Array(m).fill(6), asym: Int32Array.from({ length: m }, (_, i) => i), multiplicity: new Int32Array(m).fill(1) };
+}
+
+function randomPacking(rand: () => number): PackingParams {
+  const q = [rand() - 0.5, rand() - 0.5, rand() - 0.5, rand() - 0.5];
+  const qn = Math.hypot(...q);
+  const [w, x, y, z] = q.map((t) => t / qn);
+  const rot = [
+    1 - 2 * (y * y + z * z), 2 * (x * y - w * z), 2 * (x * z + w * y),
+    2 * (x * y + w * z), 1 - 2 * (x * x + z * z), 2 * (y * z - w * x),
+    2 * (x * z - w * y), 2 * (y * z + w * x), 1 - 2 * (x * x + y * y),
+  ];
+  return { a: 6 + 4 * rand(), b: 5 + 3 * rand(), betaRad: ((95 + 20 * rand()) * Math.PI) / 180, rot, centre: [0.5 * rand(), 0.25 * rand(), 0.5 * rand()] };
+}
+
+function build(p: PackingParams, noise: number, rand: () => number): PeriodicSet {
+  const jitter = () => noise * (2 * rand() - 1);
+  const a = p.a * (1 + jitter() / 10);
+  const b = p.b * (1 + jitter() / 10);
+  const beta = p.betaRad + jitter() / 100;
+  const c = (44 * 14) / (p.a * p.b * Math.sin(p.betaRad));
+  const basis = Float64Array.from([a, 0, 0, 0, b, 0, c * Math.cos(beta), 0, c * Math.sin(beta)]);
+  const inv = inverse3(basis);
+  const asymFrac = new Float64Array(33);
+  for (let i = 0; i < 11; i++) {
+    const m = [MOLECULE[3 * i] + jitter(), MOLECULE[3 * i + 1] + jitter(), MOLECULE[3 * i + 2] + jitter()];
+    const cart = [0, 1, 2].map((r) => p.rot[3 * r] * m[0] + p.rot[3 * r + 1] * m[1] + p.rot[3 * r + 2] * m[2]);
+    for (let col = 0; col < 3; col++) asymFrac[3 * i + col] = p.centre[col] + cart[0] * inv[col] + cart[1] * inv[3 + col] + cart[2] * inv[6 + col];
+  }
+  const frac = new Float64Array(44 * 3);
+  const asym = new Int32Array(11);
+  for (let i = 0; i < 11; i++) {
+    asym[i] = 4 * i;
+    for (let o = 0; o < 4; o++) {
+      for (let col = 0; col < 3; col++) {
+        const f = OPS[o][col] * asymFrac[3 * i + col] + OPS[o][3 + col];
+        frac[(4 * i + o) * 3 + col] = f - Math.floor(f);
+      }
+    }
+  }
+  return { dim: 3, basis, motif: fracToCart(basis, frac), atomicNumbers: new Uint8Array(44).fill(6), asym, multiplicity: new Int32Array(11).fill(4) };
+}
+
+function fracToCart(basis: Float64Array, frac: Float64Array): Float64Array {
+  const out = new Float64Array(frac.length);
+  for (let t = 0; t < frac.length / 3; t++) {
+    for (let c = 0; c < 3; c++) out[3 * t + c] = frac[3 * t] * basis[c] + frac[3 * t + 1] * basis[3 + c] + frac[3 * t + 2] * basis[6 + c];
+  }
+  return out;
+}
+
+/** Inverse of a 3x3 matrix whose rows are lattice vectors (cofactor formula). */
+function inverse3(m: Float64Array): Float64Array {
+  const d = m[0] * (m[4] * m[8] - m[5] * m[7]) - m[1] * (m[3] * m[8] - m[5] * m[6]) + m[2] * (m[3] * m[7] - m[4] * m[6]);
+  return Float64Array.from([
+    (m[4] * m[8] - m[5] * m[7]) / d, (m[2] * m[7] - m[1] * m[8]) / d, (m[1] * m[5] - m[2] * m[4]) / d,
+    (m[5] * m[6] - m[3] * m[8]) / d, (m[0] * m[8] - m[2] * m[6]) / d, (m[2] * m[3] - m[0] * m[5]) / d,
+    (m[3] * m[7] - m[4] * m[6]) / d, (m[1] * m[6] - m[0] * m[7]) / d, (m[0] * m[4] - m[1] * m[3]) / d,
+  ]);
+}
+
+/** Seeded generator (mulberry32; common practice for reproducible benchmark data). */
+export function seeded(seed: number): () => number {
+  let s = seed >>> 0;
+  return () => {
+    s = (s + 0x6d2b79f5) >>> 0;
+    let t = s;
+    t = Math.imul(t ^ (t >>> 15), t | 1);
+    t ^= t + Math.imul(t ^ (t >>> 7), t | 61);
+    return ((t ^ (t >>> 14)) >>> 0) / 4294967296;
+  };
+}
