@@ -250,14 +250,29 @@ function primLazy(
   const candFrom = new Int32Array(n);
   const candFloor = new Float64Array(n);
   const candOrder = new Int32Array(n);
+  const nearJ = new Float64Array(n);
+  const nearJStamp = new Int32Array(n).fill(-1);
+  let resolveId = 0;
   const resolve = (j: number) => {
+    // j's graph neighbours in both directions, with their distances, stamped for this call
+    resolveId++;
+    if (graph && k > 0) {
+      for (let q = j * k; q < j * k + k; q++) {
+        nearJ[graph.indices[q]] = graph.distances[q];
+        nearJStamp[graph.indices[q]] = resolveId;
+      }
+      for (let q = revStart[j]; q < revStart[j + 1]; q++) {
+        nearJ[revFrom[q]] = revDist[q];
+        nearJStamp[revFrom[q]] = resolveId;
+      }
+    }
     let m = 0;
     for (let p = seen[j]; p < size; p++) {
       const c = order[p];
       let floor = core[c] > core[j] ? core[c] : core[j];
       if (floor >= best[j]) continue;
-      if (isKnown(c, j)) {
-        const r = mutualReachability(core[c], core[j], knownDistance(c, j));
+      if (nearJStamp[c] === resolveId) {
+        const r = mutualReachability(core[c], core[j], nearJ[c]);
         if (r < best[j]) best[j] = r;
         continue;
       }
@@ -287,20 +302,6 @@ function primLazy(
     seen[j] = size;
     pending[j] = Infinity;
   };
-  // is j in c's neighbour list or c in j's? (binary-free: scan the two short lists)
-  const isKnown = (c: number, j: number): boolean => {
-    if (!graph || k === 0) return false;
-    for (let q = c * k; q < c * k + k; q++) if (graph.indices[q] === j) return true;
-    for (let q = j * k; q < j * k + k; q++) if (graph.indices[q] === c) return true;
-    return false;
-  };
-  const knownDistance = (c: number, j: number): number => {
-    const g = graph as KnownNeighbours;
-    for (let q = c * k; q < c * k + k; q++) if (g.indices[q] === j) return g.distances[q];
-    for (let q = j * k; q < j * k + k; q++) if (g.indices[q] === c) return g.distances[q];
-    return NaN;
-  };
-
   let current = 0;
   for (let t = 0; t < n - 1; t++) {
     inTree[current] = 1;
