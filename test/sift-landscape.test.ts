@@ -81,3 +81,19 @@ describe('sift on a labelled generated landscape', async () => {
     expect(above).toBeGreaterThan(0);
   });
 });
+
+describe('sift families above the dense limit', async () => {
+  it('gives the same families and neighbours from the lazy path (neighbour graph + AMD bound) as from the full matrix', async () => {
+    const base = { inputs: [join(dir, 'landscape.cif')], energiesFile: join(dir, 'energies.csv'), threads: 1, cacheDir: join(dir, 'cache'), minFamilySize: 2 };
+    const dense = await sift(base);
+    const lazy = await sift({ ...base, denseLimit: 2 });
+    expect(lazy.landscape.counts.kept).toBe(K);
+    expect(lazy.landscape.structures.map((r) => r.family)).toEqual(dense.landscape.structures.map((r) => r.family));
+    expect(lazy.landscape.edges).toEqual(dense.landscape.edges);
+    // HDBSCAN with families of 2 on 8 packings (3 close pairs among them) finds some family.
+    expect(dense.landscape.families.length).toBeGreaterThan(0);
+    // With fewer kept structures than landmarks, the landmark map is the full map (src/cluster/embedding-landmarks.ts).
+    expect(lazy.landscape.embedding!.coords).toHaveLength(K);
+    expect(lazy.landscape.embedding!.coords).toEqual(dense.landscape.embedding!.coords);
+  });
+});

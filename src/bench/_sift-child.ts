@@ -8,6 +8,7 @@ import { writeFilesAtomically } from '../io/outputs.js';
 
 const [cif, energies, out, cacheDir, tolerance, threads] = process.argv.slice(2);
 const t0 = performance.now();
+const cpu0 = process.cpuUsage();
 const run = await sift({
   inputs: [cif],
   energiesFile: energies,
@@ -17,9 +18,13 @@ const run = await sift({
 });
 writeFilesAtomically(out, siftFiles(run));
 const seconds = (performance.now() - t0) / 1000;
+// CPU time of every thread of the process, for comparison when the machine is shared.
+const cpu = process.cpuUsage(cpu0);
+const cpuSeconds = (cpu.user + cpu.system) / 1e6;
 process.stdout.write(
   `${JSON.stringify({
     seconds,
+    cpuSeconds,
     // Peak resident set size of this process (worker threads included), kB -> MB.
     peakMb: process.resourceUsage().maxRSS / 1024,
     counts: run.landscape.counts,

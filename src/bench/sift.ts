@@ -15,6 +15,7 @@ const THREADS = 2;
 
 interface ChildResult {
   seconds: number;
+  cpuSeconds: number;
   peakMb: number;
   counts: { input: number; kept: number; duplicate: number; rejected: number; outsideWindow: number };
   families: number;
@@ -30,6 +31,7 @@ export async function run(): Promise<void> {
   const energies = join(dir, 'energies.csv');
   if (!existsSync(cif)) {
     const t = performance.now();
+    process.stdout.write(`generating ${packings * copies} structures (once; kept in ${dir})...\n`);
     mkdirSync(dir, { recursive: true });
     const g = generateLandscape({
       seed: 44,
@@ -47,17 +49,17 @@ export async function run(): Promise<void> {
   const out = join(dir, 'out');
   const cache = join(dir, 'cache');
   rmSync(cache, { recursive: true, force: true });
-  const first = child(cif, energies, out, cache, 0.02);
+  const first = child(cif, energies, out, cache, 0.04);
   process.stdout.write(
     `sift of ${first.counts.input} structures (${packings} distinct, 44 atoms per cell), ${THREADS} threads: ${first.seconds.toFixed(2)} s  [goal < 10 s], ` +
       `peak memory ${first.peakMb.toFixed(0)} MB  [goal < 2048 MB]\n` +
       `  kept ${first.counts.kept} (planted ${packings}), duplicates ${first.counts.duplicate}, rejected ${first.counts.rejected}, families ${first.families}\n` +
       `  stages (s): ${Object.entries(first.timings).map(([k, v]) => `${k} ${v.toFixed(2)}`).join(', ')}\n`,
   );
-  const second = child(cif, energies, out, cache, 0.03);
+  const second = child(cif, energies, out, cache, 0.05);
   process.stdout.write(
-    `cached re-run with tolerance 0.03 Å: ${second.seconds.toFixed(2)} s = ${((100 * second.seconds) / first.seconds).toFixed(1)}% of the first run  [goal < 10%], ` +
-      `cache hits ${second.cache.hits}, misses ${second.cache.misses}, peak memory ${second.peakMb.toFixed(0)} MB\n` +
+    `cached re-run with tolerance 0.05 Å: ${second.seconds.toFixed(2)} s = ${((100 * second.seconds) / first.seconds).toFixed(1)}% of the first run  [goal < 10%], ` +
+      `CPU ${second.cpuSeconds.toFixed(2)} s, cache hits ${second.cache.hits}, misses ${second.cache.misses}, peak memory ${second.peakMb.toFixed(0)} MB\n` +
       `  stages (s): ${Object.entries(second.timings).map(([k, v]) => `${k} ${v.toFixed(2)}`).join(', ')}\n`,
   );
 }

@@ -35,12 +35,16 @@ import { VERSION } from '../version.js';
 import { makeProgress, type Progress } from '../progress.js';
 
 /**
- * Default duplicate tolerance, EMD in Å. Measured on the generator's landscapes (optimiser-like noise of
- * 0.002 Å per coordinate and 2e-4 relative on cell lengths): copies of one minimum lie at most ~0.01 Å apart,
- * distinct packings (including close pairs made by a 4-degree turn of the molecule) at least ~0.05 Å apart
- * (see test/sift-landscape.test.ts and the report's nearest-neighbour histogram for the run at hand).
+ * Default duplicate tolerance, EMD in Å, chosen from measurements on the generator's landscapes
+ * (`npm run bench`, module sift-tolerance; k = 100, hydrogens kept). Copies of one minimum with optimiser-like
+ * noise of sigma Å per coordinate (plus 2e-4 relative on cell lengths) lie at most 0.008 / 0.014 / 0.020 /
+ * 0.031 Å apart for sigma = 0.001 / 0.002 / 0.003 / 0.005 Å; distinct packings whose molecule is turned by only
+ * 1 / 2 / 4 degrees (same density within 0.005 g/cm3, energy within 0.1 kJ/mol) lie at least 0.054 / 0.084 /
+ * 0.137 Å apart, and unrelated packings at least 0.35 Å. 0.04 Å sits in that gap (about its geometric middle
+ * between the noisiest copies and the 1-degree partners). The report's nearest-neighbour histogram shows the
+ * same gap for the run at hand, so a user can check it.
  */
-export const DEFAULT_TOLERANCE_ANGSTROM = 0.02;
+export const DEFAULT_TOLERANCE_ANGSTROM = 0.04;
 export const DEFAULT_K = 100;
 export const DEFAULT_MIN_FAMILY_SIZE = 5;
 /** Nearest kept neighbours stored per kept structure (edges of the report's neighbourhood lines). */
@@ -78,6 +82,8 @@ export interface SiftOptions {
   /** Folder of the invariants cache; null to disable. Default: none (the CLI passes `<out>/.polysift-cache`). */
   cacheDir?: string | null;
   progress?: Progress;
+  /** Kept-structure count up to which the full EMD matrix is used (default DENSE_LIMIT; for tests and benchmarks). */
+  denseLimit?: number;
 }
 
 export interface SiftRun {
@@ -404,7 +410,7 @@ export async function sift(opts: SiftOptions): Promise<SiftRun> {
     progress.stage('families and metric map', nKept);
     const hdbOptions = { minClusterSize: params.minFamilySize, minSamples: params.minSamples };
     const clusterable = params.minSamples <= nKept && params.minFamilySize <= nKept;
-    if (nKept <= DENSE_LIMIT) {
+    if (nKept <= (opts.denseLimit ?? DENSE_LIMIT)) {
       const dist = await distanceMatrix(keptItems, { threads });
       if (clusterable) familyLabels.set(hdbscanDense(dist, nKept, hdbOptions).labels);
       embedding = embeddingOf(embed2d(dist, nKept));
