@@ -198,9 +198,7 @@ export function nearestNeighbourDistances(
 
   // Squared distances of the candidates within R; grown when a pass sees more, never per candidate.
   let seen = new Float64Array(Math.max(64, 2 * k));
-  let keys = new Int32Array(seen.length);
-  let starts = new Int32Array(seen.length + 1);
-  let sorted = new Float64Array(seen.length);
+  let scratch = sortScratch(seen.length);
   const members = new Int32Array(nq);
   for (let g = 0; g < groups; g++) {
     let size = 0;
@@ -223,48 +221,70 @@ export function nearestNeighbourDistances(
     }
     let cloud = buildCloud(prep, c0, c1, c2, r0 + spread);
     for (let t = 0; t < size; t++) {
-    const qi = members[t];
-    const q = qs[qi];
-    const qx = qpos[qi * 3] - c0, qy = qpos[qi * 3 + 1] - c1, qz = qpos[qi * 3 + 2] - c2;
-    const dq = Math.hypot(qx, qy, qz);
-    let radius = r0;
-    let count = 0;
-    for (;;) {
-      if (radius + dq > cloud.radius) cloud = buildCloud(prep, c0, c1, c2, (radius + spread) * 1.0001);
-      count = scanCloud(cloud, q, qx, qy, qz, radius, dq, selfSq, seen);
-      if (count > seen.length) {
-        seen = new Float64Array(2 * count);
-        continue; // same radius again, now with room for every candidate
+      const qi = members[t];
+      const q = qs[qi];
+      const qx = qpos[qi * 3] - c0, qy = qpos[qi * 3 + 1] - c1, qz = qpos[qi * 3 + 2] - c2;
+      const dq = Math.hypot(qx, qy, qz);
+      let radius = r0;
+      let count = 0;
+      for (;;) {
+        if (radius + dq > cloud.radius) cloud = buildCloud(prep, c0, c1, c2, (radius + spread) * 1.0001);
+        count = scanCloud(cloud, q, qx, qy, qz, radius, dq, selfSq, seen);
+        if (count > seen.length) {
+          seen = new Float64Array(2 * count);
+          continue; // same radius again, now with room for every candidate
+        }
+        if (count >= k) break;
+        const grow = count > 0 ? Math.pow((k + 1) / count, 1 / dim) : 2;
+        radius *= Math.max(1.25, grow);
       }
-      if (count >= k) break;
-      const grow = count > 0 ? Math.pow((k + 1) / count, 1 / dim) : 2;
-      radius *= Math.max(1.25, grow);
-    }
-    if (keys.length < count) {
-      keys = new Int32Array(seen.length);
-      starts = new Int32Array(seen.length + 1);
-      sorted = new Float64Array(seen.length);
-    }
-    // The k smallest, ascending. Candidates fill the ball about evenly, so bucketing by the fraction of
-    // the ball's volume inside each distance leaves about one per bucket, and an insertion sort of
-    // the bucketed order finishes the job in about linear time.
-    const rsq = radius * radius * (1 + 1e-9);
-    for (let i = 0; i <= count; i++) starts[i] = 0;
-    for (let i = 0; i < count; i++) {
-      const f0 = seen[i] / rsq;
-      const f = dim === 3 ? f0 * Math.sqrt(f0) : dim === 2 ? f0 : Math.sqrt(f0);
-      const key = Math.min(count - 1, Math.floor(f * count));
-      keys[i] = key;
-      starts[key + 1]++;
-    }
-    for (let bk = 0; bk < count; bk++) starts[bk + 1] += starts[bk];
-    for (let i = 0; i < count; i++) sorted[starts[keys[i]]++] = seen[i];
-    insertionSort(sorted, count);
-    const base = qi * k;
-    for (let j = 0; j < k; j++) out[base + j] = Math.sqrt(sorted[j]);
+      if (scratch.keys.length < count) scratch = sortScratch(seen.length);
+      smallestAscending(seen, count, radius, dim, k, out, qi * k, scratch);
     }
   }
   return out;
+}
+
+interface SortScratch {
+  keys: Int32Array;
+  starts: Int32Array;
+  sorted: Float64Array;
+}
+
+function sortScratch(n: number): SortScratch {
+  return { keys: new Int32Array(n), starts: new Int32Array(n + 1), sorted: new Float64Array(n) };
+}
+
+/**
+ * Write the square roots of the k smallest of `count` squared distances (all within `radius`),
+ * ascending, to out[base..base+k). Candidates fill the ball about evenly, so bucketing by the
+ * fraction of the ball's volume inside each distance leaves about one per bucket, and an insertion
+ * sort of the bucketed order finishes the job in about linear time.
+ */
+function smallestAscending(
+  seen: Float64Array,
+  count: number,
+  radius: number,
+  dim: number,
+  k: number,
+  out: Float64Array,
+  base: number,
+  scratch: SortScratch,
+): void {
+  const { keys, starts, sorted } = scratch;
+  const rsq = radius * radius * (1 + 1e-9);
+  for (let i = 0; i <= count; i++) starts[i] = 0;
+  for (let i = 0; i < count; i++) {
+    const f0 = seen[i] / rsq;
+    const f = dim === 3 ? f0 * Math.sqrt(f0) : dim === 2 ? f0 : Math.sqrt(f0);
+    const key = Math.min(count - 1, Math.floor(f * count));
+    keys[i] = key;
+    starts[key + 1]++;
+  }
+  for (let b = 0; b < count; b++) starts[b + 1] += starts[b];
+  for (let i = 0; i < count; i++) sorted[starts[keys[i]]++] = seen[i];
+  insertionSort(sorted, count);
+  for (let j = 0; j < k; j++) out[base + j] = Math.sqrt(sorted[j]);
 }
 
 /** Sort the first n entries ascending (fast on the nearly sorted input it gets). */
