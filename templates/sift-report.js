@@ -293,10 +293,11 @@
         el('td', null, S.id[j]),
         el('td', { className: 'ps-num' }, P.fmtDistance(S.distanceToKept[j])),
         el('td', { className: 'ps-num' }, P.fmt(S.energyRel[j], 3)),
-        el('td', { className: 'ps-num' }, P.fmt(S.density[j], 4)),
-        el('td', { className: 'ps-wrap' }, source(j) + ' (line ' + S.line[j] + ')')));
+        // The block and line; the file too when it is not the kept structure's file.
+        el('td', { className: 'ps-wrap', title: source(j) },
+          (S.file[j] === S.file[i] ? blockOf(j) : source(j)) + ' (line ' + S.line[j] + ')')));
     });
-    if (mem.length > 500) mbody.appendChild(el('tr', null, el('td', { colspan: 5 }, '… ' + (mem.length - 500) + ' more (all are in structures.csv)')));
+    if (mem.length > 500) mbody.appendChild(el('tr', null, el('td', { colspan: 4 }, '… ' + (mem.length - 500) + ' more (all are in structures.csv)')));
     var notes = P.clear(document.getElementById('panel-notes'));
     if (S.notes[i].length === 0) notes.appendChild(el('li', { className: 'ps-muted' }, 'none'));
     S.notes[i].forEach(function (n) { notes.appendChild(el('li', null, n)); });
@@ -322,7 +323,7 @@
       for (var j = 0; j < other.length; j++) ys.push(diff ? other[j] - own[j] : other[j]);
       curves.push({
         type: 'scatter', mode: 'lines', x: xs, y: ys, name: P.escapeForPlot(S.id[x[0]]) + ' (' + P.fmtDistance(x[1]) + ' Å)',
-        line: { width: 1.4, color: classes.colours.length ? classes.colours[Math.min(classes.colours.length - 1, classIndex(x[1]))] : '#888' },
+        line: { width: 1.4, color: D.familyColours[curves.length % D.familyColours.length] },
         hovertemplate: '%{y:.4f} Å<extra>%{fullData.name}</extra>',
       });
     });
@@ -333,18 +334,12 @@
       line: { width: 2.6, color: '#111111' }, hovertemplate: '%{y:.4f} Å<extra>%{fullData.name}</extra>',
     });
     Plotly.react(amdDiv, curves, P.baseLayout({
-      margin: { l: 58, r: 8, t: 6, b: 40 },
+      margin: { l: 58, r: 8, t: 6, b: 96 },
       xaxis: { title: { text: 'neighbour j' }, gridcolor: '#e6eaee' },
       yaxis: { title: { text: diff ? 'AMD_j − this (Å)' : 'AMD_j (Å)' }, gridcolor: '#e6eaee' },
       showlegend: true,
-      legend: { orientation: 'h', y: -0.28, font: { size: 10 } },
+      legend: { orientation: 'h', x: 0, xanchor: 'left', y: -0.3, yanchor: 'top', font: { size: 10 } },
     }), P.plotConfig);
-  }
-
-  function classIndex(d) {
-    var b = classes.boundsAngstrom;
-    for (var k = b.length - 2; k > 0; k--) if (d >= b[k]) return k;
-    return 0;
   }
 
   // ---- Metric map, histogram, convergence, summary (drawn after the landscape) -----------------

@@ -10,7 +10,7 @@ import type { Browser } from 'playwright-core';
 import { renderSiftReport } from '../src/report/sift-report.js';
 import type { Landscape } from '../src/landscape/schema.js';
 import { syntheticLandscape } from './helpers/synthetic-landscape.js';
-import { launchChromium, openFile, type PageWatch } from './helpers/browser.js';
+import { clickIsolatedKeptMarker, launchChromium, openFile, type PageWatch } from './helpers/browser.js';
 
 const SCREENS = join(process.cwd(), 'reports', 'test-screens');
 
@@ -63,50 +63,10 @@ describe('the sift report in a browser', () => {
   });
 
   it('a real mouse click on a marker opens that structure in the panel and selects its table row', async () => {
-    // The kept marker farthest (in pixels) from every other marker, so that the click cannot hit another one.
-    const target = await w.page.evaluate(() => {
-      const g = window as unknown as ReportGlobals;
-      const gd = document.getElementById('landscape-plot') as unknown as {
-        data: Array<{ x: number[]; y: number[] }>;
-        _fullLayout: { xaxis: { l2p(v: number): number; _offset: number }; yaxis: { l2p(v: number): number; _offset: number } };
-        getBoundingClientRect(): DOMRect;
-      };
-      const t = gd.data[g.polysiftReport.traces.kept]!;
-      const xa = gd._fullLayout.xaxis, ya = gd._fullLayout.yaxis;
-      const box = gd.getBoundingClientRect();
-      const px = t.x.map((v) => box.left + xa._offset + xa.l2p(v));
-      const py = t.y.map((v) => box.top + ya._offset + ya.l2p(v));
-      let best = 0, bestGap = -1;
-      for (let i = 0; i < px.length; i++) {
-        let gap = Infinity;
-        for (let j = 0; j < px.length; j++) if (j !== i) gap = Math.min(gap, Math.hypot(px[i]! - px[j]!, py[i]! - py[j]!));
-        if (gap > bestGap) { bestGap = gap; best = i; }
-      }
-      return { point: best, x: px[best]!, y: py[best]!, gap: bestGap };
-    });
-    expect(target.gap).toBeGreaterThan(4);
+    const target = await clickIsolatedKeptMarker(w.page);
+    expect(target.gapPx).toBeGreaterThan(4);
     const idx = land.kept[target.point]!;
     const id = land.structures[idx]!.id;
-    await w.page.locator('#landscape-plot').scrollIntoViewIfNeeded();
-    const again = await w.page.evaluate(() => document.getElementById('landscape-plot')!.getBoundingClientRect().top);
-    expect(again).toBeGreaterThanOrEqual(0);
-    // Positions were measured before scrolling: measure the marker again in the current viewport.
-    const pos = await w.page.evaluate((p) => {
-      const gd = document.getElementById('landscape-plot') as unknown as {
-        data: Array<{ x: number[]; y: number[] }>;
-        _fullLayout: { xaxis: { l2p(v: number): number; _offset: number }; yaxis: { l2p(v: number): number; _offset: number } };
-        getBoundingClientRect(): DOMRect;
-      };
-      const g = window as unknown as ReportGlobals;
-      const t = gd.data[g.polysiftReport.traces.kept]!;
-      const box = gd.getBoundingClientRect();
-      return { x: box.left + gd._fullLayout.xaxis._offset + gd._fullLayout.xaxis.l2p(t.x[p]!), y: box.top + gd._fullLayout.yaxis._offset + gd._fullLayout.yaxis.l2p(t.y[p]!) };
-    }, target.point);
-    // As a user does: hover until the label shows (the plot picks the clicked point from its hover data), then click.
-    await w.page.mouse.move(pos.x - 3, pos.y - 3);
-    await w.page.mouse.move(pos.x, pos.y);
-    await w.page.waitForSelector('#landscape-plot .hoverlayer .hovertext', { timeout: 15_000 });
-    await w.page.mouse.click(pos.x, pos.y);
     await w.page.waitForFunction((want) => document.getElementById('panel-id')?.textContent === want, id, { timeout: 15_000 });
     expect(await w.page.isVisible('#panel-body')).toBe(true);
     expect(await w.page.textContent('#panel-facts')).toContain(land.structures[idx]!.source);
@@ -117,11 +77,21 @@ describe('the sift report in a browser', () => {
     const listed = (await w.page.locator('#members-table tbody tr td:first-child').allTextContents()).sort();
     expect(listed).toEqual(dupIds);
     // Its AMD curve and its neighbours' are drawn.
-    const curves = await w.page.evaluate(() => (document.getElementById('amd-plot') as unknown as { data: Array<{ y: number[] }> }).data);
-    const neighbourCount = land.edges.filter((e) => e[0] === idx || e[1] === idx).length;
-    expect(curves.length).toBe(Math.min(5, neighbourCount) + 1);
-    // Its own curve (drawn last) is its AMD from landscape.json, decoded in the page to within 1e-4 Å.
-    const own = land.invariants.kept.find((r) => r.index === idx)!.amd;
+    const readCurves = () =>
+      w.page.evaluate(() => (document.getElementById('amd-plot') as unknown as { data: Array<{ y: number[] }> }).data);
+    const neighbours = land.edges
+      .filter((e) => e[0] === idx || e[1] === idx)
+      .sort((a, b) => a[2] - b[2])
+      .map((e) => (e[0] === idx ? e[1] : e[0]));
+    const amdOf = (s: number) => land.invariants.kept.find((r) => r.index === s)!.amd;
+    const own = amdOf(idx);
+    // Shown first as differences from this structure: the nearest neighbour's curve is its AMD minus ours.
+    const diff = await readCurves();
+    expect(diff.length).toBe(Math.min(5, neighbours.length) + 1);
+    amdOf(neighbours[0]!).forEach((v, j) => expect(Math.abs(diff[0]!.y[j]! - (v - own[j]!))).toBeLessThan(2e-4));
+    // Then as the curves themselves: its own (drawn last) is its AMD from landscape.json, decoded in the page.
+    await w.page.uncheck('#amd-difference');
+    const curves = await readCurves();
     const drawn = curves[curves.length - 1]!.y;
     expect(drawn.length).toBe(own.length);
     own.forEach((v, j) => expect(Math.abs(drawn[j]! - v)).toBeLessThan(1e-4));

@@ -1,3 +1,52 @@
-// Headless Chromium for the report tests; the code lives beside the report benchmark
-// (src/bench/_browser.ts), which launches the same browser the same way.
+// Headless Chromium for the report tests. Launching and opening a file live beside the report benchmark
+// (src/bench/_browser.ts), which needs them from built code too; the page actions below are test-only.
+import type { Page } from 'playwright-core';
+
 export { launchChromium, openFile, CHROMIUM_PATH, CHROMIUM_ARGS, type PageWatch } from '../../src/bench/_browser.js';
+
+interface PlotDiv {
+  data: Array<{ x: number[]; y: number[] }>;
+  _fullLayout: { xaxis: { l2p(v: number): number; _offset: number }; yaxis: { l2p(v: number): number; _offset: number } };
+  getBoundingClientRect(): DOMRect;
+}
+
+/** Viewport pixel positions of the points of one trace of a plot. */
+export async function tracePixels(page: Page, plotId: string, trace: number): Promise<Array<[number, number]>> {
+  return page.evaluate(
+    ([id, t]) => {
+      const gd = document.getElementById(id as string) as unknown as PlotDiv;
+      const tr = gd.data[t as number]!;
+      const xa = gd._fullLayout.xaxis, ya = gd._fullLayout.yaxis;
+      const box = gd.getBoundingClientRect();
+      return tr.x.map((v, i) => [box.left + xa._offset + xa.l2p(v), box.top + ya._offset + ya.l2p(tr.y[i]!)] as [number, number]);
+    },
+    [plotId, trace] as const,
+  );
+}
+
+/**
+ * Click, with the real mouse, the point of the sift report's kept-structure trace that lies farthest from
+ * every other point (so the click cannot hit another marker). Returns its point number.
+ */
+export async function clickIsolatedKeptMarker(page: Page): Promise<{ point: number; gapPx: number }> {
+  await page.locator('#landscape-plot').scrollIntoViewIfNeeded();
+  const trace = (await page.evaluate('window.polysiftReport.traces.kept')) as number;
+  const px = await tracePixels(page, 'landscape-plot', trace);
+  let point = 0;
+  let gapPx = -1;
+  for (let i = 0; i < px.length; i++) {
+    let gap = Infinity;
+    for (let j = 0; j < px.length; j++) if (j !== i) gap = Math.min(gap, Math.hypot(px[i]![0] - px[j]![0], px[i]![1] - px[j]![1]));
+    if (gap > gapPx) {
+      gapPx = gap;
+      point = i;
+    }
+  }
+  const [x, y] = px[point]!;
+  // As a user does: hover until the label shows (the plot takes the clicked point from its hover data), then click.
+  await page.mouse.move(x - 3, y - 3);
+  await page.mouse.move(x, y);
+  await page.waitForSelector('#landscape-plot .hoverlayer .hovertext', { timeout: 15_000 });
+  await page.mouse.click(x, y);
+  return { point, gapPx };
+}
