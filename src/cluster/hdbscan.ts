@@ -302,6 +302,8 @@ function primLazy(
     seen[j] = size;
     pending[j] = Infinity;
   };
+  const listIdx = new Int32Array(SHORT);
+  const listKey = new Float64Array(SHORT);
   let current = 0;
   for (let t = 0; t < n - 1; t++) {
     inTree[current] = 1;
@@ -332,21 +334,40 @@ function primLazy(
       }
     }
     // the next point is the one with the smallest distance to the tree (lowest index on ties), as
-    // the dense version picks it: resolve candidates until the best one needs no resolving
+    // the dense version picks it. Candidates are ordered by (value, index), value = min(best, pending)
+    // being a floor of the true distance; the smallest is settled until it needs no settling. A
+    // short list holds the SHORT smallest candidates; points outside it stay above its last entry
+    // (settling only raises the settled point's value), so the list is rebuilt only when it empties.
     let next = -1;
+    let count = 0;
+    let thresholdKey = Infinity;
+    let thresholdIdx = n;
     for (;;) {
-      next = -1;
-      let key = Infinity;
-      for (let j = 0; j < n; j++) {
-        if (inTree[j]) continue;
-        const kj = pending[j] < best[j] ? pending[j] : best[j];
-        if (next < 0 || kj < key) {
-          next = j;
-          key = kj;
+      if (count === 0) {
+        count = shortList(n, inTree, best, pending, listIdx, listKey);
+        if (count === SHORT) {
+          thresholdKey = listKey[SHORT - 1];
+          thresholdIdx = listIdx[SHORT - 1];
+        } else {
+          thresholdKey = Infinity;
+          thresholdIdx = n;
         }
       }
+      // smallest (value, index) in the list
+      let pos = 0;
+      for (let q = 1; q < count; q++) {
+        if (listKey[q] < listKey[pos] || (listKey[q] === listKey[pos] && listIdx[q] < listIdx[pos])) pos = q;
+      }
+      next = listIdx[pos];
       if (!(pending[next] < best[next])) break;
       resolve(next);
+      listKey[pos] = best[next];
+      // beyond the threshold it can no longer be compared with the points outside the list
+      if (listKey[pos] > thresholdKey || (listKey[pos] === thresholdKey && next > thresholdIdx)) {
+        count--;
+        listIdx[pos] = listIdx[count];
+        listKey[pos] = listKey[count];
+      }
     }
     tree.from[t] = current;
     tree.to[t] = next;
@@ -354,6 +375,32 @@ function primLazy(
     current = next;
   }
   return tree;
+}
+
+/** Length of the candidate short list of the lazy Prim step. */
+const SHORT = 64;
+
+/**
+ * The (up to) SHORT points outside the tree with the smallest (min(best, pending), index), written to
+ * idx/key in ascending order; returns how many.
+ */
+function shortList(n: number, inTree: Uint8Array, best: Float64Array, pending: Float64Array, idx: Int32Array, key: Float64Array): number {
+  let count = 0;
+  for (let j = 0; j < n; j++) {
+    if (inTree[j]) continue;
+    const kj = pending[j] < best[j] ? pending[j] : best[j];
+    // points are visited in index order, so an equal value never goes before an entry already there
+    if (count === SHORT && !(kj < key[SHORT - 1])) continue;
+    let pos = count < SHORT ? count++ : SHORT - 1;
+    while (pos > 0 && key[pos - 1] > kj) {
+      key[pos] = key[pos - 1];
+      idx[pos] = idx[pos - 1];
+      pos--;
+    }
+    key[pos] = kj;
+    idx[pos] = j;
+  }
+  return count;
 }
 
 /** max(core_i, core_j, d): the mutual reachability itself (the bound only decides whether to look). */
