@@ -84,12 +84,12 @@ export function recordFromBlock(block: CifBlock, text: string, file: string, opt
     const v = single(block, name);
     if (v === null) return `no ${name}: the cell is incomplete (add ${name})`;
     if (v.kind === ValueKind.Unknown || v.kind === ValueKind.Inapplicable) {
-      return `line ${v.line}: ${name} is '${v.value}' (unknown); the cell must be given`;
+      return `line ${lineAt(v.col, 0)}: ${name} is '${v.value}' (unknown); the cell must be given`;
     }
-    const x = cifNumber(v.value);
-    if (!Number.isFinite(x)) return `line ${v.line}: ${name} is '${clip(v.value)}', not a number`;
+    const x = numberAt(v.col, 0);
+    if (!Number.isFinite(x)) return `line ${lineAt(v.col, 0)}: ${name} is '${clip(v.value)}', not a number`;
     if (key.length === 1 ? x <= 0 : x <= 0 || x >= 180) {
-      return `line ${v.line}: ${name} is ${v.value}, outside the possible range (${key.length === 1 ? 'lengths must be > 0 Å' : 'angles must lie between 0 and 180 degrees'})`;
+      return `line ${lineAt(v.col, 0)}: ${name} is ${v.value}, outside the possible range (${key.length === 1 ? 'lengths must be > 0 Å' : 'angles must lie between 0 and 180 degrees'})`;
     }
     cell[key] = x;
   }
@@ -308,9 +308,21 @@ function compareWithSymbol(ops: SymOp[], ref: SymbolRef, notes: string[]): void 
 /** (type symbol, label) -> element reading; prediction files repeat the same labels in every block. */
 const siteElementCache = new Map<string, Map<string, ElementReading>>();
 let siteCacheSize = 0;
+const typeElementCache = new Map<string, ElementReading>();
 const SITE_CACHE_MAX = 8192;
 
 function cachedElement(typeText: string | null, label: string): ElementReading {
+  if (typeText !== null && typeText !== '' && typeText !== '?' && typeText !== '.' && typeText.trim() === typeText) {
+    // With a type symbol the label plays no part in the reading (only in error messages, made fresh).
+    let el = typeElementCache.get(typeText);
+    if (el === undefined) {
+      el = elementFromSite(typeText, label);
+      if ('error' in el) return el;
+      if (typeElementCache.size >= SITE_CACHE_MAX) typeElementCache.clear();
+      typeElementCache.set(typeText, el);
+    }
+    return el;
+  }
   const key = typeText ?? '\u0000';
   let byLabel = siteElementCache.get(key);
   if (byLabel === undefined) {
@@ -498,10 +510,11 @@ function readEnergy(block: CifBlock, item: string | null, notes: string[]): numb
 
 // ---- helpers ----
 
-function single(block: CifBlock, name: string): { value: string; kind: ValueKind; line: number } | null {
+/** The first value of `name` (its line is counted only when a message needs it, from `col`). */
+function single(block: CifBlock, name: string): { value: string; kind: ValueKind; col: CifColumn } | null {
   const col = cifColumn(block, name);
   if (col === null) return null;
-  return { value: valueAt(col, 0), kind: kindAt(col, 0), line: lineAt(col, 0) };
+  return { value: valueAt(col, 0), kind: kindAt(col, 0), col };
 }
 
 /** First of several spellings present with a real value (not ? or .), trimmed. */
