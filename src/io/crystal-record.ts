@@ -123,9 +123,9 @@ export function recordFromBlock(block: CifBlock, text: string, file: string, opt
   let ops: SymOp[];
   let opsOrigin: CrystalRecord['opsOrigin'];
   if (listed !== null) {
-    ops = listed;
+    ops = listed.ops;
     opsOrigin = 'listed';
-    if (symbolRef !== null) compareWithSymbol(ops, symbolRef, notes);
+    if (symbolRef !== null) compareWithSymbol(ops, listed.textKey, symbolRef, notes);
   } else if (symbolRef !== null) {
     ops = cachedSymbolOps(symbolRef.symbol, symbolRef.kind)!.map((op) => ({ rot: op.rot.slice(), trans: op.trans.slice() }));
     opsOrigin = 'symbol';
@@ -187,7 +187,7 @@ export function cellVolumeA3(cell: CellParams): number {
  * A one-column loop whose operations were written unquoted with spaces (`-x, y, -z`) arrives split into
  * several values; values on the same line are joined until they form three comma-separated parts.
  */
-function readListedOps(block: CifBlock, notes: string[]): SymOp[] | string | null {
+function readListedOps(block: CifBlock, notes: string[]): { ops: SymOp[]; textKey: string } | string | null {
   let col: CifColumn | null = null;
   let name = '';
   for (const n of OP_NAMES) {
@@ -199,6 +199,7 @@ function readListedOps(block: CifBlock, notes: string[]): SymOp[] | string | nul
   }
   if (col === null) return null;
   const ops: SymOp[] = [];
+  let textKey = '';
   const bareLoop = col.stride === 1;
   let joined = false;
   for (let r = 0; r < col.length; r++) {
@@ -224,10 +225,11 @@ function readListedOps(block: CifBlock, notes: string[]): SymOp[] | string | nul
       return `line ${lineAt(col, first)}: symmetry operation ${ops.length + 1} of ${name} ('${clip(text)}') cannot be read: ${(e as Error).message}`;
     }
     ops.push(op);
+    textKey += `${text}\n`;
   }
   if (joined) notes.push(`operations written with spaces and without quotes were joined (${name})`);
   if (ops.length === 0) return null;
-  return ops;
+  return { ops, textKey };
 }
 
 /** True when an operation text still lacks parts (fewer than two commas, or ends or starts with a comma). */
@@ -283,9 +285,29 @@ function cachedSymbolOps(symbol: string, kind: SymbolKind): SymOp[] | null {
 const symbolKeyCache = new Map<string, Set<string>>();
 
 /** Note when listed operations are not the setting the declared symbol names (the listed ones are used). */
-function compareWithSymbol(ops: SymOp[], ref: SymbolRef, notes: string[]): void {
+function compareWithSymbol(ops: SymOp[], textKey: string, ref: SymbolRef, notes: string[]): void {
   const { symbol, kind } = ref;
   const key = `${kind}\u0000${symbol}`;
+  // The same symbol with the same operation texts was compared before (prediction files repeat both).
+  const pairKey = `${key}\u0000${textKey}`;
+  let same = comparedCache.get(pairKey);
+  if (same === undefined) {
+    same = sameOperations(ops, key, symbol, kind);
+    if (comparedCache.size >= OP_CACHE_MAX) comparedCache.clear();
+    comparedCache.set(pairKey, same);
+  }
+  if (!same) {
+    notes.push(
+      `the ${ops.length} listed operations are not the default setting of the declared ${kind} symbol '${symbol}' ` +
+        `(${cachedSymbolOps(symbol, kind)!.length} operations there); the listed operations are used`,
+    );
+  }
+}
+
+const comparedCache = new Map<string, boolean>();
+
+/** True when the listed operations are exactly the symbol's (as sets, translations modulo 1). */
+function sameOperations(ops: SymOp[], key: string, symbol: string, kind: SymbolKind): boolean {
   let symbolKeys = symbolKeyCache.get(key);
   if (symbolKeys === undefined) {
     symbolKeys = new Set(cachedSymbolOps(symbol, kind)!.map(opKey));
@@ -295,12 +317,7 @@ function compareWithSymbol(ops: SymOp[], ref: SymbolRef, notes: string[]): void 
   const listedKeys = new Set(ops.map(opKey));
   let same = listedKeys.size === symbolKeys.size;
   if (same) for (const k of listedKeys) if (!symbolKeys.has(k)) same = false;
-  if (!same) {
-    notes.push(
-      `the ${ops.length} listed operations are not the default setting of the declared ${kind} symbol '${symbol}' ` +
-        `(${symbolKeys.size} operations there); the listed operations are used`,
-    );
-  }
+  return same;
 }
 
 // ---- sites ----
