@@ -232,7 +232,7 @@ function readListedOps(block: CifBlock, notes: string[]): { ops: SymOp[]; textKe
   return { ops, textKey };
 }
 
-/** True when an operation text still lacks parts (fewer than two commas, or ends or starts with a comma). */
+/** True when an operation text still lacks parts (fewer than two commas, or a trailing comma). */
 function needsMore(text: string): boolean {
   let commas = 0;
   for (let i = 0; i < text.length; i++) if (text.charCodeAt(i) === 44) commas++;
