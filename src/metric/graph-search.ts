@@ -7,9 +7,6 @@
 import { emdPacked, rowMinBound } from './emd.js';
 import type { PackedSet, SortedIndex } from './packed.js';
 
-/** Refinement levels of a candidate's lower bound (see `refine` in knnChunk); at EXACT its EMD is computed. */
-const EXACT = 3;
-
 /**
  * Widen a threshold before comparing a lower bound with it: the AMDs and the EMD are computed in floating
  * point, so a bound may exceed the EMD it bounds by rounding (far below 1e-9 Å for distances of a few Å).
@@ -30,8 +27,8 @@ export interface KnnTask {
   end: number;
   /** Neighbours per query (already limited to the number of available targets). */
   k: number;
-  /** Optional groups of near-identical targets (see `groupTargets` in graph.ts), for triangle-inequality bounds. */
-  groups: TargetGroups | null;
+  /** Groups of near-identical targets (see `groupTargets` in graph.ts; groups of one when there are none). */
+  groups: TargetGroups;
   /** Optional EMDs already computed within one set: item i's pairs are start[i]..start[i+1]-1. */
   known: KnownPairs | null;
 }
@@ -44,12 +41,25 @@ export interface KnownPairs {
 
 /**
  * Targets grouped around leaders: target t lies within leaderDistance[t] (an exact EMD) of target leaderOf[t].
- * Since EMD is a metric, EMD(q, t) >= EMD(q', leaderOf[t]) - EMD(q, q') - leaderDistance[t] for any q', so one EMD to
- * a leader bounds a whole group from below.
+ * EMD is a metric, so EMD(q, t) >= EMD(q', leaderOf[t]) - EMD(q, q') - leaderDistance[t] for any q': one EMD
+ * between two leaders bounds every pair of their groups. The AMD distance is a metric below the EMD, so
+ * AMD(q, t) >= AMD(q, leader) - radius of the group bounds a whole group without looking at its members.
+ * Structures without close copies are groups of one.
  */
 export interface TargetGroups {
   leaderOf: Int32Array;
   leaderDistance: Float64Array;
+  /** Group g: leader item groupLeader[g], members members[memberStart[g] .. memberStart[g+1]) (leader included). */
+  groupLeader: Int32Array;
+  memberStart: Int32Array;
+  members: Int32Array;
+  /** Largest leaderDistance in the group. */
+  groupRadius: Float64Array;
+  /** Groups sorted by their leader's key (the index's key column), and those keys. */
+  groupOrder: Int32Array;
+  groupKeys: Float64Array;
+  /** Largest group radius. */
+  maxRadius: number;
 }
 
 export interface KnnChunk {
@@ -61,13 +71,25 @@ export interface KnnChunk {
   boundEvaluations: number;
 }
 
+// Levels of a queue entry. Group entries (id = targets + g) are refined through their leader (row-minimum bound,
+// then EMD) and then expanded into member entries; member entries (id = t) are refined by the row-minimum bound
+// and then evaluated.
+const GROUP_AMD = 0;
+const GROUP_EMD = 1;
+const GROUP_EXPAND = 2;
+const MEMBER_ROWMIN = 3;
+const MEMBER_EXACT = 4;
+
 /** Exact k nearest targets under EMD for each query of the chunk. */
 export function knnChunk(task: KnnTask): KnnChunk {
-  const { queries, targets, index, sameSet, queryOrder, start, end, k, groups } = task;
+  const { queries, targets, index, sameSet, queryOrder, start, end, k } = task;
+  const groups = task.groups;
   const known = sameSet ? task.known : null;
   const dim = targets.k;
   const nt = targets.count;
   const { order, keys, columns } = index;
+  const { leaderOf, leaderDistance, groupLeader, memberStart, members, groupRadius, groupOrder, groupKeys, maxRadius } = groups;
+  const ng = groupLeader.length;
   const keyColumn = columns[0];
   const qAmd = queries.amd;
   const tAmd = targets.amd;
@@ -98,12 +120,12 @@ export function knnChunk(task: KnnTask): KnnChunk {
     const d = emdPacked(
       queries.rows,
       queries.weights,
-      queries.rowStart[q],
-      queries.rowStart[q + 1] - queries.rowStart[q],
+      queries.rowStart[a],
+      queries.rowStart[a + 1] - queries.rowStart[a],
       targets.rows,
       targets.weights,
-      targets.rowStart[t],
-      targets.rowStart[t + 1] - targets.rowStart[t],
+      targets.rowStart[b],
+      targets.rowStart[b + 1] - targets.rowStart[b],
       dim,
     );
     cache.set(a, b, d);
@@ -137,20 +159,6 @@ export function knnChunk(task: KnnTask): KnnChunk {
     outQueries[r] = q;
     const qo = q * dim;
     const qKey = qAmd[qo + keyColumn];
-    // Where the query sits among the sorted targets.
-    let hi0: number;
-    if (sameSet) hi0 = index.position[q];
-    else {
-      let lo = 0;
-      let hi = nt;
-      while (lo < hi) {
-        const mid = (lo + hi) >> 1;
-        if (keys[mid] < qKey) lo = mid + 1;
-        else hi = mid;
-      }
-      hi0 = lo;
-    }
-    const lo0 = hi0 - 1;
     // Distances already known from the grouping (pairs within its radius) need no second EMD.
     if (known !== null) {
       for (let e = known.start[q]; e < known.start[q + 1]; e++) {
@@ -158,10 +166,14 @@ export function knnChunk(task: KnnTask): KnnChunk {
         cache.set(t < q ? t : q, t < q ? q : t, known.distance[e]);
       }
     }
+    // Within one set the query's own leader stands in for it (at a known distance); across sets the query is its own.
+    const qLeader = sameSet ? leaderOf[q] : q;
+    const qLeaderDistance = sameSet ? leaderDistance[q] : 0;
 
     // Stage 1: the k targets with the smallest AMD bounds, found by sweeping outwards along the key column.
+    const hi0 = sameSet ? index.position[q] : lowerBound(keys, nt, qKey);
     let filled = 0;
-    let lo = lo0;
+    let lo = hi0 - 1;
     let hi = hi0;
     for (;;) {
       const dl = lo >= 0 ? qKey - keys[lo] : Infinity;
@@ -189,69 +201,61 @@ export function knnChunk(task: KnnTask): KnnChunk {
       found = insert(bestD, bestI, found, k, distance(q, t), t);
     }
 
-    // Within one set the query's own leader stands in for it (at a known distance); across sets the query is its own.
-    const qLeader = groups !== null && sameSet ? groups.leaderOf[q] : q;
-    const qLeaderDistance = groups !== null && sameSet ? groups.leaderDistance[q] : 0;
-    // The leaders can tighten t's bound unless they are q and t themselves (then it is the EMD) or coincide.
-    const refinable = (t: number): boolean => {
-      if (groups === null) return false;
-      const tLeader = groups.leaderOf[t];
-      if (sameSet && tLeader === qLeader) return false;
-      return tLeader !== t || qLeader !== q;
-    };
-    // Lower bounds of EMD(q, t), from cheap to dear (each level is tried once per candidate):
-    //   0: through the leaders, with the row-minimum bound between the leaders;
-    //   1: through the leaders, with the EMD between the leaders (shared by both groups);
-    //   2: the row-minimum bound between q and t themselves.
-    const refine = (level: number, q: number, t: number, limitNow: number): number => {
-      if (level === 2) return rowMin(q, t, limitNow);
-      if (!refinable(t)) return -Infinity;
-      const tLeader = groups!.leaderOf[t];
-      const through = level === 0 ? rowMin(qLeader, tLeader, Infinity) : distance(qLeader, tLeader);
-      return through - qLeaderDistance - groups!.leaderDistance[t];
-    };
-
-    // Stage 3: every other target whose AMD bound does not exceed T is a candidate. Candidates are visited best
-    // first by their lower bound; a candidate's first visit may only tighten its bound through the leaders
-    // (triangle inequality) and send it back, its second visit computes the EMD. The search ends when the smallest
+    // Stage 3: best-first search over groups, then members. A group can hold a neighbour only if its leader's key
+    // lies within T + (largest group radius) of the query's key. Entries leave the queue by increasing lower bound;
+    // each visit either raises an entry's bound (it goes back) or moves it on; the search ends when the smallest
     // bound left exceeds T, which only shrinks.
     const limit = widen(bestD[k - 1]);
+    const window = limit + maxRadius;
     heap.clear();
-    lo = lo0;
-    hi = hi0;
-    while (lo >= 0 && qKey - keys[lo] <= limit) {
-      const t = order[lo--];
-      if (stamp[t] === q || (sameSet && t === q)) continue;
-      boundEvaluations++;
-      const b = bound(qAmd, qo, tAmd, t * dim, columns, dim, limit);
-      if (b <= limit) heap.add(b, t, 0);
-    }
-    while (hi < nt && keys[hi] - qKey <= limit) {
-      const t = order[hi++];
-      if (stamp[t] === q || (sameSet && t === q)) continue;
-      boundEvaluations++;
-      const b = bound(qAmd, qo, tAmd, t * dim, columns, dim, limit);
-      if (b <= limit) heap.add(b, t, 0);
-    }
+    const g0 = lowerBound(groupKeys, ng, qKey);
+    for (let p = g0 - 1; p >= 0 && qKey - groupKeys[p] <= window; p--) addGroup(groupOrder[p], limit);
+    for (let p = g0; p < ng && groupKeys[p] - qKey <= window; p++) addGroup(groupOrder[p], limit);
     heap.heapify();
     while (heap.size > 0) {
       const key = heap.topKey();
-      const t = heap.topId();
+      const id = heap.topId();
       let level = heap.topFlag();
       heap.pop();
       const limitNow = widen(bestD[k - 1]);
       if (key > limitNow) break;
-      // Tighten the bound step by step; as soon as it rises, send the candidate back to the queue.
-      let raised = key;
-      while (level < EXACT && raised === key) {
-        const lb = refine(level, q, t, limitNow);
-        level++;
-        if (lb > raised) raised = lb;
-      }
-      if (raised > key) {
-        if (raised <= limitNow) heap.push(raised, t, level);
+      if (id >= nt) {
+        const g = id - nt;
+        const gLeader = groupLeader[g];
+        // Tighten the group's bound through the leaders (not for the query's own group).
+        let raised = key;
+        const own = sameSet ? gLeader === qLeader : false;
+        while (!own && level < GROUP_EXPAND && raised === key) {
+          const through = level === GROUP_AMD ? rowMin(qLeader, gLeader, Infinity) : distance(qLeader, gLeader);
+          level = level === GROUP_AMD ? GROUP_EMD : GROUP_EXPAND;
+          const lb = through - qLeaderDistance - groupRadius[g];
+          if (lb > raised) raised = lb;
+        }
+        if (raised > key) {
+          if (raised <= limitNow) heap.push(raised, id, level);
+          continue;
+        }
+        // Expand: each member with its own AMD bound and, through the leaders, the triangle inequality.
+        const viaLeaders = own ? -Infinity : distance(qLeader, gLeader) - qLeaderDistance;
+        for (let e = memberStart[g]; e < memberStart[g + 1]; e++) {
+          const t = members[e];
+          if (stamp[t] === q || (sameSet && t === q)) continue;
+          boundEvaluations++;
+          let b = bound(qAmd, qo, tAmd, t * dim, columns, dim, limitNow);
+          const tri = own ? Math.abs(qLeaderDistance - leaderDistance[t]) : viaLeaders - leaderDistance[t];
+          if (tri > b) b = tri;
+          if (b <= limitNow) heap.push(b, t, MEMBER_ROWMIN);
+        }
         continue;
       }
+      if (level === MEMBER_ROWMIN) {
+        const lb = rowMin(q, id, limitNow);
+        if (lb > key) {
+          if (lb <= limitNow) heap.push(lb, id, MEMBER_EXACT);
+          continue;
+        }
+      }
+      const t = id;
       const d = distance(q, t);
       if (d < bestD[k - 1] || (d === bestD[k - 1] && t < bestI[k - 1])) insert(bestD, bestI, k, k, d, t);
     }
@@ -259,8 +263,27 @@ export function knnChunk(task: KnnTask): KnnChunk {
     outDistances.set(bestD, r * k);
     cache.maybeClear();
     rowMinCache.maybeClear();
+
+    function addGroup(g: number, lim: number): void {
+      // AMD(q, t) >= AMD(q, leader) - AMD(leader, t) >= AMD(q, leader) - radius, for every member t.
+      boundEvaluations++;
+      const b = bound(qAmd, qo, tAmd, groupLeader[g] * dim, columns, dim, lim + groupRadius[g]) - groupRadius[g];
+      if (b <= lim) heap.add(b > 0 ? b : 0, nt + g, GROUP_AMD);
+    }
   }
   return { queries: outQueries, indices: outIndices, distances: outDistances, emdEvaluations, boundEvaluations };
+}
+
+/** First position p in keys[0..n) with keys[p] >= value. */
+function lowerBound(keys: Float64Array, n: number, value: number): number {
+  let lo = 0;
+  let hi = n;
+  while (lo < hi) {
+    const mid = (lo + hi) >> 1;
+    if (keys[mid] < value) lo = mid + 1;
+    else hi = mid;
+  }
+  return lo;
 }
 
 export interface WithinTask {

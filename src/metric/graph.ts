@@ -195,7 +195,7 @@ async function runKnn(
   threads: number,
   opts: GraphOptions,
   pairsConsidered: number,
-  groups: TargetGroups | null,
+  groups: TargetGroups,
   known: KnownPairs | null,
 ): Promise<NeighbourGraph> {
   const nq = queries.count;
@@ -241,51 +241,97 @@ async function groupTargets(
   index: SortedIndex,
   threads: number,
   shared: boolean,
-): Promise<{ groups: TargetGroups | null; known: KnownPairs | null; emdEvaluations: number; boundEvaluations: number }> {
+): Promise<{ groups: TargetGroups; known: KnownPairs | null; emdEvaluations: number; boundEvaluations: number }> {
   const n = set.count;
-  const radius = groupingRadius(set);
-  if (n < 64 || !(radius > 0)) return { groups: null, known: null, emdEvaluations: 0, boundEvaluations: 0 };
-  const close = await withinPacked(set, index, radius, threads, {});
-  // Neighbour lists within the radius (both directions).
-  const degree = shared ? new Int32Array(new SharedArrayBuffer(4 * (n + 1))) : new Int32Array(n + 1);
-  for (let p = 0; p < close.i.length; p++) {
-    degree[close.i[p] + 1]++;
-    degree[close.j[p] + 1]++;
-  }
-  for (let i = 0; i < n; i++) degree[i + 1] += degree[i];
-  const fill = degree.slice(0, n);
-  const pairs = 2 * close.i.length;
-  const other = shared ? new Int32Array(new SharedArrayBuffer(4 * Math.max(1, pairs)), 0, pairs) : new Int32Array(pairs);
-  const dist = shared ? new Float64Array(new SharedArrayBuffer(8 * Math.max(1, pairs)), 0, pairs) : new Float64Array(pairs);
-  for (let p = 0; p < close.i.length; p++) {
-    const a = close.i[p];
-    const b = close.j[p];
-    other[fill[a]] = b;
-    dist[fill[a]++] = close.distances[p];
-    other[fill[b]] = a;
-    dist[fill[b]++] = close.distances[p];
-  }
-  const leaderOf = shared ? new Int32Array(new SharedArrayBuffer(4 * n)) : new Int32Array(n);
-  const leaderDistance = shared ? new Float64Array(new SharedArrayBuffer(8 * n)) : new Float64Array(n);
-  leaderOf.fill(-1);
-  for (let i = 0; i < n; i++) {
-    if (leaderOf[i] !== -1) continue;
-    leaderOf[i] = i;
-    leaderDistance[i] = 0;
-    for (let e = degree[i]; e < degree[i + 1]; e++) {
-      const j = other[e];
-      if (leaderOf[j] === -1) {
-        leaderOf[j] = i;
-        leaderDistance[j] = dist[e];
+  const radius = n < 64 ? 0 : groupingRadius(set);
+  const leaderOf = sharedOrPlainInt(n, shared);
+  const leaderDistance = sharedOrPlainFloat(n, shared);
+  let known: KnownPairs | null = null;
+  let emdEvaluations = 0;
+  let boundEvaluations = 0;
+  for (let i = 0; i < n; i++) leaderOf[i] = i;
+  if (radius > 0) {
+    const close = await withinPacked(set, index, radius, threads, {});
+    emdEvaluations = close.emdEvaluations;
+    boundEvaluations = close.boundEvaluations;
+    // Neighbour lists within the radius (both directions).
+    const degree = sharedOrPlainInt(n + 1, shared);
+    for (let p = 0; p < close.i.length; p++) {
+      degree[close.i[p] + 1]++;
+      degree[close.j[p] + 1]++;
+    }
+    for (let i = 0; i < n; i++) degree[i + 1] += degree[i];
+    const fill = degree.slice(0, n);
+    const pairs = 2 * close.i.length;
+    const other = sharedOrPlainInt(pairs, shared);
+    const dist = sharedOrPlainFloat(pairs, shared);
+    for (let p = 0; p < close.i.length; p++) {
+      const a = close.i[p];
+      const b = close.j[p];
+      other[fill[a]] = b;
+      dist[fill[a]++] = close.distances[p];
+      other[fill[b]] = a;
+      dist[fill[b]++] = close.distances[p];
+    }
+    known = { start: degree, other, distance: dist };
+    // Leaders in index order; each takes the not yet grouped structures within the radius.
+    leaderOf.fill(-1);
+    for (let i = 0; i < n; i++) {
+      if (leaderOf[i] !== -1) continue;
+      leaderOf[i] = i;
+      leaderDistance[i] = 0;
+      for (let e = degree[i]; e < degree[i + 1]; e++) {
+        const j = other[e];
+        if (leaderOf[j] === -1) {
+          leaderOf[j] = i;
+          leaderDistance[j] = dist[e];
+        }
       }
     }
   }
+  // Group tables: members by group, radii, and groups sorted by their leader's key.
+  const groupOfLeader = new Int32Array(n).fill(-1);
+  let ng = 0;
+  for (let i = 0; i < n; i++) if (leaderOf[i] === i) groupOfLeader[i] = ng++;
+  const groupLeader = sharedOrPlainInt(ng, shared);
+  const memberStart = sharedOrPlainInt(ng + 1, shared);
+  const members = sharedOrPlainInt(n, shared);
+  const groupRadius = sharedOrPlainFloat(ng, shared);
+  for (let i = 0; i < n; i++) {
+    const g = groupOfLeader[leaderOf[i]];
+    if (leaderOf[i] === i) groupLeader[g] = i;
+    memberStart[g + 1]++;
+    if (leaderDistance[i] > groupRadius[g]) groupRadius[g] = leaderDistance[i];
+  }
+  for (let g = 0; g < ng; g++) memberStart[g + 1] += memberStart[g];
+  const slot = memberStart.slice(0, ng);
+  for (let i = 0; i < n; i++) members[slot[groupOfLeader[leaderOf[i]]]++] = i;
+  const groupOrder = sharedOrPlainInt(ng, shared);
+  const groupKeys = sharedOrPlainFloat(ng, shared);
+  let g = 0;
+  for (let p = 0; p < n; p++) {
+    const i = index.order[p];
+    if (leaderOf[i] !== i) continue;
+    groupOrder[g] = groupOfLeader[i];
+    groupKeys[g] = index.keys[p];
+    g++;
+  }
+  let maxRadius = 0;
+  for (let h = 0; h < ng; h++) if (groupRadius[h] > maxRadius) maxRadius = groupRadius[h];
   return {
-    groups: { leaderOf, leaderDistance },
-    known: { start: degree, other, distance: dist },
-    emdEvaluations: close.emdEvaluations,
-    boundEvaluations: close.boundEvaluations,
+    groups: { leaderOf, leaderDistance, groupLeader, memberStart, members, groupRadius, groupOrder, groupKeys, maxRadius },
+    known,
+    emdEvaluations,
+    boundEvaluations,
   };
+}
+
+function sharedOrPlainInt(n: number, shared: boolean): Int32Array {
+  return shared ? new Int32Array(new SharedArrayBuffer(4 * Math.max(1, n)), 0, n) : new Int32Array(n);
+}
+
+function sharedOrPlainFloat(n: number, shared: boolean): Float64Array {
+  return shared ? new Float64Array(new SharedArrayBuffer(8 * Math.max(1, n)), 0, n) : new Float64Array(n);
 }
 
 /** 5% of the median AMD distance over a fixed sample of pairs (0 when all AMDs coincide). */
