@@ -132,7 +132,7 @@ function summary(run: SiftRun, out: string, files: string[]) {
     families: l.families.length,
     parameters: l.parameters,
     lowestEnergy: l.lowestEnergy,
-    cache: { hits: run.cache.hits, misses: run.cache.misses },
+    cache: { hits: run.cache.hits, misses: run.cache.misses, reused: run.cache.reused },
     timingsSeconds: l.run.timingsSeconds,
     messages: run.messages,
   };

@@ -26,10 +26,12 @@ export interface DemoResult {
   files: string[];
 }
 
-export async function runDemo(opts: { out?: string; threads?: number; progress?: Progress } = {}): Promise<DemoResult> {
+export async function runDemo(
+  opts: { out?: string; threads?: number; progress?: Progress; generator?: GeneratorOptions } = {},
+): Promise<DemoResult> {
   const out = opts.out ?? DEMO_OUT;
   opts.progress?.stage('inventing a search');
-  const gen = generateLandscape(DEMO_GENERATOR);
+  const gen = generateLandscape(opts.generator ?? DEMO_GENERATOR);
   opts.progress?.done();
   const truth = [csvLine(['id', 'planted_packing', 'written_as']), ...gen.ids.map((id, i) => csvLine([id, gen.truth[i], gen.kinds[i]]))].join('\n');
   const inputs = writeFilesAtomically(out, [

@@ -29,6 +29,7 @@ import { embed2dLandmarks } from '../cluster/embedding-landmarks.js';
 import { convergenceCurve, defaultWindows } from './convergence.js';
 import { collapseDuplicates, visitOrder } from './collapse.js';
 import { blockKey, loadCache, saveCache, type CacheEntry } from './cache.js';
+import { emptyComparisons, listKey, loadComparisons, saveComparisons, type Comparisons } from './compare-cache.js';
 import type { Prepared, PrepareInput } from './prepare.js';
 import { prepareChunk } from './prepare.js';
 import { VERSION } from '../version.js';
@@ -60,6 +61,11 @@ export const DENSE_LIMIT = 300;
 /** Above DENSE_LIMIT the metric map is landmark MDS with this many landmarks (LANDMARKS x kept EMDs), up to EMBED_LIMIT kept structures. */
 export const LANDMARKS = 60;
 export const EMBED_LIMIT = 20000;
+/**
+ * Pairs are searched within this multiple of the tolerance and cached, so a re-run with a tolerance up to that
+ * large reuses them (distinct structures mostly lie far beyond, so the wider search costs few extra EMDs).
+ */
+export const PAIR_RADIUS_FACTOR = 2;
 /** Records sent to a worker at a time when building periodic sets. */
 const PREPARE_CHUNK = 250;
 
@@ -94,7 +100,8 @@ export interface SiftRun {
   energyAssignment: EnergyAssignment | null;
   /** Lines for stderr (energy problems, skipped steps). */
   messages: string[];
-  cache: { hits: number; misses: number; file: string | null; problem: string | null };
+  /** Invariants cache hits and misses; `reused` names the comparison results taken from the comparisons cache. */
+  cache: { hits: number; misses: number; file: string | null; problem: string | null; reused: string[] };
 }
 
 interface Work {
@@ -282,7 +289,24 @@ export async function sift(opts: SiftOptions): Promise<SiftRun> {
   // ---- duplicate collapse ----
   progress.stage('finding duplicates', items.length);
   const graphItems = items.map((w) => ({ pdd: w.pdd!, amd: w.amd! }));
-  const close = await pairsWithin(graphItems, params.toleranceAngstrom, { threads, onProgress: (d: number) => progress.tick(d) });
+  const itemsKey = listKey(items.map((w) => w.key));
+  const loadedCmp = opts.cacheDir ? loadComparisons(opts.cacheDir, cacheParams) : { comparisons: emptyComparisons(), problem: null };
+  if (loadedCmp.problem) messages.push(loadedCmp.problem);
+  const cmp: Comparisons = loadedCmp.comparisons;
+  let cmpChanged = false;
+  const reused: string[] = [];
+  let close: { i: Int32Array; j: Int32Array; distances: Float64Array; radius: number };
+  const cp = cmp.pairs;
+  if (cp && cp.itemsKey === itemsKey && cp.radiusAngstrom >= params.toleranceAngstrom) {
+    close = { i: Int32Array.from(cp.i), j: Int32Array.from(cp.j), distances: Float64Array.from(cp.d), radius: cp.radiusAngstrom };
+    reused.push('pairs');
+  } else {
+    const radius = params.toleranceAngstrom * PAIR_RADIUS_FACTOR;
+    const found = await pairsWithin(graphItems, radius, { threads, onProgress: (d: number) => progress.tick(d) });
+    close = { i: found.i, j: found.j, distances: found.distances, radius };
+    cmp.pairs = { itemsKey, radiusAngstrom: radius, i: Array.from(found.i), j: Array.from(found.j), d: Array.from(found.distances) };
+    cmpChanged = true;
+  }
   const order = visitOrder(
     items.map((_, i) => i),
     items.map((w) => w.row.energy),
@@ -340,6 +364,7 @@ export async function sift(opts: SiftOptions): Promise<SiftRun> {
     if (keptPos[p] >= 0) continue;
     const row = items[p].row;
     const y = nearestKeptOfDup[p];
+    if (y < 0) throw new Error(`internal: duplicate ${row.id} has no kept structure among the pairs within the tolerance`);
     row.nearestIndex = items[y].row.index;
     row.nearest = items[y].row.id;
     row.nearestDistance = nearestKeptD[p];
@@ -365,10 +390,27 @@ export async function sift(opts: SiftOptions): Promise<SiftRun> {
   for (let p = 0; p < items.length; p++) items[p].row.nnDistance = nearestPair[p] === Infinity ? null : nearestPair[p];
   // Kept structures: their nearest kept neighbours (edges of the report, core distances of HDBSCAN).
   const kNbr = Math.min(Math.max(params.neighbours, params.minSamples), nKept - 1);
+  const keptKey = listKey(keptLocal.map((p) => items[p].key));
   const edges: Array<[number, number, number]> = [];
   let keptNbr: { k: number; indices: Int32Array; distances: Float64Array } | null = null;
   if (kNbr >= 1) {
-    keptNbr = await nearestNeighbours(keptItems, kNbr, { threads });
+    const kg = cmp.keptGraph;
+    if (kg && kg.keptKey === keptKey && kg.k >= kNbr) {
+      // Rows of a deeper cached graph: its first kNbr columns are the kNbr nearest (ties by index, as computed).
+      const indices = new Int32Array(nKept * kNbr);
+      const distances = new Float64Array(nKept * kNbr);
+      for (let r = 0; r < nKept; r++)
+        for (let c = 0; c < kNbr; c++) {
+          indices[r * kNbr + c] = kg.indices[r * kg.k + c];
+          distances[r * kNbr + c] = kg.distances[r * kg.k + c];
+        }
+      keptNbr = { k: kNbr, indices, distances };
+      reused.push('kept neighbours');
+    } else {
+      keptNbr = await nearestNeighbours(keptItems, kNbr, { threads });
+      cmp.keptGraph = { keptKey, k: keptNbr.k, indices: Array.from(keptNbr.indices), distances: Array.from(keptNbr.distances) };
+      cmpChanged = true;
+    }
     const kk = keptNbr.k;
     const seen = new Set<string>();
     for (let r = 0; r < nKept; r++) {
@@ -410,24 +452,55 @@ export async function sift(opts: SiftOptions): Promise<SiftRun> {
     progress.stage('families and metric map', nKept);
     const hdbOptions = { minClusterSize: params.minFamilySize, minSamples: params.minSamples };
     const clusterable = params.minSamples <= nKept && params.minFamilySize <= nKept;
-    if (nKept <= (opts.denseLimit ?? DENSE_LIMIT)) {
-      const dist = await distanceMatrix(keptItems, { threads });
-      if (clusterable) familyLabels.set(hdbscanDense(dist, nKept, hdbOptions).labels);
-      embedding = embeddingOf(embed2d(dist, nKept));
-    } else {
-      if (clusterable) {
-        const core = coreDistancesFromNeighbours(keptNbr!.distances, nKept, keptNbr!.k, params.minSamples);
-        const res = hdbscanLazy(nKept, keptEmd, (a, b) => amdDistance(keptItems[a].amd, keptItems[b].amd), core, hdbOptions);
-        familyLabels.set(res.labels);
+    const dense = nKept <= (opts.denseLimit ?? DENSE_LIMIT);
+    const cachedLabels = cmp.labels.find(
+      (l) => l.keptKey === keptKey && l.minFamilySize === params.minFamilySize && l.minSamples === params.minSamples && l.dense === dense,
+    );
+    const cachedEmbedding = cmp.embedding && cmp.embedding.keptKey === keptKey ? cmp.embedding.embedding : null;
+    let dist: Float64Array | null = null;
+    if (dense && ((clusterable && !cachedLabels) || !cachedEmbedding)) {
+      if (cmp.matrix && cmp.matrix.keptKey === keptKey) {
+        dist = Float64Array.from(cmp.matrix.values);
+        reused.push('distance matrix');
       }
-      if (nKept <= EMBED_LIMIT) {
-        const e = embed2dLandmarks(nKept, keptEmd, { landmarks: LANDMARKS });
-        embedding = embeddingOf(e);
-      } else messages.push(`no metric map: ${nKept} kept structures is more than ${EMBED_LIMIT}`);
+      else {
+        dist = await distanceMatrix(keptItems, { threads });
+        cmp.matrix = { keptKey, values: Array.from(dist) };
+        cmpChanged = true;
+      }
+    }
+    if (clusterable) {
+      if (cachedLabels) {
+        familyLabels.set(cachedLabels.labels);
+        reused.push('families');
+      }
+      else {
+        if (dense) familyLabels.set(hdbscanDense(dist!, nKept, hdbOptions).labels);
+        else {
+          const core = coreDistancesFromNeighbours(keptNbr!.distances, nKept, keptNbr!.k, params.minSamples);
+          familyLabels.set(hdbscanLazy(nKept, keptEmd, (a, b) => amdDistance(keptItems[a].amd, keptItems[b].amd), core, hdbOptions).labels);
+        }
+        cmp.labels.push({ keptKey, minFamilySize: params.minFamilySize, minSamples: params.minSamples, dense, labels: Array.from(familyLabels) });
+        cmpChanged = true;
+      }
+    }
+    if (cachedEmbedding) {
+      embedding = cachedEmbedding;
+      reused.push('metric map');
+    }
+    else {
+      if (dense) embedding = embeddingOf(embed2d(dist!, nKept));
+      else if (nKept <= EMBED_LIMIT) embedding = embeddingOf(embed2dLandmarks(nKept, keptEmd, { landmarks: LANDMARKS }));
+      else messages.push(`no metric map: ${nKept} kept structures is more than ${EMBED_LIMIT}`);
+      if (embedding) {
+        cmp.embedding = { keptKey, method: embedding.method, embedding };
+        cmpChanged = true;
+      }
     }
     if (!clusterable) messages.push(`families not computed: ${nKept} kept structure(s), fewer than the minimum family size or samples`);
     progress.done();
   }
+  if (opts.cacheDir && cmpChanged) saveComparisons(opts.cacheDir, cacheParams, cmp);
   const families: Family[] = [];
   for (let r = 0; r < nKept; r++) {
     const f = familyLabels[r];
@@ -480,7 +553,7 @@ export async function sift(opts: SiftOptions): Promise<SiftRun> {
     energyTable,
     energyAssignment,
     messages,
-    cache: { hits, misses: toCompute.length, file: cacheFile, problem: loaded.problem },
+    cache: { hits, misses: toCompute.length, file: cacheFile, problem: loaded.problem, reused },
   };
 }
 
