@@ -81,7 +81,7 @@ describe('exact neighbour search in a periodic set', () => {
           for (let j = 0; j < k; j++) expect(Math.abs(fast[q * k + j] - brute.rows[q * k + j])).toBeLessThan(1e-9);
         }
       }),
-      { numRuns: Number(process.env.POLYSIFT_TEST_RUNS ?? 60) },
+      { numRuns: Number(process.env.POLYSIFT_TEST_RUNS ?? 40) },
     );
   });
 
