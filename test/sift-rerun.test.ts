@@ -39,6 +39,12 @@ describe('sift re-runs', () => {
     expect(JSON.stringify(jb)).toBe(JSON.stringify(ja));
     expect(a.cache).toMatchObject({ hits: 0, misses: gen.ids.length, reused: [] });
 
+    // From the cache, with the same options: the same files.
+    const a2 = await sift({ ...base, threads: 2, cacheDir });
+    expect(a2.cache).toMatchObject({ hits: gen.ids.length, misses: 0 });
+    const fa2 = new Map(siftFiles(a2, { report: false }));
+    for (const f of textFiles) expect(fa2.get(f)).toBe(fa.get(f));
+
     const c = await sift({ ...base, threads: 2, cacheDir, toleranceAngstrom: 0.08 });
     expect(c.cache).toMatchObject({ hits: gen.ids.length, misses: 0 });
     expect(c.landscape.parameters.toleranceAngstrom).toBe(0.08);

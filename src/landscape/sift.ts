@@ -12,7 +12,6 @@ import type {
   KeptInvariants,
   Landscape,
   SiftParameters,
-  Status,
   StructureRow,
 } from './schema.js';
 import { readStructures } from '../io/read.js';
@@ -28,7 +27,7 @@ import { embed2d } from '../cluster/embedding.js';
 import { embed2dLandmarks } from '../cluster/embedding-landmarks.js';
 import { convergenceCurve, defaultWindows } from './convergence.js';
 import { collapseDuplicates, visitOrder } from './collapse.js';
-import { blockKey, loadCache, saveCache, type CacheEntry } from './cache.js';
+import { blockKey, cacheFileName, loadCache, saveCache, type CacheEntry } from './cache.js';
 import { emptyComparisons, listKey, loadComparisons, saveComparisons, type Comparisons } from './compare-cache.js';
 import type { Prepared, PrepareInput } from './prepare.js';
 import { prepareChunk } from './prepare.js';
@@ -111,6 +110,9 @@ interface Work {
   key: string;
   pdd: Pdd | null;
   amd: Float64Array | null;
+  facts: CrystalFacts | null;
+  /** Notes of the periodic-set construction (what the invariants cache stores beside the PDD). */
+  setNotes: string[];
 }
 
 /** Run the whole sift. Throws only when the inputs cannot be read at all (missing path, bad energies file). */
@@ -269,7 +271,7 @@ export async function sift(opts: SiftOptions): Promise<SiftRun> {
       else {
         w.pdd = r.pdd;
         w.amd = r.amd;
-        cache.set(w.key, { pdd: r.pdd, atoms: w.row.atoms ?? 0, facts: factsOf(w), notes: w.row.notes.filter((n) => !n.startsWith('no energy')) });
+        cache.set(w.key, { pdd: r.pdd, atoms: w.row.atoms ?? 0, facts: w.facts, notes: w.setNotes });
       }
     });
     progress.done();
@@ -283,7 +285,7 @@ export async function sift(opts: SiftOptions): Promise<SiftRun> {
     for (const w of items) keep.set(w.key, cache.get(w.key)!);
     for (const [key, e] of cache) if (keep.size < 2 * items.length && !keep.has(key)) keep.set(key, e);
     cacheFile = saveCache(opts.cacheDir, cacheParams, keep);
-  } else if (opts.cacheDir) cacheFile = join(opts.cacheDir, 'invariants');
+  } else if (opts.cacheDir) cacheFile = join(opts.cacheDir, cacheFileName(cacheParams));
   t = lap('invariants', t);
 
   // ---- duplicate collapse ----
@@ -589,11 +591,11 @@ function workFromBlock(r: BlockResult, index: number): Work {
   };
   if (r.kind === 'rejected') {
     row.reason = r.rejected.reason;
-    return { row, record: null, text: r.rejected.text, key: '', pdd: null, amd: null };
+    return { row, record: null, text: r.rejected.text, key: '', pdd: null, amd: null, facts: null, setNotes: [] };
   }
   // Usable so far; the status is settled later (kept, duplicate, outside-window or rejected).
   row.status = 'kept';
-  return { row, record: r.record, text: r.record.text, key: blockKey(r.record.text), pdd: null, amd: null };
+  return { row, record: r.record, text: r.record.text, key: blockKey(r.record.text), pdd: null, amd: null, facts: null, setNotes: [] };
 }
 
 function applyFacts(w: Work, facts: CrystalFacts | null, atoms: number, notes: string[]): void {
@@ -606,11 +608,8 @@ function applyFacts(w: Work, facts: CrystalFacts | null, atoms: number, notes: s
     w.row.notes.push(...facts.notes);
   }
   w.row.notes.push(...notes);
-  (w as Work & { facts?: CrystalFacts | null }).facts = facts;
-}
-
-function factsOf(w: Work): CrystalFacts | null {
-  return (w as Work & { facts?: CrystalFacts | null }).facts ?? null;
+  w.facts = facts;
+  w.setNotes = notes;
 }
 
 function reject(w: Work, reason: string): void {
@@ -656,10 +655,8 @@ function round(x: number): number {
 /** Output rounding of a row: Å, g/cm3 and energies to 6 decimals. */
 function roundRow(r: StructureRow): StructureRow {
   const o = (x: number | null) => (x === null ? null : round6(x));
-  const statusOk: Status = r.status;
   return {
     ...r,
-    status: statusOk,
     energy: o(r.energy),
     energyRel: o(r.energyRel),
     densityGPerCm3: o(r.densityGPerCm3),
