@@ -9,7 +9,6 @@
 // Also here: the AMD distance, the L-infinity distance between AMD vectors, which never exceeds the EMD
 // ("Average minimum distances of periodic point sets", MATCH Commun. Math. Comput. Chem. 2022).
 import type { Pdd } from '../types.js';
-import { sortByKey, sortStackLength } from './sort-keyed.js';
 
 /** Weights at or above this (negative) value are rounding residue and count as 0; below it they are an error. */
 export const NEGATIVE_WEIGHT_TOLERANCE = -1e-9;
@@ -99,7 +98,6 @@ class Workspace {
   colOf = new Int32Array(0);
   cost = new Float64Array(0);
   order = new Int32Array(0);
-  sortStack = new Int32Array(0);
   arcTail = new Int32Array(0);
   arcHead = new Int32Array(0);
   arcFlow = new Float64Array(0);
@@ -125,7 +123,6 @@ class Workspace {
       this.colOf = new Int32Array(this.capCols);
       this.cost = new Float64Array(this.capRows * this.capCols);
       this.order = new Int32Array(this.capRows * this.capCols);
-      this.sortStack = new Int32Array(sortStackLength(this.capRows * this.capCols));
     }
     const nodes = m + n + 1;
     if (nodes > this.capNodes) {
@@ -233,14 +230,18 @@ function solve(
   const nodes = m + n + 1;
 
   // ---- first basis: matrix minimum (allocate to the cheapest open cells first) ----
+  // Cells leave a binary heap cheapest first (ties by index); usually far fewer than all cells are needed.
   for (let c = 0; c < cells; c++) order[c] = c;
-  sortByKey(order, cells, cost, ws.sortStack);
+  for (let h = (cells >> 1) - 1; h >= 0; h--) siftDown(order, cells, h, cost);
+  let heapSize = cells;
   for (let v = 0; v < nodes; v++) unionParent[v] = v;
   let arcs = 0;
   let rowsLeft = m;
   let colsLeft = n;
-  for (let t = 0; t < cells && rowsLeft > 0 && colsLeft > 0; t++) {
-    const c = order[t];
+  while (heapSize > 0 && rowsLeft > 0 && colsLeft > 0) {
+    const c = order[0];
+    order[0] = order[--heapSize];
+    siftDown(order, heapSize, 0, cost);
     const i = (c / n) | 0;
     const j = c - i * n;
     const s = supply[i];
@@ -517,4 +518,25 @@ export function rowMinBound(
     if (sum > limit) return sum;
   }
   return sum;
+}
+
+/** Restore the heap order (cost, then index) below position h of heap[0..size). */
+function siftDown(heap: Int32Array, size: number, h: number, cost: Float64Array): void {
+  const v = heap[h];
+  const cv = cost[v];
+  for (;;) {
+    let c = 2 * h + 1;
+    if (c >= size) break;
+    const r = c + 1;
+    if (r < size) {
+      const cc = cost[heap[c]];
+      const cr = cost[heap[r]];
+      if (cr < cc || (cr === cc && heap[r] < heap[c])) c = r;
+    }
+    const cc = cost[heap[c]];
+    if (cc > cv || (cc === cv && heap[c] > v)) break;
+    heap[h] = heap[c];
+    h = c;
+  }
+  heap[h] = v;
 }
