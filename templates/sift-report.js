@@ -185,6 +185,7 @@
   document.getElementById('show-lines').addEventListener('change', function (ev) {
     var idx = report.traces.lines.slice();
     if (report.traces.lineLegend !== undefined) idx.push(report.traces.lineLegend);
+    if (idx.length === 0) return;
     Plotly.restyle(landscapeDiv, { visible: ev.target.checked }, idx);
   });
 
@@ -241,6 +242,9 @@
   report.select = select;
 
   var amdDiv = document.getElementById('amd-plot');
+  document.getElementById('structure-panel').addEventListener('keydown', function (ev) {
+    if (ev.key === 'Escape') document.getElementById('panel-close').click();
+  });
   document.getElementById('panel-close').addEventListener('click', function () {
     document.getElementById('panel-body').hidden = true;
     document.getElementById('panel-empty').hidden = false;

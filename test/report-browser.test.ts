@@ -187,4 +187,37 @@ describe('the sift report in a browser', () => {
     expect(w.consoleErrors).toEqual([]);
     expect(w.pageErrors).toEqual([]);
   });
+
+  it('a landscape with one kept structure, no energies, no map and no convergence curve still loads and says so', async () => {
+    const tiny = syntheticLandscape({ kept: 1, duplicates: 2, rejected: 0, outsideWindow: 0, seed: 3, noConvergence: true });
+    for (const r of tiny.structures) {
+      r.energy = null;
+      r.energyRel = null;
+    }
+    tiny.lowestEnergy = null;
+    tiny.embedding = null;
+    const dir = mkdtempSync(join(tmpdir(), 'polysift-report-tiny-'));
+    const file = join(dir, 'report.html');
+    writeFileSync(file, renderSiftReport(tiny));
+    const t = await openFile(browser, file);
+    try {
+      expect(t.consoleErrors).toEqual([]);
+      expect(t.pageErrors).toEqual([]);
+      expect(t.requests).toEqual([t.url]);
+      const n = (await t.page.evaluate('document.getElementById("landscape-plot").data[window.polysiftReport.traces.kept].x.length')) as number;
+      expect(n).toBe(1);
+      expect(await t.page.textContent('#map-note')).toContain('no metric map');
+      expect(await t.page.isHidden('#convergence-section')).toBe(true);
+      expect(await t.page.textContent('#rejected-note')).toContain('None');
+      expect(await t.page.textContent('#landscape-plot')).toContain('No energies given');
+      await t.page.locator('#kept-table tbody tr').first().focus();
+      await t.page.keyboard.press('Enter');
+      await t.page.waitForFunction((want) => document.getElementById('panel-id')?.textContent === want, tiny.structures[tiny.kept[0]!]!.id);
+      expect(await t.page.locator('#members-table tbody tr').count()).toBe(2);
+      expect(t.consoleErrors).toEqual([]);
+      expect(t.pageErrors).toEqual([]);
+    } finally {
+      await t.context.close();
+    }
+  });
 });
