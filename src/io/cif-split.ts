@@ -3,6 +3,8 @@
 // and closes with a `;` in column 1, and a quoted string cannot span lines, so a per-line state is exact).
 // Only whole lines are examined; a partial last line is carried to the next chunk.
 
+import { isAscii } from 'node:buffer';
+
 /** One block's text exactly as read, from the start of its `data_` line to the start of the next. */
 export interface RawBlock {
   /** Block name after `data_` (as written); "" for text before the first data_ line. */
@@ -200,4 +202,188 @@ function isDataWord(s: string, k: number): boolean {
 
 function isSpace(c: number): boolean {
   return c === 32 || c === 10 || c === 13 || c === 9 || c === 12 || c === 11;
+}
+
+// ---- byte splitter (the streaming path) ----------------------------------------------------------------
+
+/** Starting size of the byte splitter's buffer; it grows only to hold a line or block larger than this. */
+const BYTE_BUFFER_START = 1 << 22;
+/** Prologue bytes kept: enough for MAX_PROLOGUE_CHARS UTF-16 units (a unit takes at most 3 UTF-8 bytes). */
+const MAX_PROLOGUE_BYTES = 3 * MAX_PROLOGUE_CHARS;
+
+/**
+ * The same split as CifBlockSplitter, done on the raw bytes of a UTF-8 (or ASCII) stream before any decoding:
+ * the markers it looks for (`\n`, `;`, `data_`, blanks) are ASCII, and a UTF-8 multi-byte sequence never holds
+ * an ASCII byte, so block boundaries found on bytes are the ones found on the decoded text. Each block is then
+ * decoded once, as one piece (Latin-1 copy when all bytes are ASCII, UTF-8 otherwise). Bytes are kept in one
+ * reused buffer holding only the block in progress, so memory stays flat.
+ */
+export class CifByteSplitter {
+  private buf: Buffer = Buffer.allocUnsafe(BYTE_BUFFER_START);
+  /** Valid bytes in buf. */
+  private len = 0;
+  /** Start of the current block's (or prologue's) bytes in buf. */
+  private segStart = 0;
+  /** Start of the first line not yet examined. */
+  private lineStart = 0;
+  private name = '';
+  private line = 1;
+  private inBlock = false;
+  private prologueHasContent = false;
+  /** Prologue bytes moved out of buf (capped at MAX_PROLOGUE_BYTES) so a long prologue does not grow buf. */
+  private prologueParts: Buffer[] = [];
+  private prologueBytes = 0;
+  private inTextField = false;
+  private lineNo = 1;
+  /** Blocks seen so far (data_ lines). */
+  blockCount = 0;
+
+  /** Feed the next bytes (copied; the caller may reuse its buffer); complete blocks are appended to `out`. */
+  push(bytes: Uint8Array, out: RawBlock[]): void {
+    this.makeRoom(bytes.length);
+    this.buf.set(bytes, this.len);
+    this.len += bytes.length;
+    this.scan(out);
+  }
+
+  /** Flush at end of input, with the same handling of a text field left open as CifBlockSplitter.end. */
+  end(out: RawBlock[]): void {
+    if (this.lineStart < this.len) {
+      this.examineLine(this.lineStart, this.len, out);
+      this.lineStart = this.len;
+    }
+    if (this.inTextField && this.inBlock) {
+      // Rare (a damaged file): redo the tail on the decoded text with the string splitter's rule.
+      const text = this.decode(this.segStart, this.len);
+      const cut = swallowedBlockStart(text);
+      if (cut !== null) {
+        out.push({ name: this.name, line: this.line, text: text.slice(0, cut.offset), beforeFirstBlock: false });
+        const rest = new CifBlockSplitter(this.line + cut.lines);
+        rest.push(text.slice(cut.offset), out);
+        rest.end(out);
+        this.segStart = this.len;
+        this.inBlock = false;
+        return;
+      }
+    }
+    this.finish(this.len, out);
+    this.segStart = this.len;
+  }
+
+  /** The block being read (for reporting a read failure), or null before the first data_ line. */
+  get current(): { name: string; line: number } | null {
+    return this.inBlock ? { name: this.name, line: this.line } : null;
+  }
+
+  /** Line number reached so far (1-based). */
+  get linesRead(): number {
+    return this.lineNo;
+  }
+
+  /** Examine every complete line in buf; a partial last line waits for more bytes. */
+  private scan(out: RawBlock[]): void {
+    const buf = this.buf;
+    const n = this.len;
+    let pos = this.lineStart;
+    // A line is examined once its '\n' has arrived; only its first bytes matter.
+    for (let i = pos; i < n; i++) {
+      if (buf[i] !== 10) continue;
+      this.examineLine(pos, i + 1, out);
+      this.lineNo++;
+      pos = i + 1;
+    }
+    this.lineStart = pos;
+  }
+
+  /**
+   * Look at the line [pos, end): toggle text-field state on a leading `;`, start a new block on `data_`
+   * (after blanks). Same rule as CifBlockSplitter.examineLine.
+   */
+  private examineLine(pos: number, end: number, out: RawBlock[]): void {
+    const buf = this.buf;
+    const c = buf[pos]!;
+    if (c === 59) {
+      this.inTextField = !this.inTextField;
+      if (!this.inBlock) this.prologueHasContent = true;
+      return;
+    }
+    if (this.inTextField) return;
+    let k = pos;
+    while (k < end && (buf[k] === 32 || buf[k] === 9)) k++;
+    const d = k < end ? buf[k]! : -1;
+    if (
+      (d === 100 || d === 68) &&
+      k + 4 < end &&
+      (buf[k + 1]! | 32) === 97 &&
+      (buf[k + 2]! | 32) === 116 &&
+      (buf[k + 3]! | 32) === 97 &&
+      buf[k + 4] === 95
+    ) {
+      this.finish(pos, out);
+      this.segStart = pos;
+      let j = k + 5;
+      while (j < end && !isSpace(buf[j]!)) j++;
+      this.name = this.buf.toString('utf8', k + 5, j);
+      this.line = this.lineNo;
+      this.inBlock = true;
+      this.blockCount++;
+      return;
+    }
+    if (!this.inBlock && !this.prologueHasContent && k < end && d !== 35 && d !== 10 && d !== 13) {
+      this.prologueHasContent = true;
+    }
+  }
+
+  /** Emit the current block (bytes [segStart, to)) or a prologue with content. */
+  private finish(to: number, out: RawBlock[]): void {
+    if (this.inBlock) {
+      out.push({ name: this.name, line: this.line, text: this.decode(this.segStart, to), beforeFirstBlock: false });
+      return;
+    }
+    if (this.prologueHasContent) {
+      this.keepPrologue(to);
+      const bytes = this.prologueParts.length === 1 ? this.prologueParts[0]! : Buffer.concat(this.prologueParts);
+      out.push({ name: '', line: 1, text: decodeBytes(bytes, 0, bytes.length).slice(0, MAX_PROLOGUE_CHARS), beforeFirstBlock: true });
+      this.prologueHasContent = false;
+    }
+    this.prologueParts = [];
+    this.prologueBytes = 0;
+  }
+
+  /** Move prologue bytes [segStart, to) out of buf, keeping at most MAX_PROLOGUE_BYTES in all. */
+  private keepPrologue(to: number): void {
+    const take = Math.min(to - this.segStart, MAX_PROLOGUE_BYTES - this.prologueBytes);
+    if (take > 0) {
+      this.prologueParts.push(Buffer.from(this.buf.subarray(this.segStart, this.segStart + take)));
+      this.prologueBytes += take;
+    }
+    this.segStart = to;
+  }
+
+  private decode(from: number, to: number): string {
+    return decodeBytes(this.buf, from, to);
+  }
+
+  /** Make room for `extra` more bytes: drop what is emitted, then grow only if the kept bytes need it. */
+  private makeRoom(extra: number): void {
+    if (!this.inBlock) this.keepPrologue(this.lineStart);
+    const keepFrom = this.segStart;
+    const kept = this.len - keepFrom;
+    if (keepFrom > 0 && this.len + extra > this.buf.length) {
+      this.buf.copyWithin(0, keepFrom, this.len);
+      this.len = kept;
+      this.segStart = 0;
+      this.lineStart -= keepFrom;
+    }
+    if (this.len + extra > this.buf.length) {
+      const grown = Buffer.allocUnsafe(Math.max(2 * this.buf.length, this.len + extra));
+      this.buf.copy(grown, 0, 0, this.len);
+      this.buf = grown;
+    }
+  }
+}
+
+/** Decode bytes [from, to) once: Latin-1 copy when all are ASCII (same result, no UTF-8 work), else UTF-8. */
+function decodeBytes(buf: Buffer, from: number, to: number): string {
+  return buf.toString(isAscii(buf.subarray(from, to)) ? 'latin1' : 'utf8', from, to);
 }

@@ -4,14 +4,12 @@
 // become one RejectedBlock with block "" so they still appear in every output.
 import { createReadStream } from 'node:fs';
 import { pipeline } from 'node:stream';
-import { open, readdir, stat } from 'node:fs/promises';
+import { open, readdir, stat, type FileHandle } from 'node:fs/promises';
 import { join } from 'node:path';
-import { StringDecoder } from 'node:string_decoder';
-import { isAscii } from 'node:buffer';
 import { createGunzip } from 'node:zlib';
 import type { Readable } from 'node:stream';
 import type { BlockResult } from '../types.js';
-import { CifBlockSplitter, type RawBlock } from './cif-split.js';
+import { CifBlockSplitter, CifByteSplitter, type RawBlock } from './cif-split.js';
 import { blockResult, type ReadOptions } from './crystal-record.js';
 
 export type { ReadOptions } from './crystal-record.js';
@@ -20,6 +18,8 @@ export type { ReadOptions } from './crystal-record.js';
 const CHUNK_BYTES = 1 << 20;
 /** Share of control characters in the first chunk above which a file is taken as binary. */
 const BINARY_CONTROL_SHARE = 0.05;
+/** Characters at the start of a file looked at for that share. */
+const BINARY_HEAD_CHARS = 65536;
 
 /**
  * Files as given; folders searched recursively for `*.cif` and `*.cif.gz` (case-insensitive), each folder's
@@ -70,69 +70,92 @@ export async function* readStructures(paths: string[], opts: ReadOptions = {}): 
 /** Every block of one file (plain or gzip), streamed. Never throws for bad content. */
 export async function* readCifFile(file: string, opts: ReadOptions = {}): AsyncGenerator<BlockResult> {
   // Look at the first bytes: empty, gzip or not.
+  let fh: FileHandle;
   let head: Buffer;
   try {
-    const fh = await open(file, 'r');
-    try {
-      const buf = Buffer.alloc(2);
-      const { bytesRead } = await fh.read(buf, 0, 2, 0);
-      head = buf.subarray(0, bytesRead);
-    } finally {
-      await fh.close();
-    }
+    fh = await open(file, 'r');
   } catch (e) {
     yield fileRejected(file, `cannot be read: ${(e as Error).message}`);
     return;
   }
-  if (head.length === 0) {
-    yield fileRejected(file, 'the file is empty');
-    return;
-  }
-  const gzip = head.length === 2 && head[0] === 0x1f && head[1] === 0x8b;
-  if (!gzip && file.toLowerCase().endsWith('.gz')) {
-    yield fileRejected(file, 'the name ends in .gz but the file is not gzip-compressed; rename it or compress it');
-    return;
-  }
-
-  const fileStream = createReadStream(file, { highWaterMark: CHUNK_BYTES });
-  // pipeline() passes a read error of the file on to the gunzip stream, so the loop below sees it.
-  const source: Readable = gzip ? pipeline(fileStream, createGunzip(), () => {}) : fileStream;
   try {
-    yield* streamBlocks(file, source, gzip, opts);
+    try {
+      const buf = Buffer.alloc(2);
+      const { bytesRead } = await fh.read(buf, 0, 2, 0);
+      head = buf.subarray(0, bytesRead);
+    } catch (e) {
+      yield fileRejected(file, `cannot be read: ${(e as Error).message}`);
+      return;
+    }
+    if (head.length === 0) {
+      yield fileRejected(file, 'the file is empty');
+      return;
+    }
+    const gzip = head.length === 2 && head[0] === 0x1f && head[1] === 0x8b;
+    if (!gzip && file.toLowerCase().endsWith('.gz')) {
+      yield fileRejected(file, 'the name ends in .gz but the file is not gzip-compressed; rename it or compress it');
+      return;
+    }
+    if (!gzip) {
+      // Plain text: large reads into one reused buffer (the splitter copies what it keeps).
+      yield* streamBlocks(file, fileChunks(fh), false, opts);
+      return;
+    }
+    const fileStream = createReadStream(file, { highWaterMark: CHUNK_BYTES });
+    // pipeline() passes a read error of the file on to the gunzip stream, so the loop below sees it.
+    const source: Readable = pipeline(fileStream, createGunzip(), () => {});
+    try {
+      yield* streamBlocks(file, source as AsyncIterable<Buffer>, true, opts);
+    } finally {
+      // Also when the caller stops early: close the file and the gunzip stream.
+      fileStream.destroy();
+      source.destroy();
+    }
   } finally {
-    // Also when the caller stops early: close the file and the gunzip stream.
-    fileStream.destroy();
-    source.destroy();
+    await fh.close();
   }
 }
 
-/** Decode, split and read the blocks of an open stream. */
-async function* streamBlocks(file: string, source: Readable, gzip: boolean, opts: ReadOptions): AsyncGenerator<BlockResult> {
-  const decoder = new StringDecoder('utf8');
-  const splitter = new CifBlockSplitter();
+/** The bytes of an open file from its start, in CHUNK_BYTES reads into one buffer reused for every read. */
+async function* fileChunks(fh: FileHandle): AsyncGenerator<Uint8Array> {
+  const buf = Buffer.allocUnsafe(CHUNK_BYTES);
+  let position = 0;
+  for (;;) {
+    const { bytesRead } = await fh.read(buf, 0, buf.length, position);
+    if (bytesRead === 0) return;
+    position += bytesRead;
+    yield buf.subarray(0, bytesRead);
+  }
+}
+
+/**
+ * Split the bytes of a stream into blocks (on bytes, before decoding; see CifByteSplitter), decode each block
+ * once and read it.
+ */
+async function* streamBlocks(file: string, source: AsyncIterable<Uint8Array>, gzip: boolean, opts: ReadOptions): AsyncGenerator<BlockResult> {
+  const splitter = new CifByteSplitter();
   const out: RawBlock[] = [];
   let first = true;
   let emitted = 0;
-  let asciiSoFar = true;
   try {
-    for await (const chunk of source as AsyncIterable<Buffer>) {
-      // Pure-ASCII chunks (nearly all CIF text) skip UTF-8 decoding; after the first non-ASCII byte the
-      // decoder takes over for good, since it may hold part of a character between chunks.
-      let text: string;
-      if (asciiSoFar && isAscii(chunk)) text = chunk.toString('latin1');
-      else {
-        asciiSoFar = false;
-        text = decoder.write(chunk);
+    for await (const chunk of source) {
+      let bytes = chunk;
+      if (first) {
+        // A byte-order mark (as some Windows editors write) would hide the first data_ line.
+        if (bytes.length >= 3 && bytes[0] === 0xef && bytes[1] === 0xbb && bytes[2] === 0xbf) bytes = bytes.subarray(3);
+        const headText = Buffer.from(bytes.buffer, bytes.byteOffset, Math.min(bytes.length, 4 * BINARY_HEAD_CHARS)).toString('utf8');
+        if (binaryAt(headText.slice(0, BINARY_HEAD_CHARS), true)) {
+          yield fileRejected(file, `binary data (not CIF text) near line ${splitter.linesRead}; the rest of the file is not read`);
+          return;
+        }
       }
-      // A byte-order mark (as some Windows editors write) would hide the first data_ line.
-      if (first && text.charCodeAt(0) === 0xfeff) text = text.slice(1);
-      const bad = binaryAt(text, first);
-      if (bad) {
+      // A NUL byte anywhere: UTF-8 text holds a NUL byte only for the NUL character, which CIF never has.
+      if (bytes.indexOf(0) >= 0) {
         yield fileRejected(file, `binary data (not CIF text) near line ${splitter.linesRead}; the rest of the file is not read`);
         return;
       }
       first = false;
-      splitter.push(text, out);
+      splitter.push(bytes, out);
       for (const raw of out) {
         emitted++;
         yield blockResult(raw, file, opts);
@@ -156,7 +179,6 @@ async function* streamBlocks(file: string, source: Readable, gzip: boolean, opts
     };
     return;
   }
-  splitter.push(decoder.end(), out);
   splitter.end(out);
   for (const raw of out) {
     emitted++;
@@ -185,7 +207,7 @@ export function readCifText(text: string, file: string, opts: ReadOptions = {}):
 function binaryAt(text: string, firstChunk: boolean): boolean {
   if (text.indexOf('\u0000') >= 0) return true;
   if (!firstChunk) return false;
-  const n = Math.min(text.length, 65536);
+  const n = Math.min(text.length, BINARY_HEAD_CHARS);
   let bad = 0;
   for (let i = 0; i < n; i++) {
     const c = text.charCodeAt(i);

@@ -1,0 +1,95 @@
+// The streaming path splits raw bytes (CifByteSplitter) before decoding. It must give exactly the blocks that the
+// text splitter (CifBlockSplitter, whose rule test/cif-fuzz.test.ts pins to CIF 1.1: a block starts at a line
+// whose first token is data_, outside ; text fields) gives on the decoded text, for any cut of the byte stream,
+// including cuts inside UTF-8 multi-byte characters, unclosed text fields and text before the first data_ line.
+import { describe, expect, it } from 'vitest';
+import fc from 'fast-check';
+import { CifBlockSplitter, CifByteSplitter, type RawBlock } from '../src/io/cif-split.js';
+
+function block(name: string): string {
+  return `data_${name}
+_cell_length_a 7.5(2)
+_publ_author_name 'Müller, Zoë ∆'
+_note
+;
+ data_inside_a_text_field is not a block
+;
+loop_
+_atom_site_label
+_atom_site_fract_x
+C1 0.1
+  DATA_${name}_indented
+`;
+}
+
+const TEXT = `# prologue comment\n${['α', 'b', 'c'].map(block).join('\n')}`;
+
+function byText(text: string): RawBlock[] {
+  const sp = new CifBlockSplitter();
+  const out: RawBlock[] = [];
+  sp.push(text, out);
+  sp.end(out);
+  return out;
+}
+
+function byBytes(bytes: Buffer, cuts: number[]): RawBlock[] {
+  const sp = new CifByteSplitter();
+  const out: RawBlock[] = [];
+  let prev = 0;
+  for (const c of [...cuts].sort((a, b) => a - b)) {
+    sp.push(bytes.subarray(prev, c), out);
+    prev = c;
+  }
+  sp.push(bytes.subarray(prev), out);
+  sp.end(out);
+  return out;
+}
+
+const edit = fc.record({
+  at: fc.nat(TEXT.length),
+  del: fc.nat(3),
+  ins: fc.constantFrom('', ';', '\n;', '\ndata_x', '\n  data_y z', 'é', '€', '\n', 'text ', '\r\n'),
+});
+
+describe('byte splitter', () => {
+  it('splits the sample at data_ lines outside text fields, with their lines', () => {
+    // Expected by reading TEXT: a comment line, then three blocks of 12 lines (data_ on the block's line 1, an
+    // indented DATA_ line on its line 12) separated by one blank line; the data_ line in the text field is not a block.
+    expect(byBytes(Buffer.from(TEXT), []).map((b) => [b.name, b.line])).toEqual([
+      ['α', 2],
+      ['α_indented', 13],
+      ['b', 15],
+      ['b_indented', 26],
+      ['c', 28],
+      ['c_indented', 39],
+    ]);
+  });
+
+  it('gives the text splitter blocks for any edits and any cuts of the bytes', () => {
+    fc.assert(
+      fc.property(fc.array(edit, { maxLength: 4 }), fc.array(fc.nat(4 * TEXT.length), { maxLength: 30 }), (edits, cuts) => {
+        let text = TEXT;
+        for (const e of edits) text = text.slice(0, e.at) + e.ins + text.slice(e.at + e.del);
+        const bytes = Buffer.from(text, 'utf8');
+        expect(byBytes(bytes, cuts.map((c) => Math.min(c, bytes.length)))).toEqual(byText(text));
+      }),
+      { numRuns: 500, seed: 5 },
+    );
+  });
+
+  it('keeps memory to the block in progress: a long stream of small blocks in small pushes', () => {
+    const sp = new CifByteSplitter();
+    const out: RawBlock[] = [];
+    const one = Buffer.from(block('x'));
+    let count = 0;
+    for (let i = 0; i < 20000; i++) {
+      sp.push(one, out);
+      count += out.length;
+      out.length = 0;
+    }
+    sp.end(out);
+    count += out.length;
+    // Each block text holds two data_ lines by the rule (the indented one starts its own block).
+    expect(count).toBe(40000);
+  });
+});
