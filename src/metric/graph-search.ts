@@ -72,13 +72,14 @@ export interface KnnChunk {
 }
 
 // Levels of a queue entry. Group entries (id = targets + g) are refined through their leader (row-minimum bound,
-// then EMD) and then expanded into member entries; member entries (id = t) are refined by the row-minimum bound
-// and then evaluated.
+// then EMD) and then expanded into member entries; member entries (id = t) are refined through the query's leader
+// (its EMD to t), then by the row-minimum bound, and then evaluated.
 const GROUP_AMD = 0;
 const GROUP_EMD = 1;
 const GROUP_EXPAND = 2;
-const MEMBER_ROWMIN = 3;
-const MEMBER_EXACT = 4;
+const MEMBER_LEADER = 3;
+const MEMBER_ROWMIN = 4;
+const MEMBER_EXACT = 5;
 
 /** Exact k nearest targets under EMD for each query of the chunk. */
 export function knnChunk(task: KnnTask): KnnChunk {
@@ -244,9 +245,18 @@ export function knnChunk(task: KnnTask): KnnChunk {
           let b = bound(qAmd, qo, tAmd, t * dim, columns, dim, limitNow);
           const tri = own ? Math.abs(qLeaderDistance - leaderDistance[t]) : viaLeaders - leaderDistance[t];
           if (tri > b) b = tri;
-          if (b <= limitNow) heap.push(b, t, MEMBER_ROWMIN);
+          if (b <= limitNow) heap.push(b, t, own || qLeader === q ? MEMBER_ROWMIN : MEMBER_LEADER);
         }
         continue;
+      }
+      if (level === MEMBER_LEADER) {
+        // Through the query's leader: its EMD to t serves every query of the group.
+        const lb = distance(qLeader, id) - qLeaderDistance;
+        if (lb > key) {
+          if (lb <= limitNow) heap.push(lb, id, MEMBER_ROWMIN);
+          continue;
+        }
+        level = MEMBER_ROWMIN;
       }
       if (level === MEMBER_ROWMIN) {
         const lb = rowMin(q, id, limitNow);

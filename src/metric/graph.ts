@@ -45,7 +45,7 @@ export interface PairsWithin {
 }
 
 /** Queries per chunk: fixed, so that evaluation counts do not depend on the thread count either. */
-const QUERIES_PER_CHUNK = 128;
+const QUERIES_PER_CHUNK = 512;
 
 const SEARCH_URL = new URL(import.meta.url.endsWith('.ts') ? './graph-search.ts' : './graph-search.js', import.meta.url).href;
 
