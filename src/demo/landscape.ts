@@ -98,21 +98,27 @@ export function generateLandscape(options: GeneratorOptions): GeneratedLandscape
     const energy = -70 - 40 * (packing.densityGPerCm3 - 1.4) + rng.uniform(-4, 4);
     packings.push({ group, densityGPerCm3: packing.densityGPerCm3, energyKjPerMol: energy, partnerOf: -1, packing });
   }
+  // Close partners: a base packing too tightly packed to turn its molecule is passed over for the next one.
+  let nextBase = 0;
   for (let c = 0; c < options.closePairs; c++) {
-    const base = packings[c];
     let partner: Packing | null = null;
-    for (let attempt = 0; attempt < 20 && !partner; attempt++)
-      partner = closePartner(base.packing, mol, rng, options.closeTurnDeg ?? 4, options.closeStretch ?? 0.01);
-    if (!partner) throw new Error(`could not make a close partner for packing ${c}`);
+    let baseIndex = -1;
+    while (!partner && nextBase < nBase) {
+      baseIndex = nextBase++;
+      for (let attempt = 0; attempt < 5 && !partner; attempt++)
+        partner = closePartner(packings[baseIndex].packing, mol, rng, options.closeTurnDeg ?? 4, options.closeStretch ?? 0.01);
+    }
+    if (!partner) throw new Error(`could make only ${c} close partners from ${nBase} base packings`);
+    const base = packings[baseIndex];
     const sign = rng.next() < 0.5 ? -1 : 1;
     packings.push({
       group: base.group,
       densityGPerCm3: partner.densityGPerCm3,
       energyKjPerMol: base.energyKjPerMol + sign * rng.uniform(0.02, 0.08),
-      partnerOf: c,
+      partnerOf: baseIndex,
       packing: partner,
     });
-    closePairs.push([c, packings.length - 1]);
+    closePairs.push([baseIndex, packings.length - 1]);
   }
 
   // Every copy of every packing, then shuffled so copies are not adjacent in the input.
