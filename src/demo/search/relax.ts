@@ -32,7 +32,7 @@ const DEG = Math.PI / 180;
  * Cell angles the optimiser may reach within one round. A cell drifting past them is usually the same lattice
  * heading for another, more oblique cell choice; the round stops there and the cell is re-chosen (reduceCell).
  */
-const MIN_ANGLE_DEG = 40;
+const MIN_ANGLE_DEG = 15;
 
 /** One packing as the optimiser sees it. */
 export interface RigidState {

@@ -24,6 +24,11 @@ const START_DENSITY_G_PER_CM3 = 1.25;
  * (0.85 x the Bondi radius sum, src/demo/packing.ts) is unphysical and rejected: 0.8 x 0.85 = 0.68 of the sum.
  */
 const MIN_CONTACT_RATIO = 0.8;
+/**
+ * A relaxed packing below this density has come apart: its molecules stopped touching along some direction, where
+ * the truncated potential is flat, and the optimiser stalled there (organic crystals: roughly 1.1–1.6 g/cm3; common practice).
+ */
+const MIN_DENSITY_G_PER_CM3 = 0.9;
 
 export interface MiniSearchOptions {
   seed: number;
@@ -114,6 +119,7 @@ export function runMiniSearch(options: MiniSearchOptions): MiniSearchResult {
       if (!Number.isFinite(out.energyKjPerMol)) reason = 'the packing collapsed during relaxation';
       else if (!out.lbfgs.converged) reason = `not converged (${out.lbfgs.stop})`;
       else if (contactRatio(basis, model.ops, frac, mol.elements) < MIN_CONTACT_RATIO) reason = 'an unphysically short contact after relaxation';
+      else if (density < MIN_DENSITY_G_PER_CM3) reason = `the packing came apart (density ${density.toFixed(3)} g/cm3)`;
       else if (!(out.energyKjPerMol < 0)) reason = 'a non-negative lattice energy after relaxation';
       if (reason) rejected.push({ start: s, group, reason });
       else {
