@@ -282,15 +282,19 @@ export class CifByteSplitter {
 
   /** Examine every complete line in buf; a partial last line waits for more bytes. */
   private scan(out: RawBlock[]): void {
-    const buf = this.buf;
-    const n = this.len;
+    // A view ending at the valid bytes, so the native search for '\n' never looks at stale bytes.
+    const view = this.buf.subarray(0, this.len);
     let pos = this.lineStart;
-    // A line is examined once its '\n' has arrived; only its first bytes matter.
-    for (let i = pos; i < n; i++) {
-      if (buf[i] !== 10) continue;
-      this.examineLine(pos, i + 1, out);
+    for (;;) {
+      const e = view.indexOf(10, pos);
+      if (e < 0) break;
+      // Only a line starting with ';', 'd'/'D' or a blank can change anything once a block is open.
+      const c = view[pos]!;
+      if (c === 59 || !this.inBlock || (!this.inTextField && (c === 100 || c === 68 || c === 32 || c === 9))) {
+        this.examineLine(pos, e + 1, out);
+      }
       this.lineNo++;
-      pos = i + 1;
+      pos = e + 1;
     }
     this.lineStart = pos;
   }
