@@ -5,6 +5,7 @@
 // P1 pair sum, the invariance of a lattice sum under a change of cell (International Tables Vol. A, chapter on
 // transformations), the reader and density code of src/io and src/geometry, and the library sift.
 import { beforeAll, describe, expect, it } from 'vitest';
+import { spawnSync } from 'node:child_process';
 import { mkdtempSync, writeFileSync } from 'node:fs';
 import { tmpdir } from 'node:os';
 import { join } from 'node:path';
@@ -37,6 +38,10 @@ function expressed(s: RigidState): Expressed {
     frac.set(vecMat([c[0] + o[0] * x + o[1] * y + o[2] * z, c[1] + o[3] * x + o[4] * y + o[5] * z, c[2] + o[6] * x + o[7] * y + o[8] * z], inv), 3 * i);
   }
   return { basis, ops: model.ops, frac, elements: mol.elements.slice(), atomsPerMolecule: mol.elements.length };
+}
+
+function opsCount(group: RigidState['group']): number {
+  return makeRelaxModel(group, mol, table).ops.length;
 }
 
 function numericalGradient(f: (x: Float64Array) => number, x: Float64Array, h: number): Float64Array {
@@ -173,6 +178,20 @@ describe('demo mini search', () => {
       expect(facts.zPrime).toBe(1);
       // Cell lengths are written to 1e-5 Å and angles to 1e-4 degrees, so the volume agrees to about 1e-5.
       expect(Math.abs(facts.densityGPerCm3 - r.densitiesGPerCm3[i]) / r.densitiesGPerCm3[i]).toBeLessThan(1e-4);
+    });
+  });
+
+  it('gemmi reads the CIF to the same densities and atom counts (independent reference, scripts/amd-gemmi.py)', () => {
+    const dir = mkdtempSync(join(tmpdir(), 'polysift-search-gemmi-'));
+    const file = join(dir, 'search.cif');
+    writeFileSync(file, r.cif);
+    const run = spawnSync('python3', ['scripts/amd-gemmi.py', file, '5'], { encoding: 'utf8' });
+    if (run.status !== 0) throw new Error(`scripts/amd-gemmi.py failed (needs python3 with numpy and /usr/bin/python3 with gemmi): ${run.stderr}`);
+    const ref = run.stdout.trim().split('\n').map((line) => JSON.parse(line) as { id: string; density: number; atoms: number });
+    expect(ref.map((x) => x.id)).toEqual(r.ids);
+    ref.forEach((x, i) => {
+      expect(Math.abs(x.density - r.densitiesGPerCm3[i]) / r.densitiesGPerCm3[i]).toBeLessThan(1e-4);
+      expect(x.atoms).toBe(mol.elements.length * opsCount(r.structures[i].group));
     });
   });
 
