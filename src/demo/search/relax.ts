@@ -181,9 +181,15 @@ export function relaxState(model: RelaxModel, start: RigidState): RelaxOutcome {
     });
     total += result.iterations;
     evaluations += result.evaluations;
-    if (Number.isFinite(result.value)) reference = reduceCell(model, stateOf(model, ref, result.x));
     if (!Number.isFinite(result.value)) break;
-    if (round > 0 && result.converged) break;
+    const ended = stateOf(model, ref, result.x);
+    // A converged zero-pressure round ends the relaxation in the cell it ended in; otherwise the next round
+    // starts from a less oblique cell of the same lattice.
+    if (round > 0 && result.converged) {
+      reference = ended;
+      break;
+    }
+    reference = reduceCell(model, ended);
   }
   model.pressure = 0;
   const r = result!;
