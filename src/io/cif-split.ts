@@ -235,39 +235,69 @@ export class CifByteSplitter {
   private prologueBytes = 0;
   private inTextField = false;
   private lineNo = 1;
+  /** True once `close` is called: no more bytes will come. */
+  private closed = false;
+  /** Blocks found at the end of input, waiting to be taken by `next`. */
+  private pending: RawBlock[] = [];
   /** Blocks seen so far (data_ lines). */
   blockCount = 0;
 
-  /** Feed the next bytes (copied; the caller may reuse its buffer); complete blocks are appended to `out`. */
-  push(bytes: Uint8Array, out: RawBlock[]): void {
+  /**
+   * Add the next bytes (copied: the caller may reuse its buffer). Take every block with `next` before writing
+   * again; only then are the bytes of returned blocks dropped.
+   */
+  write(bytes: Uint8Array): void {
     this.makeRoom(bytes.length);
     this.buf.set(bytes, this.len);
     this.len += bytes.length;
-    this.scan(out);
   }
 
-  /** Flush at end of input, with the same handling of a text field left open as CifBlockSplitter.end. */
-  end(out: RawBlock[]): void {
-    if (this.lineStart < this.len) {
-      this.examineLine(this.lineStart, this.len, out);
-      this.lineStart = this.len;
-    }
-    if (this.inTextField && this.inBlock) {
-      // Rare (a damaged file): redo the tail on the decoded text with the string splitter's rule.
-      const text = this.decode(this.segStart, this.len);
-      const cut = swallowedBlockStart(text);
-      if (cut !== null) {
-        out.push({ name: this.name, line: this.line, text: text.slice(0, cut.offset), beforeFirstBlock: false });
-        const rest = new CifBlockSplitter(this.line + cut.lines);
-        rest.push(text.slice(cut.offset), out);
-        rest.end(out);
-        this.segStart = this.len;
-        this.inBlock = false;
-        return;
+  /** Mark the end of input; `next` then also returns the last block. */
+  close(): void {
+    this.closed = true;
+  }
+
+  /**
+   * The next complete block, decoded (only now, so that just one block's text is alive at a time), or null when
+   * more bytes are needed (or, after `close`, when every block has been returned).
+   */
+  next(): RawBlock | null {
+    if (this.pending.length > 0) return this.pending.shift()!;
+    // A view ending at the valid bytes, so the native search for '\n' never looks at stale bytes.
+    const view = this.buf.subarray(0, this.len);
+    let pos = this.lineStart;
+    for (;;) {
+      const e = view.indexOf(10, pos);
+      if (e < 0) break;
+      // Only a line starting with ';', 'd'/'D' or a blank can change anything once a block is open.
+      const c = view[pos]!;
+      let done: RawBlock | null = null;
+      if (c === 59 || !this.inBlock || (!this.inTextField && (c === 100 || c === 68 || c === 32 || c === 9))) {
+        done = this.examineLine(pos, e + 1);
+      }
+      this.lineNo++;
+      pos = e + 1;
+      if (done !== null) {
+        this.lineStart = pos;
+        return done;
       }
     }
-    this.finish(this.len, out);
-    this.segStart = this.len;
+    this.lineStart = pos;
+    if (!this.closed) return null;
+    this.endOfInput();
+    return this.pending.length > 0 ? this.pending.shift()! : null;
+  }
+
+  /** Feed bytes and collect the complete blocks into `out` (write, then next until null). */
+  push(bytes: Uint8Array, out: RawBlock[]): void {
+    this.write(bytes);
+    for (let b = this.next(); b !== null; b = this.next()) out.push(b);
+  }
+
+  /** End of input: collect the remaining blocks into `out`. */
+  end(out: RawBlock[]): void {
+    this.close();
+    for (let b = this.next(); b !== null; b = this.next()) out.push(b);
   }
 
   /** The block being read (for reporting a read failure), or null before the first data_ line. */
@@ -280,38 +310,55 @@ export class CifByteSplitter {
     return this.lineNo;
   }
 
-  /** Examine every complete line in buf; a partial last line waits for more bytes. */
-  private scan(out: RawBlock[]): void {
-    // A view ending at the valid bytes, so the native search for '\n' never looks at stale bytes.
-    const view = this.buf.subarray(0, this.len);
-    let pos = this.lineStart;
-    for (;;) {
-      const e = view.indexOf(10, pos);
-      if (e < 0) break;
-      // Only a line starting with ';', 'd'/'D' or a blank can change anything once a block is open.
-      const c = view[pos]!;
-      if (c === 59 || !this.inBlock || (!this.inTextField && (c === 100 || c === 68 || c === 32 || c === 9))) {
-        this.examineLine(pos, e + 1, out);
-      }
-      this.lineNo++;
-      pos = e + 1;
+  /**
+   * The last line (without a final newline) and the last block, with the same handling of a text field left
+   * open as CifBlockSplitter.end. Results go to `pending`; runs once.
+   */
+  private endOfInput(): void {
+    if (this.segStart >= this.len && !this.inBlock && !this.prologueHasContent) return;
+    if (this.lineStart < this.len) {
+      const done = this.examineLine(this.lineStart, this.len);
+      if (done !== null) this.pending.push(done);
+      this.lineStart = this.len;
     }
-    this.lineStart = pos;
+    if (this.inTextField && this.inBlock) {
+      // Rare (a damaged file): redo the tail on the decoded text with the string splitter's rule.
+      const text = decodeBytes(this.buf, this.segStart, this.len);
+      const cut = swallowedBlockStart(text);
+      if (cut !== null) {
+        this.pending.push({ name: this.name, line: this.line, text: text.slice(0, cut.offset), beforeFirstBlock: false });
+        const rest = new CifBlockSplitter(this.line + cut.lines);
+        rest.push(text.slice(cut.offset), this.pending);
+        rest.end(this.pending);
+        this.done();
+        return;
+      }
+    }
+    const last = this.finish(this.len);
+    if (last !== null) this.pending.push(last);
+    this.done();
+  }
+
+  /** Nothing is left to emit. */
+  private done(): void {
+    this.segStart = this.lineStart = this.len;
+    this.inBlock = false;
+    this.prologueHasContent = false;
   }
 
   /**
    * Look at the line [pos, end): toggle text-field state on a leading `;`, start a new block on `data_`
-   * (after blanks). Same rule as CifBlockSplitter.examineLine.
+   * (after blanks). Same rule as CifBlockSplitter.examineLine. Returns the block the line ends, if any.
    */
-  private examineLine(pos: number, end: number, out: RawBlock[]): void {
+  private examineLine(pos: number, end: number): RawBlock | null {
     const buf = this.buf;
     const c = buf[pos]!;
     if (c === 59) {
       this.inTextField = !this.inTextField;
       if (!this.inBlock) this.prologueHasContent = true;
-      return;
+      return null;
     }
-    if (this.inTextField) return;
+    if (this.inTextField) return null;
     let k = pos;
     while (k < end && (buf[k] === 32 || buf[k] === 9)) k++;
     const d = k < end ? buf[k]! : -1;
@@ -323,35 +370,35 @@ export class CifByteSplitter {
       (buf[k + 3]! | 32) === 97 &&
       buf[k + 4] === 95
     ) {
-      this.finish(pos, out);
+      const done = this.finish(pos);
       this.segStart = pos;
       let j = k + 5;
       while (j < end && !isSpace(buf[j]!)) j++;
-      this.name = this.buf.toString('utf8', k + 5, j);
+      this.name = buf.toString('utf8', k + 5, j);
       this.line = this.lineNo;
       this.inBlock = true;
       this.blockCount++;
-      return;
+      return done;
     }
     if (!this.inBlock && !this.prologueHasContent && k < end && d !== 35 && d !== 10 && d !== 13) {
       this.prologueHasContent = true;
     }
+    return null;
   }
 
-  /** Emit the current block (bytes [segStart, to)) or a prologue with content. */
-  private finish(to: number, out: RawBlock[]): void {
-    if (this.inBlock) {
-      out.push({ name: this.name, line: this.line, text: this.decode(this.segStart, to), beforeFirstBlock: false });
-      return;
-    }
+  /** The current block (bytes [segStart, to)) or a prologue with content, decoded; null for neither. */
+  private finish(to: number): RawBlock | null {
+    if (this.inBlock) return { name: this.name, line: this.line, text: decodeBytes(this.buf, this.segStart, to), beforeFirstBlock: false };
+    let done: RawBlock | null = null;
     if (this.prologueHasContent) {
       this.keepPrologue(to);
       const bytes = this.prologueParts.length === 1 ? this.prologueParts[0]! : Buffer.concat(this.prologueParts);
-      out.push({ name: '', line: 1, text: decodeBytes(bytes, 0, bytes.length).slice(0, MAX_PROLOGUE_CHARS), beforeFirstBlock: true });
+      done = { name: '', line: 1, text: decodeBytes(bytes, 0, bytes.length).slice(0, MAX_PROLOGUE_CHARS), beforeFirstBlock: true };
       this.prologueHasContent = false;
     }
     this.prologueParts = [];
     this.prologueBytes = 0;
+    return done;
   }
 
   /** Move prologue bytes [segStart, to) out of buf, keeping at most MAX_PROLOGUE_BYTES in all. */
@@ -362,10 +409,6 @@ export class CifByteSplitter {
       this.prologueBytes += take;
     }
     this.segStart = to;
-  }
-
-  private decode(from: number, to: number): string {
-    return decodeBytes(this.buf, from, to);
   }
 
   /** Make room for `extra` more bytes: drop what is emitted, then grow only if the kept bytes need it. */

@@ -134,7 +134,6 @@ async function* fileChunks(fh: FileHandle): AsyncGenerator<Uint8Array> {
  */
 async function* streamBlocks(file: string, source: AsyncIterable<Uint8Array>, gzip: boolean, opts: ReadOptions): AsyncGenerator<BlockResult> {
   const splitter = new CifByteSplitter();
-  const out: RawBlock[] = [];
   let first = true;
   let emitted = 0;
   try {
@@ -155,12 +154,12 @@ async function* streamBlocks(file: string, source: AsyncIterable<Uint8Array>, gz
         return;
       }
       first = false;
-      splitter.push(bytes, out);
-      for (const raw of out) {
+      splitter.write(bytes);
+      // One block decoded and read at a time, so little survives a young-generation collection.
+      for (let raw = splitter.next(); raw !== null; raw = splitter.next()) {
         emitted++;
         yield blockResult(raw, file, opts);
       }
-      out.length = 0;
     }
   } catch (e) {
     const cur = splitter.current;
@@ -179,8 +178,8 @@ async function* streamBlocks(file: string, source: AsyncIterable<Uint8Array>, gz
     };
     return;
   }
-  splitter.end(out);
-  for (const raw of out) {
+  splitter.close();
+  for (let raw = splitter.next(); raw !== null; raw = splitter.next()) {
     emitted++;
     yield blockResult(raw, file, opts);
   }
