@@ -2,7 +2,10 @@
 // Every candidate target is bounded from below before any EMD is spent on it:
 //   |AMD_c(S) - AMD_c(Q)|  <=  max_j |AMD_j(S) - AMD_j(Q)|  <=  EMD(PDD(S), PDD(Q))
 // (the AMD bound: "Average minimum distances of periodic point sets", MATCH Commun. Math. Comput. Chem. 2022).
-// The first inequality lets a sweep along one sorted AMD column stop early; the second skips EMDs.
+// The first inequality lets a sweep along one sorted AMD column stop early; the second skips EMDs. Two more lower
+// bounds: the triangle inequality (EMD is a metric, Rubner, Tomasi & Guibas, IJCV 2000) through leaders of groups
+// of near-identical targets, and the row-minimum relaxation (`rowMinBound` in emd.ts). Candidates are visited best
+// first by their current bound, so the k-th distance T shrinks early and the search stops when no bound is <= T.
 // Ties are broken by (distance, index) ascending, so results equal a brute-force sort exactly.
 import { emdPacked, rowMinBound } from './emd.js';
 import type { PackedSet, SortedIndex } from './packed.js';

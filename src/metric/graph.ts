@@ -1,8 +1,9 @@
 // Comparisons at scale under the EMD between PDDs: exact k nearest neighbours, all pairs within a radius, nearest
 // targets across two sets, and the full distance matrix. "Exact" means equal to brute-force all-pairs EMD with
-// ties broken by (distance, index) ascending. The AMD lower bound (see graph-search.ts) skips most EMDs; the work
-// is split into chunks of queries spread over worker threads, and the invariants are packed once per call into
-// shared typed arrays that every worker reads in place.
+// ties broken by (distance, index) ascending. Lower bounds skip most EMDs (see graph-search.ts): the AMD bound,
+// the triangle inequality through leaders of groups of near-identical structures (duplicate minima), and the
+// row-minimum relaxation of the transport problem. The work is split into fixed chunks of queries spread over worker
+// threads, and the invariants are packed once per call into shared typed arrays that every worker reads in place.
 import { chunkRanges, defaultThreads, mapInWorkers } from '../parallel/pool.js';
 import type { KnnChunk, KnnTask, KnownPairs, MatrixTask, TargetGroups, WithinChunk, WithinTask } from './graph-search.js';
 import { buildIndex, packItems, type MetricItem, type PackedSet, type SortedIndex } from './packed.js';
