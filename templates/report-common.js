@@ -120,6 +120,9 @@
     scrollZoom: false,
     modeBarButtonsToRemove: ['lasso2d', 'select2d'],
     toImageButtonOptions: { format: 'png', scale: 2 },
+    // WebGL canvases at the screen's own pixel ratio (the library's default of 2 quadruples the pixels
+    // to fill on ordinary screens, and costs seconds where WebGL runs in software).
+    plotGlPixelRatio: Math.max(1, Math.min(2, window.devicePixelRatio || 1)),
   };
 
   function baseLayout(extra) {

@@ -314,6 +314,8 @@
       P.clear(amdDiv).appendChild(el('p', { className: 'ps-muted' }, 'No AMD stored for this structure.'));
       return;
     }
+    var stale = amdDiv.querySelector(':scope > p');
+    if (stale) amdDiv.removeChild(stale);
     var diff = document.getElementById('amd-difference').checked;
     var own = amdOf(amdRow[i]);
     var xs = [];

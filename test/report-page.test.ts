@@ -82,7 +82,7 @@ describe('colours', () => {
     });
   });
 
-  it('viridis runs from #440154 to #fde725 with #21918c at its middle sample (matplotlib _viridis_data entries 0, 255, 128)', () => {
+  it('viridis runs from #440154 to #fde725 with #21918c at its middle sample (matplotlib _viridis_data entries 0, 255, 128; from memory, and as the bundle ships them)', () => {
     expect(colourAt(VIRIDIS_STOPS, 0)).toBe('#440154');
     expect(colourAt(VIRIDIS_STOPS, 1)).toBe('#fde725');
     expect(colourAt(VIRIDIS_STOPS, 128 / 255)).toBe('#21918c');
