@@ -31,9 +31,10 @@ export enum ValueKind {
 export interface CifLoop {
   /** Lower-cased data names, in the order written. */
   names: string[];
-  starts: number[];
-  ends: number[];
-  kinds: ValueKind[];
+  starts: Int32Array;
+  ends: Int32Array;
+  /** ValueKind of each value. */
+  kinds: Uint8Array;
   /** 1-based line of `loop_`. */
   line: number;
 }
@@ -42,7 +43,7 @@ export interface CifLoop {
 export interface CifItem {
   /** The loop holding this name, or null for a single item. */
   loop: CifLoop | null;
-  /** Column within the loop (0 for single items). */
+  /** Column within the loop; for a single item, its index in the block's `singles` arrays. */
   col: number;
   /** Single item: its value's range in the block text, kind and line (unused for loop items). */
   start: number;
@@ -63,6 +64,8 @@ export interface CifBlock {
   /** Data name (lower-cased) -> where its values are. */
   items: Map<string, CifItem>;
   loops: CifLoop[];
+  /** Ranges and kinds of all single (non-looped) item values, so a single item is read as a column too. */
+  singles: { starts: Int32Array; ends: Int32Array; kinds: Uint8Array };
   /** Things that are not fatal but a user should hear about (duplicate names, skipped save frames). */
   warnings: string[];
 }
@@ -82,9 +85,11 @@ export class CifSyntaxError extends Error {
 export interface CifColumn {
   /** Block text; value i of the column is text[starts[k], ends[k]) with k = offset + i * stride. */
   text: string;
-  starts: number[];
-  ends: number[];
-  kinds: ValueKind[];
+  starts: Int32Array;
+  ends: Int32Array;
+  kinds: Uint8Array;
+  /** The loop the values come from (null for a single item): columns of one loop share it. */
+  loop: CifLoop | null;
   /** 1-based file line of the block text's first character (lines of values are counted from it on demand). */
   firstLine: number;
   /** Stride through the arrays (loop width; 1 for single items) and starting offset. */
@@ -99,7 +104,8 @@ export function cifColumn(block: CifBlock, name: string): CifColumn | null {
   const item = block.items.get(name.toLowerCase());
   if (!item) return null;
   if (item.loop === null) {
-    return { text: block.text, starts: [item.start], ends: [item.end], kinds: [item.kind], firstLine: block.firstLine, stride: 1, offset: 0, length: 1 };
+    const one = block.singles;
+    return { text: block.text, starts: one.starts, ends: one.ends, kinds: one.kinds, loop: null, firstLine: block.firstLine, stride: 1, offset: item.col, length: 1 };
   }
   const w = item.loop.names.length;
   return {
@@ -107,6 +113,7 @@ export function cifColumn(block: CifBlock, name: string): CifColumn | null {
     starts: item.loop.starts,
     ends: item.loop.ends,
     kinds: item.loop.kinds,
+    loop: item.loop,
     firstLine: block.firstLine,
     stride: w,
     offset: item.col,
@@ -127,7 +134,7 @@ export function numberAt(col: CifColumn, i: number): number {
 }
 
 export function kindAt(col: CifColumn, i: number): ValueKind {
-  return col.kinds[col.offset + i * col.stride]!;
+  return col.kinds[col.offset + i * col.stride] as ValueKind;
 }
 
 /** 1-based file line of value i of a column (counted on demand: lines are needed only in messages). */
@@ -148,7 +155,7 @@ export function sameLineAt(col: CifColumn, i: number, j: number): boolean {
 
 /** True when value i is the unquoted `?` or `.` (unknown or inapplicable). */
 export function isMissingAt(col: CifColumn, i: number): boolean {
-  const k = col.kinds[col.offset + i * col.stride]!;
+  const k = col.kinds[col.offset + i * col.stride] as ValueKind;
   return k === ValueKind.Unknown || k === ValueKind.Inapplicable;
 }
 
@@ -249,7 +256,10 @@ export function parseCifBlock(text: string, firstLine = 1): CifBlock {
   if (tok !== TokenType.DataHeader) {
     throw new CifSyntaxError(tok === TokenType.End ? 'no data_ block found' : `expected a data_ line, found '${t.value}'`, t.line);
   }
-  const block: CifBlock = { name: t.value, line: t.line, text, firstLine, items: new Map(), loops: [], warnings: [] };
+  const block: CifBlock = { name: t.value, line: t.line, text, firstLine, items: new Map(), loops: [], singles: NO_SINGLES, warnings: [] };
+  // Value ranges are gathered in reused scratch arrays and copied out at exact size (few allocations per block).
+  const one = singleScratch;
+  one.count = 0;
   if (block.name.length === 0) throw new CifSyntaxError("'data_' must be followed by a block name", t.line);
 
   tok = t.next();
@@ -262,26 +272,28 @@ export function parseCifBlock(text: string, firstLine = 1): CifBlock {
         if (!isValue(tok)) {
           throw new CifSyntaxError(`data name ${name} has no value`, nameLine);
         }
-        addItem(block, name, { loop: null, col: 0, start: t.start, end: t.end, kind: t.kind, line: t.line }, nameLine);
+        if (addItem(block, name, { loop: null, col: one.count, start: t.start, end: t.end, kind: t.kind, line: t.line }, nameLine)) {
+          one.add(t.start, t.end, t.kind);
+        }
         tok = t.next();
         break;
       }
       case TokenType.Loop: {
-        const loop: CifLoop = { names: [], starts: [], ends: [], kinds: [], line: t.line };
+        const loop: CifLoop = { names: [], starts: NO_INTS, ends: NO_INTS, kinds: NO_KINDS, line: t.line };
         tok = t.next();
         while (tok === TokenType.Name) {
           loop.names.push(t.value.toLowerCase());
           tok = t.next();
         }
         if (loop.names.length === 0) throw new CifSyntaxError('loop_ has no data names', loop.line);
+        const vals = loopScratch;
+        vals.count = 0;
         while (isValue(tok)) {
-          loop.starts.push(t.start);
-          loop.ends.push(t.end);
-          loop.kinds.push(t.kind);
+          vals.add(t.start, t.end, t.kind);
           tok = t.next();
         }
         const w = loop.names.length;
-        const count = loop.starts.length;
+        const count = vals.count;
         if (count === 0) {
           throw new CifSyntaxError(`loop_ (${loop.names[0]} ...) has names but no values`, loop.line);
         }
@@ -293,6 +305,9 @@ export function parseCifBlock(text: string, firstLine = 1): CifBlock {
             loop.line,
           );
         }
+        loop.starts = vals.starts.slice(0, count);
+        loop.ends = vals.ends.slice(0, count);
+        loop.kinds = vals.kinds.slice(0, count);
         block.loops.push(loop);
         for (let c = 0; c < w; c++) {
           addItem(block, loop.names[c]!, { loop, col: c, start: 0, end: 0, kind: ValueKind.Bare, line: loop.line }, loop.line);
@@ -326,8 +341,42 @@ export function parseCifBlock(text: string, firstLine = 1): CifBlock {
         throw new CifSyntaxError(`value '${clip(text.slice(t.start, t.end))}' has no data name before it`, t.line);
     }
   }
+  block.singles = { starts: one.starts.slice(0, one.count), ends: one.ends.slice(0, one.count), kinds: one.kinds.slice(0, one.count) };
   return block;
 }
+
+/** Growable value ranges (start, end, kind), reused from block to block. */
+class RangeScratch {
+  starts = new Int32Array(1024);
+  ends = new Int32Array(1024);
+  kinds = new Uint8Array(1024);
+  count = 0;
+
+  add(start: number, end: number, kind: ValueKind): void {
+    if (this.count === this.starts.length) {
+      const n = 2 * this.count;
+      const s = new Int32Array(n);
+      s.set(this.starts);
+      this.starts = s;
+      const e = new Int32Array(n);
+      e.set(this.ends);
+      this.ends = e;
+      const k = new Uint8Array(n);
+      k.set(this.kinds);
+      this.kinds = k;
+    }
+    this.starts[this.count] = start;
+    this.ends[this.count] = end;
+    this.kinds[this.count] = kind;
+    this.count++;
+  }
+}
+
+const loopScratch = new RangeScratch();
+const singleScratch = new RangeScratch();
+const NO_INTS = new Int32Array(0);
+const NO_KINDS = new Uint8Array(0);
+const NO_SINGLES = { starts: NO_INTS, ends: NO_INTS, kinds: NO_KINDS };
 
 // ---- tokenizer -------------------------------------------------------------------------------------
 
@@ -484,13 +533,15 @@ class Tokenizer {
   }
 }
 
-function addItem(block: CifBlock, name: string, item: CifItem, line: number): void {
+/** Record a data name; false when the name was already there (the first is kept). */
+function addItem(block: CifBlock, name: string, item: CifItem, line: number): boolean {
   if (block.items.has(name)) {
     // CIF 1.1 forbids a name twice in a block; keep the first and say so.
     block.warnings.push(`data name ${name} appears twice (line ${line}); the first value is used`);
-    return;
+    return false;
   }
   block.items.set(name, item);
+  return true;
 }
 
 function isDigit(c: number): boolean {

@@ -491,7 +491,7 @@ function sameLoopColumn(block: CifBlock, name: string, ref: CifColumn): CifColum
 }
 
 function sameLoop(a: CifColumn, b: CifColumn): boolean {
-  return a.starts === b.starts && a.length === b.length;
+  return a.loop !== null && a.loop === b.loop && a.length === b.length;
 }
 
 function textOrNull(col: CifColumn, i: number): string | null {
