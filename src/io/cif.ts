@@ -254,7 +254,7 @@ export function parseCifBlock(text: string, firstLine = 1): CifBlock {
   let tok = t.next();
   // A block may be preceded by comments only; its first token must be data_.
   if (tok !== TokenType.DataHeader) {
-    throw new CifSyntaxError(tok === TokenType.End ? 'no data_ block found' : `expected a data_ line, found '${t.value}'`, t.line);
+    throw new CifSyntaxError(tok === TokenType.End ? 'no data_ block found' : `expected a data_ line, found '${clip(text.slice(t.start, t.end))}'`, t.line);
   }
   const block: CifBlock = { name: t.value, line: t.line, text, firstLine, items: new Map(), loops: [], singles: NO_SINGLES, warnings: [] };
   // Value ranges are gathered in reused scratch arrays and copied out at exact size (few allocations per block).
@@ -266,7 +266,7 @@ export function parseCifBlock(text: string, firstLine = 1): CifBlock {
   while (tok !== TokenType.End) {
     switch (tok) {
       case TokenType.Name: {
-        const name = t.value.toLowerCase();
+        const name = t.value;
         const nameLine = t.line;
         tok = t.next();
         if (!isValue(tok)) {
@@ -282,7 +282,7 @@ export function parseCifBlock(text: string, firstLine = 1): CifBlock {
         const loop: CifLoop = { names: [], starts: NO_INTS, ends: NO_INTS, kinds: NO_KINDS, line: t.line };
         tok = t.next();
         while (tok === TokenType.Name) {
-          loop.names.push(t.value.toLowerCase());
+          loop.names.push(t.value);
           tok = t.next();
         }
         if (loop.names.length === 0) throw new CifSyntaxError('loop_ has no data names', loop.line);
@@ -395,6 +395,42 @@ function isValue(tok: TokenType): boolean {
   return tok === TokenType.Value;
 }
 
+/** Lower-cased data names seen before, by hash slot: a block repeats the names of the blocks before it. */
+const NAME_SLOTS = 4096;
+const nameSlots: (string | undefined)[] = new Array(NAME_SLOTS).fill(undefined);
+
+/**
+ * s[i, j) lower-cased, taken from `nameSlots` when the same name (in any case) was seen before, so the common
+ * case makes no new string. Names with non-ASCII characters are lower-cased by the full Unicode rule, uncached.
+ */
+function lowerName(s: string, i: number, j: number): string {
+  // FNV-1a hash (Fowler, Noll, Vo; common practice) of the ASCII-lower-cased characters.
+  let h = 0x811c9dc5;
+  for (let k = i; k < j; k++) {
+    let c = s.charCodeAt(k);
+    if (c >= 128) return s.slice(i, j).toLowerCase();
+    if (c >= 65 && c <= 90) c += 32;
+    h = Math.imul(h ^ c, 0x01000193);
+  }
+  const slot = (h >>> 0) & (NAME_SLOTS - 1);
+  const seen = nameSlots[slot];
+  if (seen !== undefined && seen.length === j - i) {
+    let same = true;
+    for (let k = i; k < j; k++) {
+      let c = s.charCodeAt(k);
+      if (c >= 65 && c <= 90) c += 32;
+      if (c !== seen.charCodeAt(k - i)) {
+        same = false;
+        break;
+      }
+    }
+    if (same) return seen;
+  }
+  const name = s.slice(i, j).toLowerCase();
+  nameSlots[slot] = name;
+  return name;
+}
+
 /** Walks the block text once; `next()` returns the token type and leaves its text in `value`. */
 class Tokenizer {
   private pos = 0;
@@ -489,13 +525,13 @@ class Tokenizer {
     while (j < n && s.charCodeAt(j) > 32) j++;
     this.pos = j;
     const len = j - i;
-    if (c === 95) {
-      // _name
-      this.value = s.slice(i, j);
-      return TokenType.Name;
-    }
     this.start = i;
     this.end = j;
+    if (c === 95) {
+      // _name, lower-cased (names match case-insensitively)
+      this.value = lowerName(s, i, j);
+      return TokenType.Name;
+    }
     if (len === 1 && c === 63) {
       this.kind = ValueKind.Unknown;
       return TokenType.Value;

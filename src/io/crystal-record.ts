@@ -409,7 +409,9 @@ function readSites(block: CifBlock, notes: string[]): Site[] | string {
     }
     if (el.note !== undefined) notes.push(el.note);
 
-    const frac: [number, number, number] = [0, 0, 0];
+    // Starting values that are not integers make the array hold doubles from the start (no change of element
+    // storage when the coordinates are written); all three are overwritten below.
+    const frac: [number, number, number] = [0.5, 0.5, 0.5];
     let unknownCoord = false;
     for (let d = 0; d < 3; d++) {
       const col = d === 0 ? xs : d === 1 ? ys : zs;
