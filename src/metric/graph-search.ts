@@ -102,6 +102,11 @@ export function knnChunk(task: KnnTask): KnnChunk {
   const outIndices = new Int32Array(count * k);
   const outDistances = new Float64Array(count * k);
 
+  // Group of each target (through its leader), for the query's own group.
+  const groupOf = new Int32Array(nt);
+  for (let g = 0; g < ng; g++) for (let e = memberStart[g]; e < memberStart[g + 1]; e++) groupOf[members[e]] = g;
+  const groupOfLeaderOf = (t: number): number => groupOf[t];
+
   // Scratch for the whole chunk.
   const boundHeapB = new Float64Array(k);
   const boundHeapI = new Int32Array(k);
@@ -174,35 +179,52 @@ export function knnChunk(task: KnnTask): KnnChunk {
     const qLeader = sameSet ? leaderOf[q] : q;
     const qLeaderDistance = sameSet ? leaderDistance[q] : 0;
 
-    // Stage 1: the k targets with the smallest AMD bounds, found by sweeping outwards along the key column.
-    const hi0 = sameSet ? index.position[q] : lowerBound(keys, nt, qKey);
-    let filled = 0;
-    let lo = hi0 - 1;
-    let hi = hi0;
-    for (;;) {
-      const dl = lo >= 0 ? qKey - keys[lo] : Infinity;
-      const dh = hi < nt ? keys[hi] - qKey : Infinity;
-      if (dl === Infinity && dh === Infinity) break;
-      const takeLow = dl <= dh;
-      const p = takeLow ? lo-- : hi++;
-      const t = order[p];
-      if (sameSet && t === q) continue;
-      const full = filled === k;
-      const worstB = full ? boundHeapB[k - 1] : Infinity;
-      if (full && (takeLow ? dl : dh) > worstB) break;
-      boundEvaluations++;
-      const b = bound(qAmd, qo, tAmd, t * dim, columns, dim, worstB);
-      if (!full || b < worstB || (b === worstB && t < boundHeapI[k - 1])) {
-        filled = insert(boundHeapB, boundHeapI, filled, k, b, t);
+    // Stage 1: k targets whose EMDs give a first k-th distance T (any k targets bound the k-th distance from
+    // above). Taken from the query's own group (mostly known already), then the leaders with the smallest AMD
+    // bounds (a sweep over groups along the key column), then, if groups are few and large, any others.
+    let found = 0;
+    if (sameSet) {
+      const g = groupOfLeaderOf(q);
+      for (let e = memberStart[g]; e < memberStart[g + 1] && found < k; e++) {
+        const t = members[e];
+        if (t === q) continue;
+        stamp[t] = q;
+        found = insert(bestD, bestI, found, k, distance(q, t), t);
       }
     }
-
-    // Stage 2: their EMDs give a first k-th distance T.
-    let found = 0;
-    for (let s = 0; s < filled; s++) {
-      const t = boundHeapI[s];
-      stamp[t] = q;
-      found = insert(bestD, bestI, found, k, distance(q, t), t);
+    const want = k - found;
+    let filled = 0;
+    if (want > 0) {
+      const g0 = lowerBound(groupKeys, ng, qKey);
+      let lo = g0 - 1;
+      let hi = g0;
+      for (;;) {
+        const dl = lo >= 0 ? qKey - groupKeys[lo] : Infinity;
+        const dh = hi < ng ? groupKeys[hi] - qKey : Infinity;
+        if (dl === Infinity && dh === Infinity) break;
+        const takeLow = dl <= dh;
+        const p = takeLow ? lo-- : hi++;
+        const t = groupLeader[groupOrder[p]];
+        if (stamp[t] === q || (sameSet && t === q)) continue;
+        const full = filled === want;
+        const worstB = full ? boundHeapB[want - 1] : Infinity;
+        if (full && (takeLow ? dl : dh) > worstB) break;
+        boundEvaluations++;
+        const b = bound(qAmd, qo, tAmd, t * dim, columns, dim, worstB);
+        if (!full || b < worstB || (b === worstB && t < boundHeapI[want - 1])) {
+          filled = insert(boundHeapB, boundHeapI, filled, want, b, t);
+        }
+      }
+      for (let s = 0; s < filled; s++) {
+        const t = boundHeapI[s];
+        stamp[t] = q;
+        found = insert(bestD, bestI, found, k, distance(q, t), t);
+      }
+      for (let t = 0; t < nt && found < k; t++) {
+        if (stamp[t] === q || (sameSet && t === q)) continue;
+        stamp[t] = q;
+        found = insert(bestD, bestI, found, k, distance(q, t), t);
+      }
     }
 
     // Stage 3: best-first search over groups, then members. A group can hold a neighbour only if its leader's key
