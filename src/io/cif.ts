@@ -178,26 +178,25 @@ export function cifNumberIn(text: string, from: number, to: number): number {
     negative = c === 45;
     i++;
   }
-  // Mantissa digits are gathered as an integer while it stays exact (< 2^53), for the fast path below.
+  // Mantissa digits are gathered as an integer, exact while there are at most 15 digits (< 2^53), for the
+  // fast path below.
   let mantissa = 0;
-  let mantissaDigits = 0;
-  let digits = 0;
-  let scale = 0;
+  const intStart = i;
   while (i < n && isDigit((c = text.charCodeAt(i)))) {
-    if (mantissaDigits > 0 || c !== 48) mantissaDigits++;
     mantissa = mantissa * 10 + (c - 48);
     i++;
-    digits++;
   }
+  let digits = i - intStart;
+  let scale = 0;
   if (i < n && text.charCodeAt(i) === 46) {
     i++;
+    const fracStart = i;
     while (i < n && isDigit((c = text.charCodeAt(i)))) {
-      if (mantissaDigits > 0 || c !== 48) mantissaDigits++;
       mantissa = mantissa * 10 + (c - 48);
-      scale--;
       i++;
-      digits++;
     }
+    scale = fracStart - i;
+    digits -= scale;
   }
   if (digits === 0) return NaN;
   let exponent = 0;
@@ -233,7 +232,7 @@ export function cifNumberIn(text: string, from: number, to: number): number {
   // Fast path (Clinger, "How to read floating point numbers accurately", PLDI 1990): an integer mantissa
   // below 2^53 scaled by an exact power of ten (|k| <= 22) is rounded once, so it equals Number(text).
   const k = scale + exponent;
-  if (mantissaDigits <= 15 && k >= -22 && k <= 22) {
+  if (digits <= 15 && k >= -22 && k <= 22) {
     const v = k < 0 ? mantissa / POW10[-k]! : mantissa * POW10[k]!;
     return negative ? -v : v;
   }
@@ -399,32 +398,25 @@ function isValue(tok: TokenType): boolean {
 const NAME_SLOTS = 4096;
 const nameSlots: (string | undefined)[] = new Array(NAME_SLOTS).fill(undefined);
 
+/** FNV-1a hash constants (Fowler, Noll, Vo; common practice), 32-bit. */
+const FNV_OFFSET = 0x811c9dc5;
+const FNV_PRIME = 0x01000193;
+
 /**
- * s[i, j) lower-cased, taken from `nameSlots` when the same name (in any case) was seen before, so the common
- * case makes no new string. Names with non-ASCII characters are lower-cased by the full Unicode rule, uncached.
+ * s[i, j) (an ASCII name whose FNV-1a hash of ASCII-lower-cased characters is `hash`) lower-cased, taken from
+ * `nameSlots` when the same name in any case was seen before, so the common case makes no new string.
  */
-function lowerName(s: string, i: number, j: number): string {
-  // FNV-1a hash (Fowler, Noll, Vo; common practice) of the ASCII-lower-cased characters.
-  let h = 0x811c9dc5;
-  for (let k = i; k < j; k++) {
-    let c = s.charCodeAt(k);
-    if (c >= 128) return s.slice(i, j).toLowerCase();
-    if (c >= 65 && c <= 90) c += 32;
-    h = Math.imul(h ^ c, 0x01000193);
-  }
-  const slot = (h >>> 0) & (NAME_SLOTS - 1);
+function lowerName(s: string, i: number, j: number, hash: number): string {
+  const slot = (hash >>> 0) & (NAME_SLOTS - 1);
   const seen = nameSlots[slot];
   if (seen !== undefined && seen.length === j - i) {
-    let same = true;
-    for (let k = i; k < j; k++) {
+    let k = i;
+    for (; k < j; k++) {
       let c = s.charCodeAt(k);
       if (c >= 65 && c <= 90) c += 32;
-      if (c !== seen.charCodeAt(k - i)) {
-        same = false;
-        break;
-      }
+      if (c !== seen.charCodeAt(k - i)) break;
     }
-    if (same) return seen;
+    if (k === j) return seen;
   }
   const name = s.slice(i, j).toLowerCase();
   nameSlots[slot] = name;
@@ -520,6 +512,25 @@ class Tokenizer {
       return TokenType.Value;
     }
 
+    if (c === 95) {
+      // _name: runs to white space; hashed on the way for lowerName.
+      let h = Math.imul(FNV_OFFSET ^ 95, FNV_PRIME);
+      let ascii = true;
+      let j = i + 1;
+      for (; j < n; j++) {
+        let d = s.charCodeAt(j);
+        if (d <= 32) break;
+        if (d >= 128) ascii = false;
+        else if (d >= 65 && d <= 90) d += 32;
+        h = Math.imul(h ^ d, FNV_PRIME);
+      }
+      this.pos = j;
+      this.start = i;
+      this.end = j;
+      // Lower-cased, as names match case-insensitively.
+      this.value = ascii ? lowerName(s, i, j, h) : s.slice(i, j).toLowerCase();
+      return TokenType.Name;
+    }
     // Bare token: runs to white space.
     let j = i + 1;
     while (j < n && s.charCodeAt(j) > 32) j++;
@@ -527,11 +538,6 @@ class Tokenizer {
     const len = j - i;
     this.start = i;
     this.end = j;
-    if (c === 95) {
-      // _name, lower-cased (names match case-insensitively)
-      this.value = lowerName(s, i, j);
-      return TokenType.Name;
-    }
     if (len === 1 && c === 63) {
       this.kind = ValueKind.Unknown;
       return TokenType.Value;
