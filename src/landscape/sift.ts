@@ -486,6 +486,7 @@ export async function sift(opts: SiftOptions): Promise<SiftRun> {
         cmpChanged = true;
       }
     }
+    t = lap('families', t);
     if (cachedEmbedding) {
       embedding = cachedEmbedding;
       reused.push('metric map');
@@ -502,6 +503,7 @@ export async function sift(opts: SiftOptions): Promise<SiftRun> {
     if (!clusterable) messages.push(`families not computed: ${nKept} kept structure(s), fewer than the minimum family size or samples`);
     progress.done();
   }
+  t = lap(nKept >= 2 ? 'metric map' : 'families', t);
   if (opts.cacheDir && cmpChanged) saveComparisons(opts.cacheDir, cacheParams, cmp);
   const families: Family[] = [];
   for (let r = 0; r < nKept; r++) {
@@ -512,7 +514,6 @@ export async function sift(opts: SiftOptions): Promise<SiftRun> {
     families[f].members.push(items[keptLocal[r]].row.index);
   }
   for (const w of items) if (w.row.status === 'duplicate') w.row.family = work[w.row.keptIndex!].row.family;
-  t = lap('families', t);
 
   // ---- the landscape ----
   const rows = work.map((w) => roundRow(w.row));
