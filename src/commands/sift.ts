@@ -53,7 +53,7 @@ export function registerSift(program: Command): void {
     .option('--hydrogens <keep|drop>', 'keep or drop hydrogen (and deuterium) atoms in the comparison', 'keep')
     .option('--neighbours <n>', 'nearest kept neighbours recorded per kept structure', String(DEFAULT_NEIGHBOURS))
     .option('--threads <n>', 'worker threads (default: available cores)')
-    .option('--cache <dir>', `folder of the invariants cache (default: <out>/${CACHE_FOLDER})`)
+    .option('--cache <dir>', `folder of the invariants and comparisons cache (default: <out>/${CACHE_FOLDER})`)
     .option('--no-cache', 'neither read nor write the invariants cache')
     .option('--title <text>', 'title of report.html')
     .option('--json', 'print a JSON summary on stdout')
