@@ -26,15 +26,15 @@ export enum ValueKind {
 
 /**
  * A loop: `names.length` columns, values stored row-major in flat arrays (no object and no string per value):
- * each value is the range [starts[i], ends[i]) of the block text (inside the quotes or text-field markers).
+ * each value is a range of the block text (inside the quotes or text-field markers) kept in the block's `values`.
  */
 export interface CifLoop {
   /** Lower-cased data names, in the order written. */
   names: string[];
-  starts: Int32Array;
-  ends: Int32Array;
-  /** ValueKind of each value. */
-  kinds: Uint8Array;
+  /** Index in the block's `values` of the loop's first value; values follow row by row. */
+  first: number;
+  /** Number of values (a multiple of names.length). */
+  count: number;
   /** 1-based line of `loop_`. */
   line: number;
 }
@@ -43,7 +43,7 @@ export interface CifLoop {
 export interface CifItem {
   /** The loop holding this name, or null for a single item. */
   loop: CifLoop | null;
-  /** Column within the loop; for a single item, its index in the block's `singles` arrays. */
+  /** Column within the loop; for a single item, the index of its value in the block's `values`. */
   col: number;
   /** Single item: its value's range in the block text, kind and line (unused for loop items). */
   start: number;
@@ -64,8 +64,11 @@ export interface CifBlock {
   /** Data name (lower-cased) -> where its values are. */
   items: Map<string, CifItem>;
   loops: CifLoop[];
-  /** Ranges and kinds of all single (non-looped) item values, so a single item is read as a column too. */
-  singles: { starts: Int32Array; ends: Int32Array; kinds: Uint8Array };
+  /**
+   * Every value of the block (looped or single) as a triple: value v is text[values[3v], values[3v + 1]) with
+   * ValueKind values[3v + 2]. One array per block, so parsing allocates little.
+   */
+  values: Int32Array;
   /** Things that are not fatal but a user should hear about (duplicate names, skipped save frames). */
   warnings: string[];
 }
@@ -83,11 +86,9 @@ export class CifSyntaxError extends Error {
 
 /** A column of values: the loop column or a single item seen as a one-value column. */
 export interface CifColumn {
-  /** Block text; value i of the column is text[starts[k], ends[k]) with k = offset + i * stride. */
+  /** Block text; value i of the column is block value k = offset + i * stride (see CifBlock.values). */
   text: string;
-  starts: Int32Array;
-  ends: Int32Array;
-  kinds: Uint8Array;
+  values: Int32Array;
   /** The loop the values come from (null for a single item): columns of one loop share it. */
   loop: CifLoop | null;
   /** 1-based file line of the block text's first character (lines of values are counted from it on demand). */
@@ -104,42 +105,39 @@ export function cifColumn(block: CifBlock, name: string): CifColumn | null {
   const item = block.items.get(name.toLowerCase());
   if (!item) return null;
   if (item.loop === null) {
-    const one = block.singles;
-    return { text: block.text, starts: one.starts, ends: one.ends, kinds: one.kinds, loop: null, firstLine: block.firstLine, stride: 1, offset: item.col, length: 1 };
+    return { text: block.text, values: block.values, loop: null, firstLine: block.firstLine, stride: 1, offset: item.col, length: 1 };
   }
   const w = item.loop.names.length;
   return {
     text: block.text,
-    starts: item.loop.starts,
-    ends: item.loop.ends,
-    kinds: item.loop.kinds,
+    values: block.values,
     loop: item.loop,
     firstLine: block.firstLine,
     stride: w,
-    offset: item.col,
-    length: item.loop.starts.length / w,
+    offset: item.loop.first + item.col,
+    length: item.loop.count / w,
   };
 }
 
 /** Text of value i of a column. */
 export function valueAt(col: CifColumn, i: number): string {
   const k = col.offset + i * col.stride;
-  return col.text.slice(col.starts[k], col.ends[k]);
+  return col.text.slice(col.values[3 * k], col.values[3 * k + 1]);
 }
 
 /** Value i of a column as a CIF number (NaN when it is not one); parsed in place, no string made. */
 export function numberAt(col: CifColumn, i: number): number {
   const k = col.offset + i * col.stride;
-  return cifNumberIn(col.text, col.starts[k]!, col.ends[k]!);
+  return cifNumberIn(col.text, col.values[3 * k]!, col.values[3 * k + 1]!);
 }
 
 export function kindAt(col: CifColumn, i: number): ValueKind {
-  return col.kinds[col.offset + i * col.stride] as ValueKind;
+  return col.values[3 * (col.offset + i * col.stride) + 2] as ValueKind;
 }
 
 /** 1-based file line of value i of a column (counted on demand: lines are needed only in messages). */
 export function lineAt(col: CifColumn, i: number): number {
-  const end = col.starts[col.offset + i * col.stride]!;
+  const end = col.values[3 * (col.offset + i * col.stride)]!;
   let line = col.firstLine;
   for (let p = col.text.indexOf('\n'); p >= 0 && p < end; p = col.text.indexOf('\n', p + 1)) line++;
   return line;
@@ -147,15 +145,15 @@ export function lineAt(col: CifColumn, i: number): number {
 
 /** True when values i and j of a column (i before j) sit on the same line. */
 export function sameLineAt(col: CifColumn, i: number, j: number): boolean {
-  const from = col.ends[col.offset + i * col.stride]!;
-  const to = col.starts[col.offset + j * col.stride]!;
+  const from = col.values[3 * (col.offset + i * col.stride) + 1]!;
+  const to = col.values[3 * (col.offset + j * col.stride)]!;
   const p = col.text.indexOf('\n', from);
   return p < 0 || p >= to;
 }
 
 /** True when value i is the unquoted `?` or `.` (unknown or inapplicable). */
 export function isMissingAt(col: CifColumn, i: number): boolean {
-  const k = col.kinds[col.offset + i * col.stride] as ValueKind;
+  const k = col.values[3 * (col.offset + i * col.stride) + 2] as ValueKind;
   return k === ValueKind.Unknown || k === ValueKind.Inapplicable;
 }
 
@@ -255,10 +253,10 @@ export function parseCifBlock(text: string, firstLine = 1): CifBlock {
   if (tok !== TokenType.DataHeader) {
     throw new CifSyntaxError(tok === TokenType.End ? 'no data_ block found' : `expected a data_ line, found '${clip(text.slice(t.start, t.end))}'`, t.line);
   }
-  const block: CifBlock = { name: t.value, line: t.line, text, firstLine, items: new Map(), loops: [], singles: NO_SINGLES, warnings: [] };
-  // Value ranges are gathered in reused scratch arrays and copied out at exact size (few allocations per block).
-  const one = singleScratch;
-  one.count = 0;
+  const block: CifBlock = { name: t.value, line: t.line, text, firstLine, items: new Map(), loops: [], values: NO_VALUES, warnings: [] };
+  // Value ranges are gathered in a reused scratch array and copied out at exact size (one allocation per block).
+  const vals = scratch;
+  vals.count = 0;
   if (block.name.length === 0) throw new CifSyntaxError("'data_' must be followed by a block name", t.line);
 
   tok = t.next();
@@ -271,28 +269,27 @@ export function parseCifBlock(text: string, firstLine = 1): CifBlock {
         if (!isValue(tok)) {
           throw new CifSyntaxError(`data name ${name} has no value`, nameLine);
         }
-        if (addItem(block, name, { loop: null, col: one.count, start: t.start, end: t.end, kind: t.kind, line: t.line }, nameLine)) {
-          one.add(t.start, t.end, t.kind);
+        if (addItem(block, name, { loop: null, col: vals.count, start: t.start, end: t.end, kind: t.kind, line: t.line }, nameLine)) {
+          vals.add(t.start, t.end, t.kind);
         }
         tok = t.next();
         break;
       }
       case TokenType.Loop: {
-        const loop: CifLoop = { names: [], starts: NO_INTS, ends: NO_INTS, kinds: NO_KINDS, line: t.line };
+        const loop: CifLoop = { names: [], first: vals.count, count: 0, line: t.line };
         tok = t.next();
         while (tok === TokenType.Name) {
           loop.names.push(t.value);
           tok = t.next();
         }
         if (loop.names.length === 0) throw new CifSyntaxError('loop_ has no data names', loop.line);
-        const vals = loopScratch;
-        vals.count = 0;
         while (isValue(tok)) {
           vals.add(t.start, t.end, t.kind);
           tok = t.next();
         }
         const w = loop.names.length;
-        const count = vals.count;
+        const count = vals.count - loop.first;
+        loop.count = count;
         if (count === 0) {
           throw new CifSyntaxError(`loop_ (${loop.names[0]} ...) has names but no values`, loop.line);
         }
@@ -304,9 +301,6 @@ export function parseCifBlock(text: string, firstLine = 1): CifBlock {
             loop.line,
           );
         }
-        loop.starts = vals.starts.slice(0, count);
-        loop.ends = vals.ends.slice(0, count);
-        loop.kinds = vals.kinds.slice(0, count);
         block.loops.push(loop);
         for (let c = 0; c < w; c++) {
           addItem(block, loop.names[c]!, { loop, col: c, start: 0, end: 0, kind: ValueKind.Bare, line: loop.line }, loop.line);
@@ -340,42 +334,31 @@ export function parseCifBlock(text: string, firstLine = 1): CifBlock {
         throw new CifSyntaxError(`value '${clip(text.slice(t.start, t.end))}' has no data name before it`, t.line);
     }
   }
-  block.singles = { starts: one.starts.slice(0, one.count), ends: one.ends.slice(0, one.count), kinds: one.kinds.slice(0, one.count) };
+  block.values = vals.data.slice(0, 3 * vals.count);
   return block;
 }
 
-/** Growable value ranges (start, end, kind), reused from block to block. */
-class RangeScratch {
-  starts = new Int32Array(1024);
-  ends = new Int32Array(1024);
-  kinds = new Uint8Array(1024);
+/** Growable list of value triples (start, end, kind), reused from block to block. */
+class ValueScratch {
+  data = new Int32Array(3 * 1024);
   count = 0;
 
   add(start: number, end: number, kind: ValueKind): void {
-    if (this.count === this.starts.length) {
-      const n = 2 * this.count;
-      const s = new Int32Array(n);
-      s.set(this.starts);
-      this.starts = s;
-      const e = new Int32Array(n);
-      e.set(this.ends);
-      this.ends = e;
-      const k = new Uint8Array(n);
-      k.set(this.kinds);
-      this.kinds = k;
+    const at = 3 * this.count;
+    if (at === this.data.length) {
+      const grown = new Int32Array(2 * at);
+      grown.set(this.data);
+      this.data = grown;
     }
-    this.starts[this.count] = start;
-    this.ends[this.count] = end;
-    this.kinds[this.count] = kind;
+    this.data[at] = start;
+    this.data[at + 1] = end;
+    this.data[at + 2] = kind;
     this.count++;
   }
 }
 
-const loopScratch = new RangeScratch();
-const singleScratch = new RangeScratch();
-const NO_INTS = new Int32Array(0);
-const NO_KINDS = new Uint8Array(0);
-const NO_SINGLES = { starts: NO_INTS, ends: NO_INTS, kinds: NO_KINDS };
+const scratch = new ValueScratch();
+const NO_VALUES = new Int32Array(0);
 
 // ---- tokenizer -------------------------------------------------------------------------------------
 

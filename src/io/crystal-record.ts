@@ -203,16 +203,14 @@ function readListedOps(block: CifBlock, notes: string[]): { ops: SymOp[]; textKe
   const bareLoop = col.stride === 1;
   let joined = false;
   for (let r = 0; r < col.length; r++) {
-    const idx = col.offset + r * col.stride;
-    const kind = col.kinds[idx]!;
+    const kind = kindAt(col, r);
     if (kind === ValueKind.Unknown || kind === ValueKind.Inapplicable) continue;
     let text = valueAt(col, r);
     const first = r;
     if (bareLoop && kind === ValueKind.Bare) {
       // Join split pieces on the same line: `-x,` `y,` `-z` -> `-x,y,-z`.
       while (needsMore(text) && r + 1 < col.length) {
-        const nx = col.offset + (r + 1) * col.stride;
-        if (!sameLineAt(col, r, r + 1) || col.kinds[nx] !== ValueKind.Bare) break;
+        if (!sameLineAt(col, r, r + 1) || kindAt(col, r + 1) !== ValueKind.Bare) break;
         r++;
         text += valueAt(col, r);
         joined = true;
