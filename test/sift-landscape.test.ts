@@ -86,7 +86,8 @@ describe('sift families above the dense limit', async () => {
   it('gives the same families and neighbours from the lazy path (neighbour graph + AMD bound) as from the full matrix', async () => {
     const base = { inputs: [join(dir, 'landscape.cif')], energiesFile: join(dir, 'energies.csv'), threads: 1, cacheDir: join(dir, 'cache'), minFamilySize: 2 };
     const dense = await sift(base);
-    const lazy = await sift({ ...base, denseLimit: 2 });
+    // Two threads: lazy HDBSCAN and the landmark map then run in worker threads side by side.
+    const lazy = await sift({ ...base, denseLimit: 2, threads: 2 });
     expect(lazy.landscape.counts.kept).toBe(K);
     expect(lazy.landscape.structures.map((r) => r.family)).toEqual(dense.landscape.structures.map((r) => r.family));
     expect(lazy.landscape.edges).toEqual(dense.landscape.edges);

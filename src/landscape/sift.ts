@@ -20,16 +20,15 @@ import { mapInWorkers, chunkRanges, defaultThreads } from '../parallel/pool.js';
 import { computeInvariants } from '../invariants/batch.js';
 import { pdd as computePdd } from '../invariants/pdd.js';
 import { amd as computeAmd } from '../invariants/amd.js';
-import { emd, amdDistance } from '../metric/emd.js';
 import { distanceMatrix, nearestAcross, nearestNeighbours, pairsWithin } from '../metric/graph.js';
-import { hdbscanDense, hdbscanLazy, coreDistancesFromNeighbours } from '../cluster/hdbscan.js';
+import { hdbscanDense, coreDistancesFromNeighbours } from '../cluster/hdbscan.js';
 import { embed2d } from '../cluster/embedding.js';
-import { embed2dLandmarks } from '../cluster/embedding-landmarks.js';
 import { convergenceCurve, defaultWindows } from './convergence.js';
 import { collapseDuplicates, visitOrder } from './collapse.js';
 import { blockKey, cacheFileName, loadCache, saveCache, type CacheEntry } from './cache.js';
 import { emptyComparisons, listKey, loadComparisons, saveComparisons, type Comparisons } from './compare-cache.js';
 import type { Prepared, PrepareInput } from './prepare.js';
+import type { KeptResult, KeptTask } from './kept-work.js';
 import { prepareChunk } from './prepare.js';
 import { VERSION } from '../version.js';
 import { makeProgress, type Progress } from '../progress.js';
@@ -439,17 +438,6 @@ export async function sift(opts: SiftOptions): Promise<SiftRun> {
   // ---- families (HDBSCAN over kept structures) and the metric map ----
   const familyLabels = new Int32Array(nKept).fill(-1);
   let embedding: Embedding | null = null;
-  // EMDs asked for on this thread (lazy HDBSCAN, landmark map) are remembered, since both ask for many of the same pairs.
-  const memo = new Map<number, number>();
-  const keptEmd = (a: number, b: number): number => {
-    const key = a < b ? a * nKept + b : b * nKept + a;
-    let d = memo.get(key);
-    if (d === undefined) {
-      d = emd(keptItems[a].pdd, keptItems[b].pdd);
-      memo.set(key, d);
-    }
-    return d;
-  };
   if (nKept >= 2) {
     progress.stage('families and metric map', nKept);
     const hdbOptions = { minClusterSize: params.minFamilySize, minSamples: params.minSamples };
@@ -471,17 +459,24 @@ export async function sift(opts: SiftOptions): Promise<SiftRun> {
         cmpChanged = true;
       }
     }
+    // Above the dense limit, lazy HDBSCAN and the landmark map run side by side in worker threads.
+    const tasks: KeptTask[] = [];
+    if (clusterable && !cachedLabels && !dense) {
+      const core = coreDistancesFromNeighbours(keptNbr!.distances, nKept, keptNbr!.k, params.minSamples);
+      tasks.push({ kind: 'families', pdds: keptItems.map((x) => x.pdd), amds: keptItems.map((x) => x.amd), core, minFamilySize: params.minFamilySize, minSamples: params.minSamples });
+    }
+    if (!cachedEmbedding && !dense) {
+      if (nKept <= EMBED_LIMIT) tasks.push({ kind: 'map', pdds: keptItems.map((x) => x.pdd), landmarks: LANDMARKS });
+      else messages.push(`no metric map: ${nKept} kept structures is more than ${EMBED_LIMIT}`);
+    }
+    const done = await mapInWorkers<KeptTask, KeptResult>(new URL(`./kept-work${extOf()}`, import.meta.url).href, 'keptTask', tasks, { threads });
     if (clusterable) {
       if (cachedLabels) {
         familyLabels.set(cachedLabels.labels);
         reused.push('families');
-      }
-      else {
+      } else {
         if (dense) familyLabels.set(hdbscanDense(dist!, nKept, hdbOptions).labels);
-        else {
-          const core = coreDistancesFromNeighbours(keptNbr!.distances, nKept, keptNbr!.k, params.minSamples);
-          familyLabels.set(hdbscanLazy(nKept, keptEmd, (a, b) => amdDistance(keptItems[a].amd, keptItems[b].amd), core, hdbOptions).labels);
-        }
+        else for (const r of done) if (r.kind === 'families') familyLabels.set(r.labels);
         cmp.labels.push({ keptKey, minFamilySize: params.minFamilySize, minSamples: params.minSamples, dense, labels: Array.from(familyLabels) });
         cmpChanged = true;
       }
@@ -490,11 +485,9 @@ export async function sift(opts: SiftOptions): Promise<SiftRun> {
     if (cachedEmbedding) {
       embedding = cachedEmbedding;
       reused.push('metric map');
-    }
-    else {
+    } else {
       if (dense) embedding = embeddingOf(embed2d(dist!, nKept));
-      else if (nKept <= EMBED_LIMIT) embedding = embeddingOf(embed2dLandmarks(nKept, keptEmd, { landmarks: LANDMARKS }));
-      else messages.push(`no metric map: ${nKept} kept structures is more than ${EMBED_LIMIT}`);
+      else for (const r of done) if (r.kind === 'map') embedding = embeddingOf(r.embedding);
       if (embedding) {
         cmp.embedding = { keptKey, method: embedding.method, embedding };
         cmpChanged = true;
