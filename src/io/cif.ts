@@ -247,6 +247,17 @@ for (let k = 0, p = 1; k <= 22; k++, p *= 10) POW10.push(p);
  * Throws CifSyntaxError (with the line) on text that is not CIF 1.1.
  */
 export function parseCifBlock(text: string, firstLine = 1): CifBlock {
+  const block = parseCifBlockShared(text, firstLine);
+  block.values = block.values.slice(0, 3 * scratch.count);
+  return block;
+}
+
+/**
+ * parseCifBlock without copying the value ranges out: `values` is a scratch array shared by all parses, valid
+ * only until the next parse. For callers that are done with the block before parsing another (saves one
+ * array allocation per block on the streaming path).
+ */
+export function parseCifBlockShared(text: string, firstLine = 1): CifBlock {
   const t = new Tokenizer(text, firstLine);
   let tok = t.next();
   // A block may be preceded by comments only; its first token must be data_.
@@ -334,7 +345,7 @@ export function parseCifBlock(text: string, firstLine = 1): CifBlock {
         throw new CifSyntaxError(`value '${clip(text.slice(t.start, t.end))}' has no data name before it`, t.line);
     }
   }
-  block.values = vals.data.slice(0, 3 * vals.count);
+  block.values = vals.data;
   return block;
 }
 

@@ -14,7 +14,7 @@ import {
   kindAt,
   lineAt,
   numberAt,
-  parseCifBlock,
+  parseCifBlockShared,
   sameLineAt,
   valueAt,
   ValueKind,
@@ -54,7 +54,8 @@ export function blockResult(raw: RawBlock, file: string, opts: ReadOptions = {})
   }
   let block: CifBlock;
   try {
-    block = parseCifBlock(raw.text, raw.line);
+    // The block is finished with before the next parse, so its value ranges may stay in the shared scratch.
+    block = parseCifBlockShared(raw.text, raw.line);
   } catch (e) {
     if (e instanceof CifSyntaxError) return reject(raw, file, `line ${e.line}: ${e.message}`);
     return reject(raw, file, `unexpected failure while parsing: ${(e as Error).message}`);
