@@ -142,7 +142,8 @@ export function knnChunk(task: KnnTask): KnnChunk {
   };
 
   // Row-minimum bound of the pair (q, t), computed from the smaller index within one set so that it is one number
-  // per pair; with limit = Infinity it is complete and cached.
+  // per pair. A computation cut short at `limit` still gives a lower bound (a partial sum of non-negative terms), so
+  // whatever comes back is cached.
   const rowMin = (q: number, t: number, limit: number): number => {
     const a = sameSet && t < q ? t : q;
     const b = sameSet && t < q ? q : t;
@@ -159,7 +160,7 @@ export function knnChunk(task: KnnTask): KnnChunk {
       dim,
       limit,
     );
-    if (limit === Infinity) rowMinCache.set(a, b, v);
+    rowMinCache.set(a, b, v);
     return v;
   };
 
@@ -252,7 +253,7 @@ export function knnChunk(task: KnnTask): KnnChunk {
         let raised = key;
         const own = sameSet ? gLeader === qLeader : false;
         while (!own && level < GROUP_EXPAND && raised === key) {
-          const through = level === GROUP_AMD ? rowMin(qLeader, gLeader, Infinity) : distance(qLeader, gLeader);
+          const through = level === GROUP_AMD ? rowMin(qLeader, gLeader, limitNow + qLeaderDistance + groupRadius[g]) : distance(qLeader, gLeader);
           level = level === GROUP_AMD ? GROUP_EMD : GROUP_EXPAND;
           const lb = through - qLeaderDistance - groupRadius[g];
           if (lb > raised) raised = lb;
