@@ -77,19 +77,19 @@ describe('byte splitter', () => {
     );
   });
 
-  it('keeps memory to the block in progress: a long stream of small blocks in small pushes', () => {
-    const sp = new CifByteSplitter();
-    const out: RawBlock[] = [];
-    const one = Buffer.from(block('x'));
-    let count = 0;
-    for (let i = 0; i < 20000; i++) {
-      sp.push(one, out);
-      count += out.length;
-      out.length = 0;
-    }
-    sp.end(out);
-    count += out.length;
-    // Each block text holds two data_ lines by the rule (the indented one starts its own block).
-    expect(count).toBe(40000);
+  it('reuses its buffer over a long stream of small pushes and grows it for a block larger than the buffer', () => {
+    // 20000 copies of one block (about 6 MB, past the 4 MiB buffer, so emitted bytes are dropped and the rest
+    // moved to the front), then one block of about 6 MB in a text field (the buffer must grow to hold it).
+    const one = block('x');
+    const big = `data_big\n_note\n;\n${'long line of text in a field\n'.repeat(220_000)};\n_cell_length_a 5\n`;
+    const text = one.repeat(20000) + big;
+    const bytes = Buffer.from(text, 'utf8');
+    const cuts: number[] = [];
+    for (let c = 65536; c < bytes.length; c += 65536) cuts.push(c);
+    const got = byBytes(bytes, cuts);
+    // Each copy of the block holds two data_ lines by the rule (its indented DATA_ line starts a block).
+    expect(got.length).toBe(40001);
+    expect(got).toEqual(byText(text));
+    expect(got[got.length - 1]!.text).toBe(big);
   });
 });

@@ -2,6 +2,9 @@
 // first token is `data_...`, unless that line lies inside a semicolon text field (CIF 1.1: a text field opens
 // and closes with a `;` in column 1, and a quoted string cannot span lines, so a per-line state is exact).
 // Only whole lines are examined; a partial last line is carried to the next chunk.
+// Two splitters apply the same rule: CifBlockSplitter on text (readCifText, text already in memory) and
+// CifByteSplitter on raw bytes before decoding (the streaming path in ./read.ts); test/cif-stream.test.ts checks
+// that they agree for any cut of the stream.
 
 import { isAscii } from 'node:buffer';
 
