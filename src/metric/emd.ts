@@ -112,6 +112,12 @@ class Workspace {
   queue = new Int32Array(0);
   unionParent = new Int32Array(0);
   componentArc = new Int32Array(0);
+  firstChild = new Int32Array(0);
+  nextSibling = new Int32Array(0);
+  prevSibling = new Int32Array(0);
+  /** Set by `pivot`: the lower end of the leaving arc, and whether it hangs below the entering arc's row end. */
+  leaveChild = -1;
+  leaveOnRowSide = true;
 
   ensure(m: number, n: number): void {
     if (m > this.capRows || n > this.capCols) {
@@ -141,6 +147,9 @@ class Workspace {
       this.queue = new Int32Array(nodes);
       this.unionParent = new Int32Array(nodes);
       this.componentArc = new Int32Array(nodes);
+      this.firstChild = new Int32Array(nodes);
+      this.nextSibling = new Int32Array(nodes);
+      this.prevSibling = new Int32Array(nodes);
     }
   }
 }
@@ -309,7 +318,7 @@ function solve(
       throw new Error(`EMD solver did not converge within ${pivotLimit} pivots (${m} x ${n} rows); please report this input`);
     }
     pivot(ws, enter, m, n);
-    rebuildTree(ws, nodes, root);
+    updateTree(ws, enter, m, n);
   }
 
   let total = 0;
@@ -346,11 +355,14 @@ function pivot(w0: Workspace, enter: number, m: number, n: number): void {
   // visits it in reverse walk order, so among equal flows the first one met (nearest u) is the last in walk order.
   let theta = Infinity;
   let leave = -1;
+  let leaveChild = -1;
+  let leaveOnRowSide = true;
   for (let w = u; w !== apex; w = parent[w]) {
     const a = parentArc[w];
     if (arcTail[a] === w && arcFlow[a] < theta) {
       theta = arcFlow[a];
       leave = a;
+      leaveChild = w;
     }
   }
   // On the v side (walked upwards) an arc loses flow when it points down (parent -> child); climbing from v is walk
@@ -360,8 +372,12 @@ function pivot(w0: Workspace, enter: number, m: number, n: number): void {
     if (arcHead[a] === w && arcFlow[a] <= theta) {
       theta = arcFlow[a];
       leave = a;
+      leaveChild = w;
+      leaveOnRowSide = false;
     }
   }
+  w0.leaveChild = leaveChild;
+  w0.leaveOnRowSide = leaveOnRowSide;
   if (leave < 0) throw new Error('EMD solver: pivot cycle has no blocking arc (internal error)');
   lastSolve.degeneratePivots += theta === 0 ? 1 : 0;
 
@@ -387,7 +403,9 @@ function pivot(w0: Workspace, enter: number, m: number, n: number): void {
 /** Parent pointers, depths and node potentials of the current tree, by breadth-first search from the root. */
 function rebuildTree(w0: Workspace, nodes: number, root: number): void {
   const { arcTail, arcHead, arcCost, parent, parentArc, depth, potential, adjStart, adjFill, adjArc, queue } = w0;
+  const { firstChild, nextSibling, prevSibling } = w0;
   const arcs = nodes - 1;
+  for (let v = 0; v < nodes; v++) firstChild[v] = -1;
   for (let v = 0; v <= nodes; v++) adjStart[v] = 0;
   for (let a = 0; a < arcs; a++) {
     adjStart[arcTail[a] + 1]++;
@@ -417,10 +435,69 @@ function rebuildTree(w0: Workspace, nodes: number, root: number): void {
       parentArc[child] = a;
       depth[child] = depth[w] + 1;
       potential[child] = arcTail[a] === w ? potential[w] + arcCost[a] : potential[w] - arcCost[a];
+      addChild(firstChild, nextSibling, prevSibling, w, child);
       queue[tail++] = child;
     }
   }
   if (tail !== nodes) throw new Error('EMD solver: basis is not a spanning tree (internal error)');
+}
+
+/**
+ * After `pivot`: the subtree below the leaving arc is re-hung from the entering arc. The tree path from the
+ * entering arc's end on that side up to the leaving arc's lower end reverses; then depths and potentials are
+ * recomputed in that subtree only, each from its parent by the same formula as `rebuildTree`, so the values are
+ * bit for bit those a full rebuild would give (the rest of the tree keeps its root paths).
+ */
+function updateTree(w0: Workspace, enter: number, m: number, n: number): void {
+  const { arcTail, arcCost, parent, parentArc, depth, potential, queue, firstChild, nextSibling, prevSibling } = w0;
+  const i = (enter / n) | 0;
+  const j = enter - i * n;
+  const q = w0.leaveChild;
+  const x = w0.leaveOnRowSide ? i : m + j;
+  const y = w0.leaveOnRowSide ? m + j : i;
+  // The entering arc now sits in the leaving arc's slot (see `pivot`).
+  let prevArc = parentArc[q];
+  let prev = y;
+  let w = x;
+  for (;;) {
+    const oldParent = parent[w];
+    const oldArc = parentArc[w];
+    removeChild(firstChild, nextSibling, prevSibling, oldParent, w);
+    parent[w] = prev;
+    parentArc[w] = prevArc;
+    addChild(firstChild, nextSibling, prevSibling, prev, w);
+    if (w === q) break;
+    prev = w;
+    prevArc = oldArc;
+    w = oldParent;
+  }
+  // Depth-first walk of the re-hung subtree (stack in `queue`).
+  let top = 0;
+  queue[top++] = x;
+  while (top > 0) {
+    const v = queue[--top];
+    const p = parent[v];
+    const a = parentArc[v];
+    depth[v] = depth[p] + 1;
+    potential[v] = arcTail[a] === p ? potential[p] + arcCost[a] : potential[p] - arcCost[a];
+    for (let c = firstChild[v]; c >= 0; c = nextSibling[c]) queue[top++] = c;
+  }
+}
+
+function addChild(firstChild: Int32Array, nextSibling: Int32Array, prevSibling: Int32Array, p: number, c: number): void {
+  const f = firstChild[p];
+  nextSibling[c] = f;
+  prevSibling[c] = -1;
+  if (f >= 0) prevSibling[f] = c;
+  firstChild[p] = c;
+}
+
+function removeChild(firstChild: Int32Array, nextSibling: Int32Array, prevSibling: Int32Array, p: number, c: number): void {
+  const before = prevSibling[c];
+  const after = nextSibling[c];
+  if (before >= 0) nextSibling[before] = after;
+  else firstChild[p] = after;
+  if (after >= 0) prevSibling[after] = before;
 }
 
 function find(unionParent: Int32Array, v: number): number {
