@@ -102,7 +102,7 @@ export interface CifColumn {
 
 /** The values of `name` (case-insensitive) as a column, or null when the block does not have it. */
 export function cifColumn(block: CifBlock, name: string): CifColumn | null {
-  const item = block.items.get(name.toLowerCase());
+  const item = block.items.get(lowerQuery(name));
   if (!item) return null;
   if (item.loop === null) {
     return { text: block.text, values: block.values, loop: null, firstLine: block.firstLine, stride: 1, offset: item.col, length: 1 };
@@ -117,6 +117,22 @@ export function cifColumn(block: CifBlock, name: string): CifColumn | null {
     offset: item.loop.first + item.col,
     length: item.loop.count / w,
   };
+}
+
+/**
+ * Names asked for, lower-cased once: they are few (the reader's own lists and the energy item), and lower-casing
+ * a mixed-case name on every lookup made a new string, and hashed it, per block.
+ */
+const lowerQueries = new Map<string, string>();
+
+function lowerQuery(name: string): string {
+  let lower = lowerQueries.get(name);
+  if (lower === undefined) {
+    lower = name.toLowerCase();
+    if (lowerQueries.size >= 1024) lowerQueries.clear();
+    lowerQueries.set(name, lower);
+  }
+  return lower;
 }
 
 /** Text of value i of a column. */
