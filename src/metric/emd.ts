@@ -110,6 +110,8 @@ class Workspace {
   adjFill = new Int32Array(0);
   adjArc = new Int32Array(0);
   queue = new Int32Array(0);
+  rowHeap = new Int32Array(0);
+  rowSize = new Int32Array(0);
   unionParent = new Int32Array(0);
   componentArc = new Int32Array(0);
   firstChild = new Int32Array(0);
@@ -127,6 +129,8 @@ class Workspace {
       this.rowOf = new Int32Array(this.capRows);
       this.demand = new Float64Array(this.capCols);
       this.colOf = new Int32Array(this.capCols);
+      this.rowHeap = new Int32Array(this.capRows);
+      this.rowSize = new Int32Array(this.capRows);
       this.cost = new Float64Array(this.capRows * this.capCols);
       this.order = new Int32Array(this.capRows * this.capCols);
     }
@@ -238,36 +242,59 @@ function solve(
   const root = m + n;
   const nodes = m + n + 1;
 
-  // ---- first basis: matrix minimum (allocate to the cheapest open cells first) ----
-  // Cells leave a binary heap cheapest first (ties by index); usually far fewer than all cells are needed.
-  for (let c = 0; c < cells; c++) order[c] = c;
-  for (let h = (cells >> 1) - 1; h >= 0; h--) siftDown(order, cells, h, cost);
-  let heapSize = cells;
+  // ---- first basis: matrix minimum (allocate to the cheapest open cells first, ties by cell index) ----
+  // Each row keeps its cells in a small binary heap (row i's heap in order[i*n .. i*n + rowSize[i])), and a heap
+  // of rows is keyed by each row's cheapest cell. A row's top cell may lie in a column already filled; such a
+  // stale top is only a lower bound of the row's cheapest open cell, so when it reaches the top it is dropped and
+  // the row re-sorted. The cell allocated is therefore always the cheapest open cell overall (ties by index),
+  // exactly as one heap over all cells would give, while filled rows leave with all their cells at once.
+  const { rowHeap, rowSize } = ws;
+  let rowsInHeap = 0;
+  for (let i = 0; i < m; i++) {
+    const base = i * n;
+    for (let j = 0; j < n; j++) order[base + j] = base + j;
+    for (let h = (n >> 1) - 1; h >= 0; h--) siftDownAt(order, base, n, h, cost);
+    rowSize[i] = n;
+    if (supply[i] > 0) rowHeap[rowsInHeap++] = i;
+  }
+  for (let h = (rowsInHeap >> 1) - 1; h >= 0; h--) siftDownRows(rowHeap, rowsInHeap, h, order, n, cost);
   for (let v = 0; v < nodes; v++) unionParent[v] = v;
   let arcs = 0;
-  let rowsLeft = m;
   let colsLeft = n;
-  while (heapSize > 0 && rowsLeft > 0 && colsLeft > 0) {
-    const c = order[0];
-    order[0] = order[--heapSize];
-    siftDown(order, heapSize, 0, cost);
-    const i = (c / n) | 0;
-    const j = c - i * n;
-    const s = supply[i];
+  while (rowsInHeap > 0 && colsLeft > 0) {
+    const i = rowHeap[0];
+    const base = i * n;
+    const c = order[base];
+    const j = c - base;
     const d = demand[j];
-    if (s <= 0 || d <= 0) continue;
-    // Each allocation empties its row or its column, which then takes no more: the positive arcs form a forest.
-    const x = s < d ? s : d;
-    supply[i] = s - x;
-    demand[j] = d - x;
-    if (supply[i] <= 0) rowsLeft--;
-    if (demand[j] <= 0) colsLeft--;
-    arcTail[arcs] = i;
-    arcHead[arcs] = m + j;
-    arcFlow[arcs] = x;
-    arcCost[arcs] = cost[c];
-    arcs++;
-    unite(unionParent, i, m + j);
+    if (d > 0) {
+      // Each allocation empties its row or its column, which then takes no more: the positive arcs form a forest.
+      const s = supply[i];
+      const x = s < d ? s : d;
+      supply[i] = s - x;
+      demand[j] = d - x;
+      if (demand[j] <= 0) colsLeft--;
+      arcTail[arcs] = i;
+      arcHead[arcs] = m + j;
+      arcFlow[arcs] = x;
+      arcCost[arcs] = cost[c];
+      arcs++;
+      unite(unionParent, i, m + j);
+      if (supply[i] <= 0) {
+        rowHeap[0] = rowHeap[--rowsInHeap];
+        siftDownRows(rowHeap, rowsInHeap, 0, order, n, cost);
+        continue;
+      }
+    }
+    // Column j is filled: drop the row's top cell and re-sort the row, then the rows.
+    const size = --rowSize[i];
+    if (size === 0) {
+      rowHeap[0] = rowHeap[--rowsInHeap];
+    } else {
+      order[base] = order[base + size];
+      siftDownAt(order, base, size, 0, cost);
+    }
+    siftDownRows(rowHeap, rowsInHeap, 0, order, n, cost);
   }
   // Hang each component of the forest from the root by a zero-flow arc pointing to the root: the tree is then
   // strongly feasible (every zero-flow arc points towards the root).
@@ -597,23 +624,52 @@ export function rowMinBound(
   return sum;
 }
 
-/** Restore the heap order (cost, then index) below position h of heap[0..size). */
-function siftDown(heap: Int32Array, size: number, h: number, cost: Float64Array): void {
-  const v = heap[h];
+/** Restore the heap order (cost, then cell index) below position h of the heap heap[base .. base + size). */
+function siftDownAt(heap: Int32Array, base: number, size: number, h: number, cost: Float64Array): void {
+  const v = heap[base + h];
   const cv = cost[v];
   for (;;) {
     let c = 2 * h + 1;
     if (c >= size) break;
+    let cc = cost[heap[base + c]];
     const r = c + 1;
     if (r < size) {
-      const cc = cost[heap[c]];
-      const cr = cost[heap[r]];
-      if (cr < cc || (cr === cc && heap[r] < heap[c])) c = r;
+      const cr = cost[heap[base + r]];
+      if (cr < cc || (cr === cc && heap[base + r] < heap[base + c])) {
+        c = r;
+        cc = cr;
+      }
     }
-    const cc = cost[heap[c]];
-    if (cc > cv || (cc === cv && heap[c] > v)) break;
-    heap[h] = heap[c];
+    if (cc > cv || (cc === cv && heap[base + c] > v)) break;
+    heap[base + h] = heap[base + c];
     h = c;
   }
-  heap[h] = v;
+  heap[base + h] = v;
+}
+
+/** The same for the heap of rows, keyed by each row's top cell order[row * n] (cost, then cell index). */
+function siftDownRows(rows: Int32Array, size: number, h: number, order: Int32Array, n: number, cost: Float64Array): void {
+  const v = rows[h];
+  const kv = order[v * n];
+  const cv = cost[kv];
+  for (;;) {
+    let c = 2 * h + 1;
+    if (c >= size) break;
+    let kc = order[rows[c] * n];
+    let cc = cost[kc];
+    const r = c + 1;
+    if (r < size) {
+      const kr = order[rows[r] * n];
+      const cr = cost[kr];
+      if (cr < cc || (cr === cc && kr < kc)) {
+        c = r;
+        kc = kr;
+        cc = cr;
+      }
+    }
+    if (cc > cv || (cc === cv && kc > kv)) break;
+    rows[h] = rows[c];
+    h = c;
+  }
+  rows[h] = v;
 }
