@@ -82,6 +82,9 @@ export function emdPacked(
   return solve(aRows, aWeights, aFirst, aCount, bRows, bWeights, bFirst, bCount, k);
 }
 
+/** Columns of every cell's ground distance read up front (the rest only when pricing needs them). */
+const FIRST_COLUMNS = 4;
+
 /** Statistics of the last solve on this thread (for benchmarks and tests of the pivoting). */
 export const lastSolve = { pivots: 0, degeneratePivots: 0, rows: 0, cols: 0 };
 
@@ -97,6 +100,7 @@ class Workspace {
   rowOf = new Int32Array(0);
   colOf = new Int32Array(0);
   cost = new Float64Array(0);
+  known = new Int32Array(0);
   order = new Int32Array(0);
   arcTail = new Int32Array(0);
   arcHead = new Int32Array(0);
@@ -132,6 +136,7 @@ class Workspace {
       this.rowHeap = new Int32Array(this.capRows);
       this.rowSize = new Int32Array(this.capRows);
       this.cost = new Float64Array(this.capRows * this.capCols);
+      this.known = new Int32Array(this.capRows * this.capCols);
       this.order = new Int32Array(this.capRows * this.capCols);
     }
     const nodes = m + n + 1;
@@ -211,31 +216,44 @@ function solve(
   lastSolve.rows = m;
   lastSolve.cols = n;
 
-  // Ground distances: L-infinity between rows.
+  // One row on either side: the only feasible transport sends everything to (or from) it.
+  if (m === 1 || n === 1) {
+    let sum = 0;
+    for (let i = 0; i < m; i++) {
+      const ao = rowOf[i] * k;
+      for (let j = 0; j < n; j++) {
+        const bo = colOf[j] * k;
+        let max = 0;
+        for (let t = 0; t < k; t++) {
+          const d = Math.abs(aRows[ao + t] - bRows[bo + t]);
+          if (d > max) max = d;
+        }
+        sum += (m === 1 ? demand[j] : supply[i]) * max;
+      }
+    }
+    return sum;
+  }
+
+  // Ground distances (L-infinity between rows) are computed lazily: cost[c] holds the maximum of |a_t - b_t| over
+  // the first known[c] columns, a lower bound of the cell's cost that is exact once known[c] = k. Most cells are
+  // never needed exactly: pricing only has to show that a cell's cost is not below v_j - u_i, and a few columns
+  // usually show that. Every cell that enters the basis is made exact first, so the result is that of the full
+  // matrix, bit for bit.
+  const { known } = ws;
+  const startColumns = k < FIRST_COLUMNS ? k : FIRST_COLUMNS;
   for (let i = 0; i < m; i++) {
     const ao = rowOf[i] * k;
+    const base = i * n;
     for (let j = 0; j < n; j++) {
       const bo = colOf[j] * k;
       let max = 0;
-      for (let t = 0; t < k; t++) {
-        const d = aRows[ao + t] - bRows[bo + t];
+      for (let t = 0; t < startColumns; t++) {
+        const d = Math.abs(aRows[ao + t] - bRows[bo + t]);
         if (d > max) max = d;
-        else if (-d > max) max = -d;
       }
-      cost[i * n + j] = max;
+      cost[base + j] = max;
+      known[base + j] = startColumns;
     }
-  }
-
-  // One row on either side: the only feasible transport sends everything to (or from) it.
-  if (m === 1) {
-    let s = 0;
-    for (let j = 0; j < n; j++) s += demand[j] * cost[j];
-    return s;
-  }
-  if (n === 1) {
-    let s = 0;
-    for (let i = 0; i < m; i++) s += supply[i] * cost[i];
-    return s;
   }
 
   const cells = m * n;
@@ -267,6 +285,41 @@ function solve(
     const c = order[base];
     const j = c - base;
     const d = demand[j];
+    if (d > 0 && known[c] < k) {
+      // An open cell known only by a lower bound: read columns until it is exact or its bound passes the next
+      // smallest key (in its row or in the next row), then let it find its place again.
+      const size = rowSize[i];
+      let limit = Infinity;
+      if (size > 1) limit = cost[order[base + 1]];
+      if (size > 2 && cost[order[base + 2]] < limit) limit = cost[order[base + 2]];
+      if (rowsInHeap > 1) {
+        const other = cost[order[rowHeap[1] * n]];
+        if (other < limit) limit = other;
+      }
+      if (rowsInHeap > 2) {
+        const other = cost[order[rowHeap[2] * n]];
+        if (other < limit) limit = other;
+      }
+      const ao = rowOf[i] * k;
+      const bo = colOf[j] * k;
+      let max = cost[c];
+      let t = known[c];
+      for (; t < k; t++) {
+        const dd = Math.abs(aRows[ao + t] - bRows[bo + t]);
+        if (dd > max) {
+          max = dd;
+          if (max > limit) {
+            t++;
+            break;
+          }
+        }
+      }
+      cost[c] = max;
+      known[c] = t;
+      siftDownAt(order, base, size, 0, cost);
+      siftDownRows(rowHeap, rowsInHeap, 0, order, n, cost);
+      continue;
+    }
     if (d > 0) {
       // Each allocation empties its row or its column, which then takes no more: the positive arcs form a forest.
       const s = supply[i];
@@ -312,8 +365,29 @@ function solve(
   if (arcs !== nodes - 1) throw new Error(`EMD solver: first basis has ${arcs} arcs for ${nodes} nodes (internal error)`);
 
   // Reduced costs below -tolerance mean "improving"; the tolerance absorbs rounding in the potentials.
+  // The largest cost over all cells, without the cells: max over columns t of the widest gap between a value of
+  // A and one of B in that column (rounding of a - b is monotone, so this is the same number bit for bit).
   let maxCost = 0;
-  for (let c = 0; c < cells; c++) if (cost[c] > maxCost) maxCost = cost[c];
+  for (let t = 0; t < k; t++) {
+    let loA = Infinity;
+    let hiA = -Infinity;
+    for (let i = 0; i < m; i++) {
+      const x = aRows[rowOf[i] * k + t];
+      if (x < loA) loA = x;
+      if (x > hiA) hiA = x;
+    }
+    let loB = Infinity;
+    let hiB = -Infinity;
+    for (let j = 0; j < n; j++) {
+      const x = bRows[colOf[j] * k + t];
+      if (x < loB) loB = x;
+      if (x > hiB) hiB = x;
+    }
+    const up = hiA - loB;
+    const down = hiB - loA;
+    if (up > maxCost) maxCost = up;
+    if (down > maxCost) maxCost = down;
+  }
   const tolerance = 1e-13 * (maxCost > 1 ? maxCost : 1);
 
   // Partial pricing: scan blocks of about sqrt(cells) arcs, enter the most negative of the first improving block.
@@ -332,7 +406,32 @@ function solve(
         next = next + 1 === cells ? 0 : next + 1;
         const i = (c / n) | 0;
         const j = c - i * n;
-        const rc = cost[c] + potential[i] - potential[m + j];
+        const pi = potential[i];
+        const pj = potential[m + j];
+        let rc = cost[c] + pi - pj;
+        // A cell whose lower bound already prices at or above `best` cannot enter; otherwise read more columns
+        // until it can be ruled out or its cost is exact.
+        while (rc < best && known[c] < k) {
+          const at = known[c];
+          const ao = rowOf[i] * k;
+          const bo = colOf[j] * k;
+          const limit = best - pi + pj;
+          let max = cost[c];
+          let t = at;
+          for (; t < k; t++) {
+            const d = Math.abs(aRows[ao + t] - bRows[bo + t]);
+            if (d > max) {
+              max = d;
+              if (max >= limit) {
+                t++;
+                break;
+              }
+            }
+          }
+          cost[c] = max;
+          known[c] = t;
+          rc = max + pi - pj;
+        }
         if (rc < best) {
           best = rc;
           enter = c;
