@@ -211,7 +211,8 @@
         th.setAttribute('aria-sort', i === c ? (dir > 0 ? 'ascending' : 'descending') : 'none');
       });
       order = items.slice().sort(compare);
-      applyFilter(false);
+      // A new order starts on its first page, so the top of the sort is what the reader sees.
+      applyFilter(true);
     }
 
     function applyFilter(resetPage) {

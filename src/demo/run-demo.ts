@@ -1,8 +1,10 @@
-// The demo: an invented search on the invented molecule orvazinone. Planted distinct packings in common space
-// groups, each found many times again (other cells, settings, origins, supercells, P1, atom orders) with
-// optimiser-like noise and energies, written as a multi-block CIF and an energies CSV, then sifted.
+// The demo: an invented search on the invented molecule orvazinone, written as a multi-block CIF and an energies
+// CSV, then sifted. Two kinds: a real mini search (random starts in common space groups relaxed under a simple pair
+// potential, src/demo/search; the default), or planted distinct packings, each found many times again (other cells,
+// settings, origins, supercells, P1, atom orders) with optimiser-like noise, whose truth is known.
 import { join } from 'node:path';
 import { generateLandscape, type GeneratorOptions } from './landscape.js';
+import { runMiniSearch } from './search/search.js';
 import { binByWindows } from './window-binning.js';
 import { sift } from '../landscape/sift.js';
 import { siftFiles } from '../landscape/sift-files.js';
@@ -16,17 +18,80 @@ export const DEMO_OUT = join('reports', 'demo');
 /** 40 planted packings (6 of them close partners of another), 8 finds each: 320 structures. */
 export const DEMO_GENERATOR: GeneratorOptions = { seed: 2026, packings: 40, copiesPerPacking: 8, closePairs: 6 };
 
+/** The default mini search: 300 random starts (a few are rejected as unphysical), seeded. */
+export const DEMO_SEARCH = { seed: 2026, starts: 300 };
+
+export type DemoKind = 'search' | 'planted';
+
 export interface DemoResult {
-  planted: number;
+  kind: DemoKind;
+  /** Planted distinct packings (planted demo only, else null). */
+  planted: number | null;
+  /** Random starts and those rejected as unphysical (search demo only, else null). */
+  starts: number | null;
+  rejectedStarts: number | null;
   structures: number;
   kept: number;
-  ariSift: number;
+  /** Sift's grouping and the window binning against the planted truth (planted demo only, else null). */
+  ariSift: number | null;
   binGroups: number;
-  ariBins: number;
+  ariBins: number | null;
   files: string[];
 }
 
 export async function runDemo(
+  opts: {
+    out?: string;
+    threads?: number;
+    progress?: Progress;
+    kind?: DemoKind;
+    generator?: GeneratorOptions;
+    search?: { seed: number; starts: number };
+  } = {},
+): Promise<DemoResult> {
+  if ((opts.kind ?? 'search') === 'planted' || opts.generator) return runPlantedDemo(opts);
+  const out = opts.out ?? DEMO_OUT;
+  const settings = opts.search ?? DEMO_SEARCH;
+  opts.progress?.stage(`relaxing ${settings.starts} random starts`, settings.starts);
+  const found = runMiniSearch({ ...settings, onProgress: (done) => opts.progress?.tick(done) });
+  opts.progress?.done();
+  const rejectedCsv = [
+    csvLine(['start', 'space_group', 'reason']),
+    ...found.rejected.map((r) => csvLine([r.start, r.group, r.reason])),
+  ].join('\n');
+  const inputs = writeFilesAtomically(out, [
+    ['demo-search.cif', found.cif],
+    ['demo-energies.csv', found.energiesCsv],
+    ['demo-rejected-starts.csv', `${rejectedCsv}\n`],
+  ]);
+  const run = await sift({
+    inputs: [inputs[0]],
+    energiesFile: inputs[1],
+    threads: opts.threads,
+    cacheDir: join(out, '.polysift-cache'),
+    progress: opts.progress,
+  });
+  const files = writeFilesAtomically(
+    out,
+    siftFiles(run, { title: `polysift demo: invented search on ${found.moleculeName} (${found.starts} random starts)` }),
+  );
+  const l = run.landscape;
+  const bins = binByWindows(found.energiesKjPerMol, l.structures.map((r) => r.densityGPerCm3 ?? 0));
+  return {
+    kind: 'search',
+    planted: null,
+    starts: found.starts,
+    rejectedStarts: found.rejected.length,
+    structures: found.ids.length,
+    kept: l.counts.kept,
+    ariSift: null,
+    binGroups: new Set(bins).size,
+    ariBins: null,
+    files: [...inputs, ...files],
+  };
+}
+
+async function runPlantedDemo(
   opts: { out?: string; threads?: number; progress?: Progress; generator?: GeneratorOptions } = {},
 ): Promise<DemoResult> {
   const out = opts.out ?? DEMO_OUT;
@@ -50,7 +115,10 @@ export async function runDemo(
   const l = run.landscape;
   const bins = binByWindows(gen.energiesKjPerMol, l.structures.map((r) => r.densityGPerCm3 ?? 0));
   return {
+    kind: 'planted',
     planted: gen.packings.length,
+    starts: null,
+    rejectedStarts: null,
     structures: gen.ids.length,
     kept: l.counts.kept,
     ariSift: adjustedRandIndex(l.structures.map((r) => r.keptIndex ?? -1 - r.index), gen.truth),
