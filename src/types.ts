@@ -84,7 +84,7 @@ export type BlockResult =
  * A periodic point set: a lattice plus a motif, dimension-generic (1, 2 or 3).
  * Hot loops read the typed arrays directly.
  */
-export interface PeriodicSet {
+export interface PeriodicPointSet {
   dim: number;
   /** dim*dim, row r is lattice vector r in Cartesian Å. */
   basis: Float64Array;

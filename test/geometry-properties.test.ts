@@ -3,7 +3,7 @@ import { describe, expect, it } from 'vitest';
 import { crystalFacts } from '../src/geometry/facts.js';
 import { expandSites, toPeriodicSet } from '../src/geometry/periodic-set.js';
 import { opsFromSymbol } from '../src/geometry/symmetry.js';
-import type { CellParams, PeriodicSet } from '../src/types.js';
+import type { CellParams, PeriodicPointSet } from '../src/types.js';
 import { makeRecord, type SiteSpec } from './geometry-records.js';
 
 // Properties that follow from the definitions (common practice): the same crystal written with its
@@ -12,7 +12,7 @@ import { makeRecord, type SiteSpec } from './geometry-records.js';
 
 const SYMBOLS = ['P-1', 'P21/c', 'C2/c', 'P212121', 'Pbca', 'Pna21'];
 
-function sortedPoints(set: PeriodicSet): number[][] {
+function sortedPoints(set: PeriodicPointSet): number[][] {
   const pts: number[][] = [];
   for (let i = 0; i < set.atomicNumbers.length; i++) {
     pts.push([set.atomicNumbers[i]!, set.motif[3 * i]!, set.motif[3 * i + 1]!, set.motif[3 * i + 2]!]);
@@ -21,7 +21,7 @@ function sortedPoints(set: PeriodicSet): number[][] {
 }
 
 /** Same multiset of points up to `tol` Å, nearest lattice translate (each point matched once, same element). */
-function samePoints(a: PeriodicSet, b: PeriodicSet, tol: number): boolean {
+function samePoints(a: PeriodicPointSet, b: PeriodicPointSet, tol: number): boolean {
   const pa = sortedPoints(a);
   const pb = sortedPoints(b);
   if (pa.length !== pb.length) return false;

@@ -5,11 +5,11 @@ import { computeInvariants, computeInvariantsSettled, InvariantsError, invariant
 import { pdd } from '../src/invariants/pdd.js';
 import { amd } from '../src/invariants/amd.js';
 import { expandOperations, makeSet, monoclinicBasis, P21C_OPS, randomSet, seededRandom } from './helpers/periodic-sets.js';
-import type { PeriodicSet } from '../src/types.js';
+import type { PeriodicPointSet } from '../src/types.js';
 
-function sampleSets(n: number): PeriodicSet[] {
+function sampleSets(n: number): PeriodicPointSet[] {
   const rand = seededRandom(99);
-  const out: PeriodicSet[] = [];
+  const out: PeriodicPointSet[] = [];
   for (let i = 0; i < n; i++) {
     if (i % 3 === 2) out.push(expandOperations(monoclinicBasis(6 + rand(), 5 + rand(), 8 + rand(), 100 + 10 * rand()), [rand(), rand(), rand(), rand(), rand(), rand()], P21C_OPS));
     else out.push(randomSet(rand, 1 + (i % 3), 1 + (i % 5)));

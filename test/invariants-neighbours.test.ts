@@ -1,7 +1,7 @@
 // The exact neighbour search against brute force, and its stopping rule (src/invariants/neighbours.ts).
 import { describe, expect, it } from 'vitest';
 import fc from 'fast-check';
-import type { PeriodicSet } from '../src/types.js';
+import type { PeriodicPointSet } from '../src/types.js';
 import { nearestNeighbourDistances } from '../src/invariants/neighbours.js';
 import { changeBasis, makeSet, randomSet, randomUnimodular, seededRandom } from './helpers/periodic-sets.js';
 import { inverse } from '../src/geometry/reduce.js';
@@ -12,7 +12,7 @@ import { inverse } from '../src/geometry/reduce.js';
  * ((N_i - 1) * h_i with h_i the cell width across the other vectors, motif inside the cell), so the
  * caller can check the block was big enough.
  */
-function bruteForce(set: PeriodicSet, k: number, reachAngstrom: number): { rows: Float64Array; safeRadius: number } {
+function bruteForce(set: PeriodicPointSet, k: number, reachAngstrom: number): { rows: Float64Array; safeRadius: number } {
   const d = set.dim;
   const m = set.motif.length / d;
   const inv = inverse(set.basis, d);

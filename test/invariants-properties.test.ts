@@ -9,7 +9,7 @@
 //   point sets", MATCH Commun. Math. Comput. Chem. 2022).
 import { describe, expect, it } from 'vitest';
 import fc from 'fast-check';
-import type { PeriodicSet } from '../src/types.js';
+import type { PeriodicPointSet } from '../src/types.js';
 import { pdd } from '../src/invariants/pdd.js';
 import { amd } from '../src/invariants/amd.js';
 import { amdDistance, emd } from '../src/metric/emd.js';
@@ -38,7 +38,7 @@ const sizeArb = fc.integer({ min: 1, max: 5 });
 const kArb = fc.integer({ min: 1, max: 60 });
 const seedArb = fc.integer();
 
-function distance(a: PeriodicSet, b: PeriodicSet, k: number): number {
+function distance(a: PeriodicPointSet, b: PeriodicPointSet, k: number): number {
   return emd(pdd(a, k), pdd(b, k));
 }
 

@@ -3,7 +3,7 @@
 // P2_1/c operations (x,y,z; -x,y+1/2,-z+1/2; -x,-y,-z; x,-y+1/2,z+1/2: International Tables Vol. A, No. 14),
 // in a monoclinic cell of about 14 Å³ per atom (a molecular-crystal-like density; common practice, from memory).
 // Distinct packings differ in cell, orientation and position; copies of a packing differ by optimiser-like noise.
-import type { PeriodicSet } from '../types.js';
+import type { PeriodicPointSet } from '../types.js';
 
 /** Invented molecule, Cartesian Å: a slightly puckered six-ring with five substituents. */
 const MOLECULE = [
@@ -30,9 +30,9 @@ interface PackingParams {
  * `packings` distinct structures, each repeated `copies` times with noise of about `noiseAngstrom` per atom
  * (and a matching relative noise on the cell). Returned packing by packing: copies of packing p are p*copies...
  */
-export function noisyPackings(packings: number, copies: number, noiseAngstrom: number, seed: number): PeriodicSet[] {
+export function noisyPackings(packings: number, copies: number, noiseAngstrom: number, seed: number): PeriodicPointSet[] {
   const rand = seeded(seed);
-  const out: PeriodicSet[] = [];
+  const out: PeriodicPointSet[] = [];
   for (let p = 0; p < packings; p++) {
     const params = randomPacking(rand);
     for (let c = 0; c < copies; c++) out.push(build(params, c === 0 ? 0 : noiseAngstrom, rand));
@@ -41,7 +41,7 @@ export function noisyPackings(packings: number, copies: number, noiseAngstrom: n
 }
 
 /** A P1 cell of `atoms` random points at about 15 Å³ per atom: PDDs whose rows are all distinct. */
-export function randomP1(atoms: number, seed: number): PeriodicSet {
+export function randomP1(atoms: number, seed: number): PeriodicPointSet {
   const rand = seeded(seed);
   const edge = Math.cbrt(15 * atoms);
   const basis = Float64Array.from([edge * (0.9 + 0.2 * rand()), 0, 0, edge * 0.1 * rand(), edge * (0.9 + 0.2 * rand()), 0, edge * 0.1 * rand(), edge * 0.1 * rand(), edge * (0.9 + 0.2 * rand())]);
@@ -62,7 +62,7 @@ function randomPacking(rand: () => number): PackingParams {
   return { a: 6 + 4 * rand(), b: 5 + 3 * rand(), betaRad: ((95 + 20 * rand()) * Math.PI) / 180, rot, centre: [0.5 * rand(), 0.25 * rand(), 0.5 * rand()] };
 }
 
-function build(p: PackingParams, noise: number, rand: () => number): PeriodicSet {
+function build(p: PackingParams, noise: number, rand: () => number): PeriodicPointSet {
   const jitter = () => noise * (2 * rand() - 1);
   const a = p.a * (1 + jitter() / 10);
   const b = p.b * (1 + jitter() / 10);

@@ -6,7 +6,7 @@
 import { performance } from 'node:perf_hooks';
 import { computeInvariants } from '../invariants/batch.js';
 import { emd, lastSolve } from '../metric/emd.js';
-import type { Pdd, PeriodicSet } from '../types.js';
+import type { Pdd, PeriodicPointSet } from '../types.js';
 import { noisyPackings, randomP1, seeded } from './_metric-crystals.js';
 
 const K = 100;
@@ -28,7 +28,7 @@ export async function run(): Promise<void> {
 }
 
 /** A copy of `set` with every atom moved by up to `noiseAngstrom` along each Cartesian axis. */
-function jiggle(set: PeriodicSet, noiseAngstrom: number, rand: () => number): PeriodicSet {
+function jiggle(set: PeriodicPointSet, noiseAngstrom: number, rand: () => number): PeriodicPointSet {
   return { ...set, motif: set.motif.map((x) => x + noiseAngstrom * (2 * rand() - 1)) };
 }
 

@@ -5,7 +5,7 @@
 // with everything given as P1.
 import { performance } from 'node:perf_hooks';
 import { availableParallelism, loadavg } from 'node:os';
-import type { PeriodicSet } from '../types.js';
+import type { PeriodicPointSet } from '../types.js';
 import { pdd } from '../invariants/pdd.js';
 import { computeInvariants } from '../invariants/batch.js';
 
@@ -51,7 +51,7 @@ export async function run(): Promise<void> {
     for (const threads of [2, 1]) {
       const t0 = performance.now();
       const c0 = process.cpuUsage();
-      const out = await computeInvariants(sets as PeriodicSet[], K, { threads });
+      const out = await computeInvariants(sets as PeriodicPointSet[], K, { threads });
       const seconds = (performance.now() - t0) / 1000;
       const c1 = process.cpuUsage(c0);
       const cpuSeconds = (c1.user + c1.system) / 1e6;
@@ -68,7 +68,7 @@ export async function run(): Promise<void> {
 }
 
 /** A P1 cell with `atoms` random points at an organic-crystal-like density (about 15 Å³ per atom with hydrogens; common practice). */
-export function randomP1Cell(rand: () => number, atoms: number): PeriodicSet {
+export function randomP1Cell(rand: () => number, atoms: number): PeriodicPointSet {
   const volume = 15 * atoms;
   const alpha = rad(80 + 30 * rand());
   const beta = rad(80 + 30 * rand());
@@ -90,7 +90,7 @@ const MOLECULE = [
 ];
 
 /** Four copies of the molecule related by the P2_1/c operations (International Tables Vol. A) in a random monoclinic cell. */
-export function molecularCrystal(rand: () => number): PeriodicSet {
+export function molecularCrystal(rand: () => number): PeriodicPointSet {
   const a = 6 + 3 * rand();
   const b = 5 + 3 * rand();
   const beta = rad(95 + 20 * rand());
@@ -137,11 +137,11 @@ export function molecularCrystal(rand: () => number): PeriodicSet {
   };
 }
 
-function asP1(s: PeriodicSet): PeriodicSet {
+function asP1(s: PeriodicPointSet): PeriodicPointSet {
   return p1Set(s.basis, s.motif);
 }
 
-function p1Set(basis: Float64Array, motif: Float64Array): PeriodicSet {
+function p1Set(basis: Float64Array, motif: Float64Array): PeriodicPointSet {
   const m = motif.length / 3;
   return { dim: 3, basis, motif, atomicNumbers: new Uint8Array(m), asym: Int32Array.from({ length: m }, (_, i) => i), multiplicity: new Int32Array(m).fill(1) };
 }

@@ -3,7 +3,7 @@
 // The per-structure JSON object is built in one place, `inspectEntryJson`, so that further fields
 // (invariants) are added there.
 import type { Command } from 'commander';
-import type { CellParams, CrystalFacts, CrystalRecord, OpsOrigin, PeriodicSet, RejectedBlock } from '../types.js';
+import type { CellParams, CrystalFacts, CrystalRecord, OpsOrigin, PeriodicPointSet, RejectedBlock } from '../types.js';
 import type { HydrogenPolicy } from '../landscape/schema.js';
 import { readStructures } from '../io/read.js';
 import { crystalFacts } from '../geometry/facts.js';
@@ -66,7 +66,7 @@ export interface InspectReport {
 
 /** The JSON object for one structure; the single place to extend the `--json` output. */
 export function inspectEntryJson(
-  record: CrystalRecord, facts: CrystalFacts, set: PeriodicSet, setNotes: string[], opts: InspectOptions,
+  record: CrystalRecord, facts: CrystalFacts, set: PeriodicPointSet, setNotes: string[], opts: InspectOptions,
 ): InspectEntry {
   return {
     id: record.id,
@@ -92,7 +92,7 @@ export function inspectEntryJson(
 }
 
 /** PDD and AMD of a set as plain JSON arrays (src/invariants/pdd.ts, amd.ts). */
-function invariantsJson(set: PeriodicSet, k: number): { pdd: { k: number; weights: number[]; rows: number[][] }; amd: number[] } {
+function invariantsJson(set: PeriodicPointSet, k: number): { pdd: { k: number; weights: number[]; rows: number[][] }; amd: number[] } {
   const p = pdd(set, k);
   const rows: number[][] = [];
   for (let i = 0; i < p.weights.length; i++) rows.push(Array.from(p.rows.subarray(i * k, (i + 1) * k)));

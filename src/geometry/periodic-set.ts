@@ -2,7 +2,7 @@
 // [0,1), merge images that land on the same point (special positions, sites listed twice), and keep
 // one representative and the orbit size per symmetry orbit so later stages can work on the
 // asymmetric unit only.
-import type { CrystalRecord, PeriodicSet, SymOp } from '../types.js';
+import type { CrystalRecord, PeriodicPointSet, SymOp } from '../types.js';
 import { cellToBasis, fracToCartesian } from './cell.js';
 import { selectOrderedSites } from './disorder.js';
 import { atomicNumber } from './elements.js';
@@ -167,7 +167,7 @@ export function expandSites(record: CrystalRecord, siteIndices: number[], option
  * the sites, hydrogens (and deuterium) are kept or dropped, the operations are applied and coinciding
  * images merged. `notes` say what was done. Throws with a reason a user can act on when no atoms remain.
  */
-export function toPeriodicSet(record: CrystalRecord, opts: { hydrogens: HydrogenChoice }): { set: PeriodicSet; notes: string[] } {
+export function toPeriodicSet(record: CrystalRecord, opts: { hydrogens: HydrogenChoice }): { set: PeriodicPointSet; notes: string[] } {
   if (record.sites.length === 0) {
     throw new Error(`${record.source}: the block lists no atom sites, so there is no structure to compare`);
   }
@@ -186,7 +186,7 @@ export function toPeriodicSet(record: CrystalRecord, opts: { hydrogens: Hydrogen
   if (indices.length === 0) throw new Error(`${record.source}: no atom site is left after the disorder policy`);
   const ex = expandSites(record, indices);
   notes.push(...ex.notes);
-  const set: PeriodicSet = {
+  const set: PeriodicPointSet = {
     dim: 3,
     basis: ex.basis,
     motif: ex.cart,

@@ -1,7 +1,7 @@
 // Invariants (PDD and AMD) of many periodic sets across worker threads.
 // Sets travel to the workers in chunks packed into a few flat typed arrays, and the PDDs come back the
 // same way, so that one message carries hundreds of structures and structured cloning stays cheap.
-import type { Pdd, PeriodicSet } from '../types.js';
+import type { Pdd, PeriodicPointSet } from '../types.js';
 import { defaultThreads, mapInWorkers, type PoolOptions } from '../parallel/pool.js';
 import { DEFAULT_COLLAPSE_TOLERANCE_ANGSTROM, pdd } from './pdd.js';
 import { amd } from './amd.js';
@@ -69,7 +69,7 @@ export class InvariantsError extends Error {
 }
 
 /** PDD (k neighbours) and AMD of every set, in input order, computed in worker threads. Throws InvariantsError when any set fails. */
-export async function computeInvariants(sets: PeriodicSet[], k: number, opts: InvariantsOptions = {}): Promise<Invariants[]> {
+export async function computeInvariants(sets: PeriodicPointSet[], k: number, opts: InvariantsOptions = {}): Promise<Invariants[]> {
   const settled = await computeInvariantsSettled(sets, k, opts);
   const failures: Array<{ index: number; message: string }> = [];
   settled.forEach((r, index) => {
@@ -81,7 +81,7 @@ export async function computeInvariants(sets: PeriodicSet[], k: number, opts: In
 
 /** Like computeInvariants, but a set that fails gives `{ error }` in its place instead of failing the whole call. */
 export async function computeInvariantsSettled(
-  sets: PeriodicSet[],
+  sets: PeriodicPointSet[],
   k: number,
   opts: InvariantsOptions = {},
 ): Promise<Array<Invariants | { error: string }>> {
@@ -105,7 +105,7 @@ export async function computeInvariantsSettled(
 }
 
 /** Pack sets into one chunk message. */
-export function packSets(sets: PeriodicSet[], k: number, collapseTolerance = DEFAULT_COLLAPSE_TOLERANCE_ANGSTROM): PackedSets {
+export function packSets(sets: PeriodicPointSet[], k: number, collapseTolerance = DEFAULT_COLLAPSE_TOLERANCE_ANGSTROM): PackedSets {
   const count = sets.length;
   const dims = new Int32Array(count);
   const basis = new Float64Array(9 * count);
@@ -138,7 +138,7 @@ export function invariantsOfChunk(chunk: PackedSets): PackedInvariants {
   let totalRows = 0;
   for (let i = 0; i < count; i++) {
     const dim = chunk.dims[i];
-    const set: PeriodicSet = {
+    const set: PeriodicPointSet = {
       dim,
       basis: chunk.basis.subarray(9 * i, 9 * i + dim * dim),
       motif: chunk.motif.subarray(chunk.motifStart[i], chunk.motifStart[i + 1]),

@@ -22,7 +22,7 @@
 //
 // The basis is LLL-reduced first (src/geometry/reduce.ts) so that the cell is compact and the cloud
 // small for any input cell; reduction does not change the lattice, so it changes only the running time.
-import type { PeriodicSet } from '../types.js';
+import type { PeriodicPointSet } from '../types.js';
 import { reduceBasis } from '../geometry/reduce.js';
 
 /** Everything the search needs about a set, prepared once: padded to 3D, reduced, frame built. */
@@ -49,7 +49,7 @@ export interface NeighbourOptions {
 }
 
 /** Reduce the basis and express the motif in the search frame. Throws with a clear message on unusable input. */
-export function prepareSet(set: PeriodicSet): PreparedSet {
+export function prepareSet(set: PeriodicPointSet): PreparedSet {
   const dim = set.dim;
   if (!(dim === 1 || dim === 2 || dim === 3)) throw new Error(`a periodic set must have dimension 1, 2 or 3, not ${dim}`);
   const m = set.motif.length / dim;
@@ -118,7 +118,7 @@ const UNIT_BALL = [0, 2, Math.PI, (4 * Math.PI) / 3];
  * ascending, as a queries.length*k row-major array. `queries` are motif indices (default: all points).
  */
 export function nearestNeighbourDistances(
-  set: PeriodicSet | PreparedSet,
+  set: PeriodicPointSet | PreparedSet,
   k: number,
   queries?: Int32Array,
   options: NeighbourOptions = {},

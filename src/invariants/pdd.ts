@@ -5,7 +5,7 @@
 // weighs 1/m. Symmetry-equivalent points have equal rows, so only `set.asym` is queried and each row
 // weighs multiplicity/m. Rows are sorted lexicographically and rows equal within a tolerance merge,
 // their weights added.
-import type { Pdd, PeriodicSet } from '../types.js';
+import type { Pdd, PeriodicPointSet } from '../types.js';
 import { nearestNeighbourDistances, prepareSet, type NeighbourOptions } from './neighbours.js';
 
 /**
@@ -22,7 +22,7 @@ export interface PddOptions extends NeighbourOptions {
 }
 
 /** The PDD of `set` with k neighbours per row. */
-export function pdd(set: PeriodicSet, k: number, opts: PddOptions = {}): Pdd {
+export function pdd(set: PeriodicPointSet, k: number, opts: PddOptions = {}): Pdd {
   const m = set.motif.length / set.dim;
   const asym = set.asym;
   const mult = set.multiplicity;

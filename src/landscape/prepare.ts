@@ -1,7 +1,7 @@
 // Worker job of sift: crystal records -> periodic sets and crystal facts, in chunks, so that symmetry
 // expansion and molecule finding for thousands of blocks run on every thread. A record that cannot become a
 // periodic set comes back with the reason, and the run goes on without it.
-import type { CrystalFacts, CrystalRecord, PeriodicSet } from '../types.js';
+import type { CrystalFacts, CrystalRecord, PeriodicPointSet } from '../types.js';
 import type { HydrogenPolicy } from './schema.js';
 import { toPeriodicSet } from '../geometry/periodic-set.js';
 import { crystalFacts } from '../geometry/facts.js';
@@ -12,7 +12,7 @@ export interface PrepareInput {
 }
 
 export type Prepared =
-  | { ok: true; set: PeriodicSet; facts: CrystalFacts | null; notes: string[] }
+  | { ok: true; set: PeriodicPointSet; facts: CrystalFacts | null; notes: string[] }
   | { ok: false; reason: string };
 
 export function prepareChunk(input: PrepareInput): Prepared[] {
@@ -20,7 +20,7 @@ export function prepareChunk(input: PrepareInput): Prepared[] {
 }
 
 export function prepareOne(record: CrystalRecord, hydrogens: HydrogenPolicy): Prepared {
-  let set: PeriodicSet;
+  let set: PeriodicPointSet;
   let notes: string[];
   try {
     ({ set, notes } = toPeriodicSet(record, { hydrogens }));

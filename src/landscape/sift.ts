@@ -3,7 +3,7 @@
 // Every input block ends up in exactly one row with one status; nothing is dropped silently.
 import { readFileSync } from 'node:fs';
 import { join } from 'node:path';
-import type { BlockResult, CrystalFacts, CrystalRecord, Pdd, PeriodicSet } from '../types.js';
+import type { BlockResult, CrystalFacts, CrystalRecord, Pdd, PeriodicPointSet } from '../types.js';
 import type {
   Embedding,
   EnergyUnit,
@@ -201,7 +201,7 @@ export async function sift(opts: SiftOptions): Promise<SiftRun> {
     if (hit) applyFacts(w, hit.facts, hit.atoms, hit.notes);
     else missing.push(w);
   }
-  const prepared = new Map<Work, PeriodicSet>();
+  const prepared = new Map<Work, PeriodicPointSet>();
   if (missing.length > 0) {
     progress.stage('building periodic sets', missing.length);
     const ranges = chunkRanges(missing.length, Math.ceil(missing.length / PREPARE_CHUNK));

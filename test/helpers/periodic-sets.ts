@@ -1,7 +1,7 @@
 // Hand-made periodic sets for tests: lattices, random sets, and the transformations that must not
 // change an isometry invariant (change of basis, supercell, rotation, reflection, origin shift, atom
 // order) or change it by a bounded amount (perturbation). Plain data in, plain data out.
-import type { PeriodicSet, SymOp } from '../../src/types.js';
+import type { PeriodicPointSet, SymOp } from '../../src/types.js';
 
 /** A small seeded generator (mulberry32, common practice) so that failures can be replayed from a seed. */
 export function seededRandom(seed: number): () => number {
@@ -16,7 +16,7 @@ export function seededRandom(seed: number): () => number {
 }
 
 /** A P1 set from a basis (rows) and Cartesian motif points; every point is its own asymmetric unit. */
-export function makeSet(dim: number, basis: ArrayLike<number>, motif: ArrayLike<number>): PeriodicSet {
+export function makeSet(dim: number, basis: ArrayLike<number>, motif: ArrayLike<number>): PeriodicPointSet {
   const m = motif.length / dim;
   if (!Number.isInteger(m)) throw new Error('motif length is not a multiple of dim');
   const asym = new Int32Array(m);
@@ -32,7 +32,7 @@ export function makeSet(dim: number, basis: ArrayLike<number>, motif: ArrayLike<
 }
 
 /** A P1 set from a basis and fractional motif coordinates. */
-export function fromFractional(dim: number, basis: ArrayLike<number>, frac: ArrayLike<number>): PeriodicSet {
+export function fromFractional(dim: number, basis: ArrayLike<number>, frac: ArrayLike<number>): PeriodicPointSet {
   return makeSet(dim, basis, fracToCart(dim, basis, frac));
 }
 
@@ -50,28 +50,28 @@ export function fracToCart(dim: number, basis: ArrayLike<number>, frac: ArrayLik
 }
 
 /** Simple cubic lattice with edge a (one point per cell). */
-export function cubicLattice(a: number): PeriodicSet {
+export function cubicLattice(a: number): PeriodicPointSet {
   return makeSet(3, [a, 0, 0, 0, a, 0, 0, 0, a], [0, 0, 0]);
 }
 
 /** Face-centred cubic: conventional cubic cell of edge a with 4 points. */
-export function fccConventional(a: number): PeriodicSet {
+export function fccConventional(a: number): PeriodicPointSet {
   return fromFractional(3, [a, 0, 0, 0, a, 0, 0, 0, a], [0, 0, 0, 0, 0.5, 0.5, 0.5, 0, 0.5, 0.5, 0.5, 0]);
 }
 
 /** Face-centred cubic: primitive rhombohedral cell (vectors a/2 (0,1,1), (1,0,1), (1,1,0)). */
-export function fccPrimitive(a: number): PeriodicSet {
+export function fccPrimitive(a: number): PeriodicPointSet {
   const h = a / 2;
   return makeSet(3, [0, h, h, h, 0, h, h, h, 0], [0, 0, 0]);
 }
 
 /** Body-centred cubic: conventional cubic cell of edge a with 2 points. */
-export function bccConventional(a: number): PeriodicSet {
+export function bccConventional(a: number): PeriodicPointSet {
   return fromFractional(3, [a, 0, 0, 0, a, 0, 0, 0, a], [0, 0, 0, 0.5, 0.5, 0.5]);
 }
 
 /** Body-centred cubic: primitive cell (vectors a/2 (-1,1,1), (1,-1,1), (1,1,-1)). */
-export function bccPrimitive(a: number): PeriodicSet {
+export function bccPrimitive(a: number): PeriodicPointSet {
   const h = a / 2;
   return makeSet(3, [-h, h, h, h, -h, h, h, h, -h], [0, 0, 0]);
 }
@@ -101,7 +101,7 @@ export function randomBasis(rand: () => number, dim: number): Float64Array {
 }
 
 /** A random P1 set: random basis, m points at random fractional positions. */
-export function randomSet(rand: () => number, dim: number, m: number): PeriodicSet {
+export function randomSet(rand: () => number, dim: number, m: number): PeriodicPointSet {
   const basis = randomBasis(rand, dim);
   const frac = new Float64Array(m * dim);
   for (let i = 0; i < frac.length; i++) frac[i] = rand();
@@ -139,7 +139,7 @@ export function randomUnimodular(rand: () => number, dim: number, steps = 6, max
 }
 
 /** The same periodic set described with basis U*B (U unimodular), motif re-wrapped into the new cell. */
-export function changeBasis(set: PeriodicSet, u: ArrayLike<number>): PeriodicSet {
+export function changeBasis(set: PeriodicPointSet, u: ArrayLike<number>): PeriodicPointSet {
   const d = set.dim;
   const nb = new Float64Array(d * d);
   for (let r = 0; r < d; r++) {
@@ -171,7 +171,7 @@ export function wrapInto(dim: number, basis: ArrayLike<number>, motif: ArrayLike
 }
 
 /** Supercell n_1 x ... x n_d: basis rows scaled, motif repeated; asym/multiplicity follow the copies. */
-export function supercell(set: PeriodicSet, counts: number[]): PeriodicSet {
+export function supercell(set: PeriodicPointSet, counts: number[]): PeriodicPointSet {
   const d = set.dim;
   const m = set.motif.length / d;
   const copies = counts.reduce((a, b) => a * b, 1);
@@ -230,7 +230,7 @@ export function randomOrthogonal(rand: () => number, dim: number, reflect: boole
 }
 
 /** Apply x -> Q x + shift to every lattice vector (without shift) and motif point (with shift). */
-export function moveRigidly(set: PeriodicSet, q: ArrayLike<number>, shift: ArrayLike<number>): PeriodicSet {
+export function moveRigidly(set: PeriodicPointSet, q: ArrayLike<number>, shift: ArrayLike<number>): PeriodicPointSet {
   const d = set.dim;
   const apply = (src: Float64Array, withShift: boolean) => {
     const out = new Float64Array(src.length);
@@ -247,7 +247,7 @@ export function moveRigidly(set: PeriodicSet, q: ArrayLike<number>, shift: Array
 }
 
 /** The same set with its motif points listed in a random order (asym indices follow). */
-export function shuffleMotif(set: PeriodicSet, rand: () => number): PeriodicSet {
+export function shuffleMotif(set: PeriodicPointSet, rand: () => number): PeriodicPointSet {
   const d = set.dim;
   const m = set.motif.length / d;
   const perm = Array.from({ length: m }, (_, i) => i);
@@ -267,7 +267,7 @@ export function shuffleMotif(set: PeriodicSet, rand: () => number): PeriodicSet 
 }
 
 /** Every motif point moved by a random vector of length at most eps (Å). Returns a P1 set. */
-export function perturb(set: PeriodicSet, eps: number, rand: () => number): PeriodicSet {
+export function perturb(set: PeriodicPointSet, eps: number, rand: () => number): PeriodicPointSet {
   const d = set.dim;
   const m = set.motif.length / d;
   const motif = Float64Array.from(set.motif);
@@ -286,7 +286,7 @@ export function perturb(set: PeriodicSet, eps: number, rand: () => number): Peri
 }
 
 /** Every motif point as its own asymmetric unit (forgets symmetry). */
-export function asP1(set: PeriodicSet): PeriodicSet {
+export function asP1(set: PeriodicPointSet): PeriodicPointSet {
   return makeSet(set.dim, set.basis, set.motif);
 }
 
@@ -295,7 +295,7 @@ export function asP1(set: PeriodicSet): PeriodicSet {
  * expands sites: apply every operation, wrap to [0,1), merge images closer than `mergeFrac` (special
  * positions). The result carries `asym`/`multiplicity`; `asP1` of it is the same set without them.
  */
-export function expandOperations(basis: ArrayLike<number>, asymFrac: ArrayLike<number>, ops: SymOp[], mergeFrac = 1e-6): PeriodicSet {
+export function expandOperations(basis: ArrayLike<number>, asymFrac: ArrayLike<number>, ops: SymOp[], mergeFrac = 1e-6): PeriodicPointSet {
   const frac: number[] = [];
   const asym: number[] = [];
   const multiplicity: number[] = [];
