@@ -84,6 +84,45 @@ export function emdPacked(
 
 /** Columns of every cell's ground distance read up front (the rest only when pricing needs them). */
 const FIRST_COLUMNS = 4;
+/** Columns read at least each time the first basis needs a better bound of a cell. */
+const BASIS_STEP_COLUMNS = 8;
+/** Below this many cells every ground distance is computed in full at once (laziness does not pay off). */
+const EAGER_CELLS = 256;
+
+/**
+ * Read more columns of cell c's ground distance (rows at aRows[ao..] and bRows[bo..]): at least `least` of them,
+ * then stop as soon as the running maximum reaches `limit`, or at column k, where the cost is exact. Updates
+ * cost[c] (the maximum so far) and known[c] (columns read), and returns the new cost[c].
+ */
+function readColumns(
+  aRows: Float64Array,
+  ao: number,
+  bRows: Float64Array,
+  bo: number,
+  cost: Float64Array,
+  known: Int32Array,
+  c: number,
+  k: number,
+  limit: number,
+  least: number,
+): number {
+  let max = cost[c];
+  let t = known[c];
+  const leastEnd = t + least;
+  for (; t < k; t++) {
+    const d = Math.abs(aRows[ao + t] - bRows[bo + t]);
+    if (d > max) {
+      max = d;
+      if (max >= limit && t + 1 >= leastEnd) {
+        t++;
+        break;
+      }
+    }
+  }
+  cost[c] = max;
+  known[c] = t;
+  return max;
+}
 
 /** Statistics of the last solve on this thread (for benchmarks and tests of the pivoting). */
 export const lastSolve = { pivots: 0, degeneratePivots: 0, rows: 0, cols: 0 };
@@ -240,7 +279,7 @@ function solve(
   // usually show that. Every cell that enters the basis is made exact first, so the result is that of the full
   // matrix, bit for bit.
   const { known } = ws;
-  const startColumns = k < FIRST_COLUMNS ? k : FIRST_COLUMNS;
+  const startColumns = k < FIRST_COLUMNS || m * n < EAGER_CELLS ? k : FIRST_COLUMNS;
   for (let i = 0; i < m; i++) {
     const ao = rowOf[i] * k;
     const base = i * n;
@@ -300,22 +339,8 @@ function solve(
         const other = cost[order[rowHeap[2] * n]];
         if (other < limit) limit = other;
       }
-      const ao = rowOf[i] * k;
-      const bo = colOf[j] * k;
-      let max = cost[c];
-      let t = known[c];
-      for (; t < k; t++) {
-        const dd = Math.abs(aRows[ao + t] - bRows[bo + t]);
-        if (dd > max) {
-          max = dd;
-          if (max > limit) {
-            t++;
-            break;
-          }
-        }
-      }
-      cost[c] = max;
-      known[c] = t;
+      // Read a few columns at least: each round costs two heap repairs, more than a few columns do.
+      readColumns(aRows, rowOf[i] * k, bRows, colOf[j] * k, cost, known, c, k, limit, BASIS_STEP_COLUMNS);
       siftDownAt(order, base, size, 0, cost);
       siftDownRows(rowHeap, rowsInHeap, 0, order, n, cost);
       continue;
@@ -365,10 +390,14 @@ function solve(
   if (arcs !== nodes - 1) throw new Error(`EMD solver: first basis has ${arcs} arcs for ${nodes} nodes (internal error)`);
 
   // Reduced costs below -tolerance mean "improving"; the tolerance absorbs rounding in the potentials.
-  // The largest cost over all cells, without the cells: max over columns t of the widest gap between a value of
-  // A and one of B in that column (rounding of a - b is monotone, so this is the same number bit for bit).
+  // The largest cost over all cells. When the costs are not all known: max over columns t of the widest gap
+  // between a value of A and one of B in that column (rounding of a - b is monotone, so this is the same number
+  // bit for bit).
   let maxCost = 0;
-  for (let t = 0; t < k; t++) {
+  if (startColumns === k) {
+    for (let c = 0; c < cells; c++) if (cost[c] > maxCost) maxCost = cost[c];
+  }
+  for (let t = startColumns === k ? k : 0; t < k; t++) {
     let loA = Infinity;
     let hiA = -Infinity;
     for (let i = 0; i < m; i++) {
@@ -412,25 +441,7 @@ function solve(
         // A cell whose lower bound already prices at or above `best` cannot enter; otherwise read more columns
         // until it can be ruled out or its cost is exact.
         while (rc < best && known[c] < k) {
-          const at = known[c];
-          const ao = rowOf[i] * k;
-          const bo = colOf[j] * k;
-          const limit = best - pi + pj;
-          let max = cost[c];
-          let t = at;
-          for (; t < k; t++) {
-            const d = Math.abs(aRows[ao + t] - bRows[bo + t]);
-            if (d > max) {
-              max = d;
-              if (max >= limit) {
-                t++;
-                break;
-              }
-            }
-          }
-          cost[c] = max;
-          known[c] = t;
-          rc = max + pi - pj;
+          rc = readColumns(aRows, rowOf[i] * k, bRows, colOf[j] * k, cost, known, c, k, best - pi + pj, 1) + pi - pj;
         }
         if (rc < best) {
           best = rc;
