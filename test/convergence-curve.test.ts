@@ -10,6 +10,7 @@ import {
   fromKjPerMol,
 } from '../src/landscape/convergence.js';
 import type { ConvergenceCurve, StructureRow } from '../src/landscape/schema.js';
+import { seededUniform } from '../src/demo/prng.js';
 
 /** A structure row with only the fields the curve reads filled in meaningfully. */
 function row(index: number, status: StructureRow['status'], keptIndex: number | null, energyRel: number | null): StructureRow {
@@ -23,25 +24,13 @@ function row(index: number, status: StructureRow['status'], keptIndex: number | 
   };
 }
 
-/** Deterministic pseudo-random numbers (mulberry32, a common small generator). */
-function rng(seed: number): () => number {
-  let a = seed >>> 0;
-  return () => {
-    a = (a + 0x6d2b79f5) >>> 0;
-    let t = a;
-    t = Math.imul(t ^ (t >>> 15), t | 1);
-    t ^= t + Math.imul(t ^ (t >>> 7), t | 61);
-    return ((t ^ (t >>> 14)) >>> 0) / 4294967296;
-  };
-}
-
 /**
  * An invented run of `n` candidates: new distinct minima keep appearing until candidate `lastNew`
  * (inclusive), after that every candidate is a re-found duplicate of an earlier minimum (or a rejected file).
  * The kept structure of a group is its lowest-energy member, which need not be its first member.
  */
 function generatedRun(n: number, lastNew: number, seed: number): StructureRow[] {
-  const r = rng(seed);
+  const r = seededUniform(seed);
   const groupOf = new Int32Array(n).fill(-1);
   const groupEnergy: number[] = [];
   const groupMembers: number[][] = [];

@@ -4,17 +4,10 @@
 // cheapest transport). Distinct structures are kept apart by their AMD vectors, whose L-infinity distance is a
 // lower bound of the EMD (MATCH Commun. Math. Comput. Chem. 2022), so "far" is proven, not hoped for.
 import type { Landscape, StructureRow, SiftParameters } from '../src/landscape/schema.js';
+import { seededUniform } from '../src/demo/prng.js';
 
-export function rng(seed: number): () => number {
-  let a = seed >>> 0;
-  return () => {
-    a = (a + 0x6d2b79f5) >>> 0;
-    let t = a;
-    t = Math.imul(t ^ (t >>> 15), t | 1);
-    t ^= t + Math.imul(t ^ (t >>> 7), t | 61);
-    return ((t ^ (t >>> 14)) >>> 0) / 4294967296;
-  };
-}
+/** The shared seeded uniform stream (mulberry32, common practice), so every data set is reproducible. */
+export { seededUniform as rng };
 
 export interface SyntheticPdd {
   rows: number[];
@@ -103,7 +96,7 @@ export function landscapeOf(kept: SyntheticStructure[], k: number, params: Parti
  * distance > `gap` Å. Input order within each run is shuffled.
  */
 export function pairedRuns(seed: number, k: number, shared: number, onlyA: number, onlyB: number, noise: number, gap: number) {
-  const r = rng(seed);
+  const r = seededUniform(seed);
   const distinct: SyntheticPdd[] = [];
   const amds: number[][] = [];
   while (distinct.length < shared + onlyA + onlyB) {

@@ -3,17 +3,7 @@
 import { spawnSync } from 'node:child_process';
 import { describe, expect, it } from 'vitest';
 import { hungarian, matchOneToOne, type CandidatePairs } from '../src/landscape/matching.js';
-
-function rng(seed: number): () => number {
-  let a = seed >>> 0;
-  return () => {
-    a = (a + 0x6d2b79f5) >>> 0;
-    let t = a;
-    t = Math.imul(t ^ (t >>> 15), t | 1);
-    t ^= t + Math.imul(t ^ (t >>> 7), t | 61);
-    return ((t ^ (t >>> 14)) >>> 0) / 4294967296;
-  };
-}
+import { seededUniform } from '../src/demo/prng.js';
 
 /** Best (most pairs, then least total cost) over every set of disjoint candidate pairs, by exhaustive search. */
 function bruteForce(nA: number, nB: number, cost: number[][]): { count: number; total: number } {
@@ -56,7 +46,7 @@ function randomCase(r: () => number, nA: number, nB: number, density: number): {
 
 describe('matchOneToOne', () => {
   it('equals the brute-force optimum (most pairs, then least total EMD) on 600 small random cases', () => {
-    const r = rng(2024);
+    const r = seededUniform(2024);
     for (let t = 0; t < 600; t++) {
       const nA = 1 + Math.floor(r() * 6);
       const nB = 1 + Math.floor(r() * 6);
@@ -98,7 +88,7 @@ describe('matchOneToOne', () => {
 
 describe('hungarian', () => {
   it('finds the same optimal total as scipy.optimize.linear_sum_assignment on random rectangular matrices', () => {
-    const r = rng(99);
+    const r = seededUniform(99);
     const cases: Array<{ rows: number; cols: number; cost: number[] }> = [];
     for (let t = 0; t < 40; t++) {
       const rows = 1 + Math.floor(r() * 12);

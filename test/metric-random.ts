@@ -1,18 +1,10 @@
 // Random PDDs for the metric tests: seeded, so every run checks the same instances.
 // A PDD here follows the data contract in src/types.ts: each row ascending, rows in lexicographic order.
 import type { Pdd } from '../src/types.js';
+import { seededUniform } from '../src/demo/prng.js';
 
-/** Small seeded generator (mulberry32, common practice for reproducible test data). */
-export function rng(seed: number): () => number {
-  let s = seed >>> 0;
-  return () => {
-    s = (s + 0x6d2b79f5) >>> 0;
-    let t = s;
-    t = Math.imul(t ^ (t >>> 15), t | 1);
-    t ^= t + Math.imul(t ^ (t >>> 7), t | 61);
-    return ((t ^ (t >>> 14)) >>> 0) / 4294967296;
-  };
-}
+/** The shared seeded uniform stream (mulberry32, common practice), so every data set is reproducible. */
+export { seededUniform as rng };
 
 /** Build a PDD from row arrays and weights: sorts each row, then the rows lexicographically (weights follow). */
 export function makePdd(rowList: number[][], weights: number[]): Pdd {

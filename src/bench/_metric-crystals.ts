@@ -4,6 +4,7 @@
 // in a monoclinic cell of about 14 Å³ per atom (a molecular-crystal-like density; common practice, from memory).
 // Distinct packings differ in cell, orientation and position; copies of a packing differ by optimiser-like noise.
 import type { PeriodicPointSet } from '../types.js';
+import { seededUniform } from '../demo/prng.js';
 
 /** Invented molecule, Cartesian Å: a slightly puckered six-ring with five substituents. */
 const MOLECULE = [
@@ -31,7 +32,7 @@ interface PackingParams {
  * (and a matching relative noise on the cell). Returned packing by packing: copies of packing p are p*copies...
  */
 export function noisyPackings(packings: number, copies: number, noiseAngstrom: number, seed: number): PeriodicPointSet[] {
-  const rand = seeded(seed);
+  const rand = seededUniform(seed);
   const out: PeriodicPointSet[] = [];
   for (let p = 0; p < packings; p++) {
     const params = randomPacking(rand);
@@ -42,7 +43,7 @@ export function noisyPackings(packings: number, copies: number, noiseAngstrom: n
 
 /** A P1 cell of `atoms` random points at about 15 Å³ per atom: PDDs whose rows are all distinct. */
 export function randomP1(atoms: number, seed: number): PeriodicPointSet {
-  const rand = seeded(seed);
+  const rand = seededUniform(seed);
   const edge = Math.cbrt(15 * atoms);
   const basis = Float64Array.from([edge * (0.9 + 0.2 * rand()), 0, 0, edge * 0.1 * rand(), edge * (0.9 + 0.2 * rand()), 0, edge * 0.1 * rand(), edge * 0.1 * rand(), edge * (0.9 + 0.2 * rand())]);
   const frac = Float64Array.from({ length: 3 * atoms }, () => rand());
@@ -108,14 +109,5 @@ function inverse3(m: Float64Array): Float64Array {
   ]);
 }
 
-/** Seeded generator (mulberry32; common practice for reproducible benchmark data). */
-export function seeded(seed: number): () => number {
-  let s = seed >>> 0;
-  return () => {
-    s = (s + 0x6d2b79f5) >>> 0;
-    let t = s;
-    t = Math.imul(t ^ (t >>> 15), t | 1);
-    t ^= t + Math.imul(t ^ (t >>> 7), t | 61);
-    return ((t ^ (t >>> 14)) >>> 0) / 4294967296;
-  };
-}
+/** Seeded uniform stream for benchmark data (mulberry32, shared with the demo; common practice). */
+export { seededUniform as seeded };

@@ -6,6 +6,7 @@
 // map coordinates reproduce it exactly and edges are the true k nearest neighbours of that metric.
 // Nothing here is a physical calculation; it only has the shape real data has.
 import type { Family, KeptInvariants, Landscape, StructureRow } from '../landscape/schema.js';
+import { seededUniform } from '../demo/prng.js';
 
 export interface SyntheticOptions {
   /** Number of kept structures. */
@@ -35,7 +36,7 @@ const REASONS = [
 ];
 
 export function syntheticLandscape(opts: SyntheticOptions): Landscape {
-  const rand = mulberry32(opts.seed ?? 1);
+  const rand = seededUniform(opts.seed ?? 1);
   const nKept = opts.kept;
   const nDup = opts.duplicates ?? Math.round(nKept * 1.5);
   const nRej = opts.rejected ?? Math.max(1, Math.round(nKept * 0.02));
@@ -282,18 +283,7 @@ export function renameStructures(land: Landscape, overrides: NameOverride[]): La
   return land;
 }
 
-// Small deterministic generators (mulberry32: a common-practice 32-bit PRNG; Box–Muller for normals).
-function mulberry32(seed: number): () => number {
-  let a = seed >>> 0;
-  return () => {
-    a = (a + 0x6d2b79f5) >>> 0;
-    let t = a;
-    t = Math.imul(t ^ (t >>> 15), t | 1);
-    t ^= t + Math.imul(t ^ (t >>> 7), t | 61);
-    return ((t ^ (t >>> 14)) >>> 0) / 4294967296;
-  };
-}
-
+/** A normal deviate by Box–Muller (common practice) from the seeded uniform stream. */
 function gauss(rand: () => number): number {
   const u = Math.max(1e-12, rand());
   return Math.sqrt(-2 * Math.log(u)) * Math.cos(2 * Math.PI * rand());

@@ -3,17 +3,11 @@
 import { coreDistancesDense, hdbscanDense, hdbscanLazy } from '../cluster/hdbscan.js';
 import { embed2d } from '../cluster/embedding.js';
 import { embed2dLandmarks } from '../cluster/embedding-landmarks.js';
+import { seededUniform } from '../demo/prng.js';
 
 /** Invented points: Gaussian blobs in `dim` dimensions plus uniform noise, seeded (mulberry32, common practice). */
 function points(n: number, dim: number, seed: number): Float64Array {
-  let a = seed >>> 0;
-  const rand = () => {
-    a = (a + 0x6d2b79f5) >>> 0;
-    let t = a;
-    t = Math.imul(t ^ (t >>> 15), t | 1);
-    t ^= t + Math.imul(t ^ (t >>> 7), t | 61);
-    return ((t ^ (t >>> 14)) >>> 0) / 4294967296;
-  };
+  const rand = seededUniform(seed);
   const x = new Float64Array(n * dim);
   const centres = 12;
   for (let i = 0; i < n; i++) {

@@ -7,12 +7,13 @@ import { matchOneToOne } from '../landscape/matching.js';
 import { crossNeighbours, toPdd } from '../landscape/cross.js';
 import type { Pdd } from '../types.js';
 import type { Landscape, StructureRow } from '../landscape/schema.js';
+import { seededUniform } from '../demo/prng.js';
 
 const K = 100;
 
 export async function run(): Promise<void> {
   for (const [kept, shared] of [[300, 240], [1000, 750]] as const) {
-    const r = rng(kept);
+    const r = seededUniform(kept);
     const base = Array.from({ length: kept * 2 - shared }, () => randomPdd(r));
     const a = base.slice(0, kept);
     const b = [...base.slice(0, shared).map((p) => noisy(r, p)), ...base.slice(kept)];
@@ -100,13 +101,3 @@ function landscape(pdds: RawPdd[], r: () => number): Landscape {
   };
 }
 
-function rng(seed: number): () => number {
-  let a = seed >>> 0;
-  return () => {
-    a = (a + 0x6d2b79f5) >>> 0;
-    let t = a;
-    t = Math.imul(t ^ (t >>> 15), t | 1);
-    t ^= t + Math.imul(t ^ (t >>> 7), t | 61);
-    return ((t ^ (t >>> 14)) >>> 0) / 4294967296;
-  };
-}

@@ -8,11 +8,12 @@ import { availableParallelism, loadavg } from 'node:os';
 import type { PeriodicPointSet } from '../types.js';
 import { pdd } from '../invariants/pdd.js';
 import { computeInvariants } from '../invariants/batch.js';
+import { seededUniform } from '../demo/prng.js';
 
 const K = 100;
 
 export async function run(): Promise<void> {
-  const rand = seeded(20261202);
+  const rand = seededUniform(20261202);
   // On a shared machine wall-clock figures include time spent waiting for a core; the CPU figures
   // (process.cpuUsage, all threads) show the work itself.
   process.stdout.write(`load average over the last minute: ${loadavg()[0].toFixed(1)} on ${availableParallelism()} cores\n`);
@@ -178,13 +179,3 @@ function rad(deg: number): number {
   return (deg * Math.PI) / 180;
 }
 
-export function seeded(seed: number): () => number {
-  let s = seed >>> 0;
-  return () => {
-    s = (s + 0x6d2b79f5) >>> 0;
-    let t = s;
-    t = Math.imul(t ^ (t >>> 15), t | 1);
-    t ^= t + Math.imul(t ^ (t >>> 7), t | 61);
-    return ((t ^ (t >>> 14)) >>> 0) / 4294967296;
-  };
-}

@@ -2,18 +2,10 @@
 // change an isometry invariant (change of basis, supercell, rotation, reflection, origin shift, atom
 // order) or change it by a bounded amount (perturbation). Plain data in, plain data out.
 import type { PeriodicPointSet, SymOp } from '../../src/types.js';
+import { seededUniform } from '../../src/demo/prng.js';
 
-/** A small seeded generator (mulberry32, common practice) so that failures can be replayed from a seed. */
-export function seededRandom(seed: number): () => number {
-  let s = seed >>> 0;
-  return () => {
-    s = (s + 0x6d2b79f5) >>> 0;
-    let t = s;
-    t = Math.imul(t ^ (t >>> 15), t | 1);
-    t ^= t + Math.imul(t ^ (t >>> 7), t | 61);
-    return ((t ^ (t >>> 14)) >>> 0) / 4294967296;
-  };
-}
+/** The shared seeded uniform stream (mulberry32, common practice), so every data set is reproducible. */
+export { seededUniform as seededRandom };
 
 /** A P1 set from a basis (rows) and Cartesian motif points; every point is its own asymmetric unit. */
 export function makeSet(dim: number, basis: ArrayLike<number>, motif: ArrayLike<number>): PeriodicPointSet {
