@@ -33,6 +33,7 @@
 // Label numbering (ours): clusters are numbered 0, 1, ... in order of their smallest member index;
 // -1 is noise. Membership probabilities follow scikit-learn: lambda at which a point leaves its
 // cluster, capped at and divided by the largest lambda among the selected cluster's direct children.
+import { selectKth } from './select-kth.js';
 
 export interface HdbscanOptions {
   /** Smallest group that counts as a cluster (scikit-learn `min_cluster_size`, at least 2). */
@@ -683,30 +684,4 @@ function checkOptions(n: number, opts: HdbscanOptions): { minSamples: number } {
 /** Fewer than two points: nothing to cluster, everything is noise (scikit-learn refuses n = 1). */
 function trivialResult(n: number): HdbscanResult {
   return { labels: new Int32Array(n).fill(-1), probabilities: new Float64Array(n) };
-}
-
-/** k-th smallest (0-based) of `a`, reordering `a` in place (Hoare's selection). */
-function selectKth(a: Float64Array, k: number): number {
-  let lo = 0;
-  let hi = a.length - 1;
-  while (hi > lo) {
-    const pivot = a[(lo + hi) >> 1];
-    let i = lo;
-    let j = hi;
-    while (i <= j) {
-      while (a[i] < pivot) i++;
-      while (a[j] > pivot) j--;
-      if (i <= j) {
-        const t = a[i];
-        a[i] = a[j];
-        a[j] = t;
-        i++;
-        j--;
-      }
-    }
-    if (k <= j) hi = j;
-    else if (k >= i) lo = i;
-    else return a[k];
-  }
-  return a[k];
 }

@@ -7,6 +7,7 @@
 // the original metric, and r(i, j) is the rank of j among i's neighbours in the original metric
 // (1 = nearest). Reference: scikit-learn's `sklearn.manifold.trustworthiness(metric="precomputed")`.
 // Equal distances are ranked by point index, in the original metric and in the picture.
+import { selectKth } from './select-kth.js';
 
 /**
  * Trustworthiness at k of 2-D coordinates `coords` (n*2) against the metric `dist` (n*n).
@@ -59,30 +60,4 @@ export function trustworthiness(dist: Float64Array, n: number, coords: Float64Ar
     }
   }
   return 1 - penalty * (2 / (n * k * (2 * n - 3 * k - 1)));
-}
-
-/** k-th smallest (0-based) of `a`, reordering `a` in place (Hoare's selection). */
-function selectKth(a: Float64Array, k: number): number {
-  let lo = 0;
-  let hi = a.length - 1;
-  while (hi > lo) {
-    const pivot = a[(lo + hi) >> 1];
-    let i = lo;
-    let j = hi;
-    while (i <= j) {
-      while (a[i] < pivot) i++;
-      while (a[j] > pivot) j--;
-      if (i <= j) {
-        const t = a[i];
-        a[i] = a[j];
-        a[j] = t;
-        i++;
-        j--;
-      }
-    }
-    if (k <= j) hi = j;
-    else if (k >= i) lo = i;
-    else return a[k];
-  }
-  return a[k];
 }
