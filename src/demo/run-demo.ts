@@ -6,7 +6,7 @@ import { join } from 'node:path';
 import { generateLandscape, type GeneratorOptions } from './landscape.js';
 import { runMiniSearch } from './search/search.js';
 import { binByWindows } from './window-binning.js';
-import { sift } from '../landscape/sift.js';
+import { sift, type SiftRun } from '../landscape/sift.js';
 import { siftFiles } from '../landscape/sift-files.js';
 import { writeFilesAtomically } from '../io/outputs.js';
 import { csvLine } from '../io/outputs.js';
@@ -59,21 +59,13 @@ export async function runDemo(
     csvLine(['start', 'space_group', 'reason']),
     ...found.rejected.map((r) => csvLine([r.start, r.group, r.reason])),
   ].join('\n');
-  const inputs = writeFilesAtomically(out, [
-    ['demo-search.cif', found.cif],
-    ['demo-energies.csv', found.energiesCsv],
-    ['demo-rejected-starts.csv', `${rejectedCsv}\n`],
-  ]);
-  const run = await sift({
-    inputs: [inputs[0]],
-    energiesFile: inputs[1],
-    threads: opts.threads,
-    cacheDir: join(out, '.polysift-cache'),
-    progress: opts.progress,
-  });
-  const files = writeFilesAtomically(
+  const { run, files } = await writeAndSift(
     out,
-    siftFiles(run, { title: `polysift demo: invented search on ${found.moleculeName} (${found.starts} random starts)` }),
+    found.cif,
+    found.energiesCsv,
+    ['demo-rejected-starts.csv', `${rejectedCsv}\n`],
+    `polysift demo: invented search on ${found.moleculeName} (${found.starts} random starts)`,
+    opts,
   );
   const l = run.landscape;
   const bins = binByWindows(found.energiesKjPerMol, l.structures.map((r) => r.densityGPerCm3 ?? 0));
@@ -87,7 +79,7 @@ export async function runDemo(
     ariSift: null,
     binGroups: new Set(bins).size,
     ariBins: null,
-    files: [...inputs, ...files],
+    files,
   };
 }
 
@@ -99,19 +91,14 @@ async function runPlantedDemo(
   const gen = generateLandscape(opts.generator ?? DEMO_GENERATOR);
   opts.progress?.done();
   const truth = [csvLine(['id', 'planted_packing', 'written_as']), ...gen.ids.map((id, i) => csvLine([id, gen.truth[i], gen.kinds[i]]))].join('\n');
-  const inputs = writeFilesAtomically(out, [
-    ['demo-search.cif', gen.cif],
-    ['demo-energies.csv', gen.energiesCsv],
+  const { run, files } = await writeAndSift(
+    out,
+    gen.cif,
+    gen.energiesCsv,
     ['demo-truth.csv', `${truth}\n`],
-  ]);
-  const run = await sift({
-    inputs: [inputs[0]],
-    energiesFile: inputs[1],
-    threads: opts.threads,
-    cacheDir: join(out, '.polysift-cache'),
-    progress: opts.progress,
-  });
-  const files = writeFilesAtomically(out, siftFiles(run, { title: `polysift demo: invented search on ${gen.moleculeName}` }));
+    `polysift demo: invented search on ${gen.moleculeName}`,
+    opts,
+  );
   const l = run.landscape;
   const bins = binByWindows(gen.energiesKjPerMol, l.structures.map((r) => r.densityGPerCm3 ?? 0));
   return {
@@ -124,6 +111,30 @@ async function runPlantedDemo(
     ariSift: adjustedRandIndex(l.structures.map((r) => r.keptIndex ?? -1 - r.index), gen.truth),
     binGroups: new Set(bins).size,
     ariBins: adjustedRandIndex(bins, gen.truth),
-    files: [...inputs, ...files],
+    files,
   };
+}
+
+/**
+ * Both demo kinds end the same way: write the invented search (CIF, energies CSV and one side table) into `out`,
+ * sift it there (cache beside it) and write the sift outputs. Returns the run and every file written, inputs first.
+ */
+async function writeAndSift(
+  out: string,
+  cif: string,
+  energiesCsv: string,
+  sideTable: [string, string],
+  title: string,
+  opts: { threads?: number; progress?: Progress },
+): Promise<{ run: SiftRun; files: string[] }> {
+  const inputs = writeFilesAtomically(out, [['demo-search.cif', cif], ['demo-energies.csv', energiesCsv], sideTable]);
+  const run = await sift({
+    inputs: [inputs[0]],
+    energiesFile: inputs[1],
+    threads: opts.threads,
+    cacheDir: join(out, '.polysift-cache'),
+    progress: opts.progress,
+  });
+  const outputs = writeFilesAtomically(out, siftFiles(run, { title }));
+  return { run, files: [...inputs, ...outputs] };
 }
