@@ -52,14 +52,7 @@ export function randomP1(atoms: number, seed: number): PeriodicPointSet {
 }
 
 function randomPacking(rand: () => number): PackingParams {
-  const q = [rand() - 0.5, rand() - 0.5, rand() - 0.5, rand() - 0.5];
-  const qn = Math.hypot(...q);
-  const [w, x, y, z] = q.map((t) => t / qn);
-  const rot = [
-    1 - 2 * (y * y + z * z), 2 * (x * y - w * z), 2 * (x * z + w * y),
-    2 * (x * y + w * z), 1 - 2 * (x * x + z * z), 2 * (y * z - w * x),
-    2 * (x * z - w * y), 2 * (y * z + w * x), 1 - 2 * (x * x + y * y),
-  ];
+  const rot = randomRotation(rand);
   return { a: 6 + 4 * rand(), b: 5 + 3 * rand(), betaRad: ((95 + 20 * rand()) * Math.PI) / 180, rot, centre: [0.5 * rand(), 0.25 * rand(), 0.5 * rand()] };
 }
 
@@ -70,16 +63,45 @@ function build(p: PackingParams, noise: number, rand: () => number): PeriodicPoi
   const beta = p.betaRad + jitter() / 100;
   const c = (44 * 14) / (p.a * p.b * Math.sin(p.betaRad));
   const basis = Float64Array.from([a, 0, 0, 0, b, 0, c * Math.cos(beta), 0, c * Math.sin(beta)]);
-  const inv = inverse3(basis);
-  const asymFrac = new Float64Array(33);
-  for (let i = 0; i < 11; i++) {
-    const m = [MOLECULE[3 * i] + jitter(), MOLECULE[3 * i + 1] + jitter(), MOLECULE[3 * i + 2] + jitter()];
-    const cart = [0, 1, 2].map((r) => p.rot[3 * r] * m[0] + p.rot[3 * r + 1] * m[1] + p.rot[3 * r + 2] * m[2]);
-    for (let col = 0; col < 3; col++) asymFrac[3 * i + col] = p.centre[col] + cart[0] * inv[col] + cart[1] * inv[3 + col] + cart[2] * inv[6 + col];
+  return p21cSet(basis, placeMolecule(MOLECULE, p.rot, p.centre, inverse3(basis), jitter));
+}
+
+/** A random rotation (row-major 3x3) from a random unit quaternion; draws four numbers from `rand`. */
+export function randomRotation(rand: () => number): number[] {
+  const q = [rand() - 0.5, rand() - 0.5, rand() - 0.5, rand() - 0.5];
+  const qn = Math.hypot(...q);
+  const [w, x, y, z] = q.map((t) => t / qn);
+  return [
+    1 - 2 * (y * y + z * z), 2 * (x * y - w * z), 2 * (x * z + w * y),
+    2 * (x * y + w * z), 1 - 2 * (x * x + z * z), 2 * (y * z - w * x),
+    2 * (x * z - w * y), 2 * (y * z + w * x), 1 - 2 * (x * x + y * y),
+  ];
+}
+
+/**
+ * Fractional coordinates of a molecule (Cartesian Å, 3 per atom) turned by `rot` and placed at fractional `centre`
+ * in the cell whose inverse basis is `inv`; `jitter`, if given, is added to each molecule coordinate first
+ * (x, y, z of each atom in turn).
+ */
+export function placeMolecule(molecule: number[], rot: number[], centre: number[], inv: Float64Array, jitter?: () => number): Float64Array {
+  const atoms = molecule.length / 3;
+  const asymFrac = new Float64Array(3 * atoms);
+  for (let i = 0; i < atoms; i++) {
+    const m = jitter
+      ? [molecule[3 * i] + jitter(), molecule[3 * i + 1] + jitter(), molecule[3 * i + 2] + jitter()]
+      : [molecule[3 * i], molecule[3 * i + 1], molecule[3 * i + 2]];
+    const cart = [0, 1, 2].map((r) => rot[3 * r] * m[0] + rot[3 * r + 1] * m[1] + rot[3 * r + 2] * m[2]);
+    for (let col = 0; col < 3; col++) asymFrac[3 * i + col] = centre[col] + cart[0] * inv[col] + cart[1] * inv[3 + col] + cart[2] * inv[6 + col];
   }
-  const frac = new Float64Array(44 * 3);
-  const asym = new Int32Array(11);
-  for (let i = 0; i < 11; i++) {
+  return asymFrac;
+}
+
+/** The P2_1/c cell (four images of each asymmetric-unit point, wrapped to [0, 1)) as a carbon-only periodic set. */
+export function p21cSet(basis: Float64Array, asymFrac: Float64Array): PeriodicPointSet {
+  const m = asymFrac.length / 3;
+  const frac = new Float64Array(4 * m * 3);
+  const asym = new Int32Array(m);
+  for (let i = 0; i < m; i++) {
     asym[i] = 4 * i;
     for (let o = 0; o < 4; o++) {
       for (let col = 0; col < 3; col++) {
@@ -88,10 +110,11 @@ function build(p: PackingParams, noise: number, rand: () => number): PeriodicPoi
       }
     }
   }
-  return { dim: 3, basis, motif: fracToCart(basis, frac), atomicNumbers: new Uint8Array(44).fill(6), asym, multiplicity: new Int32Array(11).fill(4) };
+  return { dim: 3, basis, motif: fracToCart(basis, frac), atomicNumbers: new Uint8Array(4 * m).fill(6), asym, multiplicity: new Int32Array(m).fill(4) };
 }
 
-function fracToCart(basis: Float64Array, frac: Float64Array): Float64Array {
+/** Cartesian coordinates of fractional points (3 per point) in the cell whose rows are `basis`. */
+export function fracToCart(basis: Float64Array, frac: Float64Array): Float64Array {
   const out = new Float64Array(frac.length);
   for (let t = 0; t < frac.length / 3; t++) {
     for (let c = 0; c < 3; c++) out[3 * t + c] = frac[3 * t] * basis[c] + frac[3 * t + 1] * basis[3 + c] + frac[3 * t + 2] * basis[6 + c];
@@ -100,7 +123,7 @@ function fracToCart(basis: Float64Array, frac: Float64Array): Float64Array {
 }
 
 /** Inverse of a 3x3 matrix whose rows are lattice vectors (cofactor formula). */
-function inverse3(m: Float64Array): Float64Array {
+export function inverse3(m: Float64Array): Float64Array {
   const d = m[0] * (m[4] * m[8] - m[5] * m[7]) - m[1] * (m[3] * m[8] - m[5] * m[6]) + m[2] * (m[3] * m[7] - m[4] * m[6]);
   return Float64Array.from([
     (m[4] * m[8] - m[5] * m[7]) / d, (m[2] * m[7] - m[1] * m[8]) / d, (m[1] * m[5] - m[2] * m[4]) / d,

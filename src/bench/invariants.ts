@@ -9,6 +9,7 @@ import type { PeriodicPointSet } from '../types.js';
 import { pdd } from '../invariants/pdd.js';
 import { computeInvariants } from '../invariants/batch.js';
 import { seededUniform } from '../demo/prng.js';
+import { fracToCart, inverse3, p21cSet, placeMolecule, randomRotation } from './_metric-crystals.js';
 
 const K = 100;
 
@@ -98,44 +99,10 @@ export function molecularCrystal(rand: () => number): PeriodicPointSet {
   // Choose c so the cell holds about 14 Å³ per atom (44 atoms), a molecular-crystal-like density (common practice).
   const c = (44 * 14) / (a * b * Math.sin(beta));
   const basis = Float64Array.from([a, 0, 0, 0, b, 0, c * Math.cos(beta), 0, c * Math.sin(beta)]);
-  const inv = inv3(basis);
   // Random orientation (unit quaternion) and position of the molecule.
-  const q = [rand() - 0.5, rand() - 0.5, rand() - 0.5, rand() - 0.5];
-  const qn = Math.hypot(...q);
-  const [w, x, y, z] = q.map((t) => t / qn);
-  const r = [1 - 2 * (y * y + z * z), 2 * (x * y - w * z), 2 * (x * z + w * y), 2 * (x * y + w * z), 1 - 2 * (x * x + z * z), 2 * (y * z - w * x), 2 * (x * z - w * y), 2 * (y * z + w * x), 1 - 2 * (x * x + y * y)];
+  const rot = randomRotation(rand);
   const centre = [rand() * 0.5, rand() * 0.25, rand() * 0.5];
-  const asymFrac = new Float64Array(33);
-  for (let i = 0; i < 11; i++) {
-    const m = [MOLECULE[3 * i], MOLECULE[3 * i + 1], MOLECULE[3 * i + 2]];
-    const cart = [0, 1, 2].map((row) => r[3 * row] * m[0] + r[3 * row + 1] * m[1] + r[3 * row + 2] * m[2]);
-    for (let col = 0; col < 3; col++) asymFrac[3 * i + col] = centre[col] + cart[0] * inv[col] + cart[1] * inv[3 + col] + cart[2] * inv[6 + col];
-  }
-  const ops = [
-    [1, 1, 1, 0, 0, 0],
-    [-1, 1, -1, 0, 0.5, 0.5],
-    [-1, -1, -1, 0, 0, 0],
-    [1, -1, 1, 0, 0.5, 0.5],
-  ];
-  const frac = new Float64Array(44 * 3);
-  const asym = new Int32Array(11);
-  for (let i = 0; i < 11; i++) {
-    asym[i] = 4 * i;
-    for (let o = 0; o < 4; o++) {
-      for (let col = 0; col < 3; col++) {
-        const f = ops[o][col] * asymFrac[3 * i + col] + ops[o][3 + col];
-        frac[(4 * i + o) * 3 + col] = f - Math.floor(f);
-      }
-    }
-  }
-  return {
-    dim: 3,
-    basis,
-    motif: fracToCart(basis, frac),
-    atomicNumbers: new Uint8Array(44).fill(6),
-    asym,
-    multiplicity: new Int32Array(11).fill(4),
-  };
+  return p21cSet(basis, placeMolecule(MOLECULE, rot, centre, inverse3(basis)));
 }
 
 function asP1(s: PeriodicPointSet): PeriodicPointSet {
@@ -154,25 +121,8 @@ function cellBasis(a: number, b: number, c: number, alpha: number, beta: number,
   return Float64Array.from([a, 0, 0, b * Math.cos(gamma), b * Math.sin(gamma), 0, cx, cy, cz]);
 }
 
-function fracToCart(basis: Float64Array, frac: Float64Array): Float64Array {
-  const out = new Float64Array(frac.length);
-  for (let p = 0; p < frac.length / 3; p++) {
-    for (let c = 0; c < 3; c++) out[3 * p + c] = frac[3 * p] * basis[c] + frac[3 * p + 1] * basis[3 + c] + frac[3 * p + 2] * basis[6 + c];
-  }
-  return out;
-}
-
 function det3(m: Float64Array): number {
   return m[0] * (m[4] * m[8] - m[5] * m[7]) - m[1] * (m[3] * m[8] - m[5] * m[6]) + m[2] * (m[3] * m[7] - m[4] * m[6]);
-}
-
-function inv3(m: Float64Array): Float64Array {
-  const d = det3(m);
-  return Float64Array.from([
-    (m[4] * m[8] - m[5] * m[7]) / d, (m[2] * m[7] - m[1] * m[8]) / d, (m[1] * m[5] - m[2] * m[4]) / d,
-    (m[5] * m[6] - m[3] * m[8]) / d, (m[0] * m[8] - m[2] * m[6]) / d, (m[2] * m[3] - m[0] * m[5]) / d,
-    (m[3] * m[7] - m[4] * m[6]) / d, (m[1] * m[6] - m[0] * m[7]) / d, (m[0] * m[4] - m[1] * m[3]) / d,
-  ]);
 }
 
 function rad(deg: number): number {
