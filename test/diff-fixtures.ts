@@ -5,14 +5,13 @@
 // lower bound of the EMD (MATCH Commun. Math. Comput. Chem. 2022), so "far" is proven, not hoped for.
 import type { Landscape, StructureRow, SiftParameters } from '../src/landscape/schema.js';
 import { seededUniform } from '../src/demo/prng.js';
+import { amdOf, noisyCopy, type SyntheticPdd } from '../src/bench/_synthetic-pdd.js';
 
 /** The shared seeded uniform stream (mulberry32, common practice), so every data set is reproducible. */
 export { seededUniform as rng };
 
-export interface SyntheticPdd {
-  rows: number[];
-  weights: number[];
-}
+/** Shared with the diff/locate benchmark (src/bench/_synthetic-pdd.ts). */
+export { amdOf, noisyCopy, type SyntheticPdd } from '../src/bench/_synthetic-pdd.js';
 
 /** A random PDD: `n` rows of k ascending distances starting near `start` Å. */
 export function randomPdd(r: () => number, k: number, n: number, start: number): SyntheticPdd {
@@ -27,24 +26,6 @@ export function randomPdd(r: () => number, k: number, n: number, start: number):
   const raw = Array.from({ length: n }, () => 0.5 + r());
   const sum = raw.reduce((s, w) => s + w, 0);
   return { rows, weights: raw.map((w) => w / sum) };
-}
-
-/** The same PDD with every entry moved by at most `noise` Å (rows re-sorted ascending). */
-export function noisyCopy(r: () => number, p: SyntheticPdd, k: number, noise: number): SyntheticPdd {
-  const rows = p.rows.map((x) => x + (2 * r() - 1) * noise);
-  for (let i = 0; i < rows.length; i += k) {
-    const row = rows.slice(i, i + k).sort((a, b) => a - b);
-    for (let j = 0; j < k; j++) rows[i + j] = row[j];
-  }
-  return { rows, weights: p.weights.slice() };
-}
-
-export function amdOf(p: SyntheticPdd, k: number): number[] {
-  const out = new Array<number>(k).fill(0);
-  p.weights.forEach((w, i) => {
-    for (let j = 0; j < k; j++) out[j] += w * p.rows[i * k + j];
-  });
-  return out;
 }
 
 export function amdLinf(a: number[], b: number[]): number {

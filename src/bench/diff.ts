@@ -8,6 +8,7 @@ import { crossNeighbours, toPdd } from '../landscape/cross.js';
 import type { Pdd } from '../types.js';
 import type { Landscape, StructureRow } from '../landscape/schema.js';
 import { seededUniform } from '../demo/prng.js';
+import { amdOf, noisyCopy, type SyntheticPdd as RawPdd } from './_synthetic-pdd.js';
 
 const K = 100;
 
@@ -37,15 +38,13 @@ export async function run(): Promise<void> {
     );
     const refs: ReferenceInvariants[] = a.slice(0, 20).map((p, i) => {
       const q = noisy(r, p);
-      return { id: `ref-${i}`, source: `ref.cif#ref-${i}`, pdd: asPdd(q), amd: amdOf(q), densityGPerCm3: null, spaceGroup: null, notes: [] };
+      return { id: `ref-${i}`, source: `ref.cif#ref-${i}`, pdd: asPdd(q), amd: amdOf(q, K), densityGPerCm3: null, spaceGroup: null, notes: [] };
     });
     t = performance.now();
     await locateReferences(lb, 'B', refs);
     process.stdout.write(`locate 20 references in ${kept} kept: ${(performance.now() - t).toFixed(0)} ms\n`);
   }
 }
-
-interface RawPdd { rows: number[]; weights: number[] }
 
 function randomPdd(r: () => number): RawPdd {
   const n = 1 + Math.floor(r() * 4);
@@ -62,23 +61,13 @@ function randomPdd(r: () => number): RawPdd {
   return { rows, weights: w.map((x) => x / s) };
 }
 
+/** A copy of `p` with row noise ≤ 0.004 Å: the same structure found again in the other run. */
 function noisy(r: () => number, p: RawPdd): RawPdd {
-  const rows = p.rows.map((x) => x + (2 * r() - 1) * 0.004);
-  for (let i = 0; i < rows.length; i += K) {
-    const sorted = rows.slice(i, i + K).sort((x, y) => x - y);
-    for (let j = 0; j < K; j++) rows[i + j] = sorted[j];
-  }
-  return { rows, weights: p.weights.slice() };
+  return noisyCopy(r, p, K, 0.004);
 }
 
 function asPdd(p: RawPdd): Pdd {
   return { k: K, rows: Float64Array.from(p.rows), weights: Float64Array.from(p.weights) };
-}
-
-function amdOf(p: RawPdd): number[] {
-  const out = new Array<number>(K).fill(0);
-  p.weights.forEach((w, i) => { for (let j = 0; j < K; j++) out[j] += w * p.rows[i * K + j]; });
-  return out;
 }
 
 function landscape(pdds: RawPdd[], r: () => number): Landscape {
@@ -96,7 +85,7 @@ function landscape(pdds: RawPdd[], r: () => number): Landscape {
     parameters: { k: K, hydrogens: 'keep', toleranceAngstrom: 0.05, minFamilySize: 5, minSamples: 5, energyWindow: null, energyUnit: 'kJ/mol', neighbours: 5, inputs: [], energiesFile: null, energyItem: null },
     counts: { input: pdds.length, kept: pdds.length, duplicate: 0, rejected: 0, outsideWindow: 0 },
     lowestEnergy: low, structures, kept: structures.map((s) => s.index), edges: [], families: [], embedding: null,
-    invariants: { k: K, hydrogens: 'keep', kept: pdds.map((p, i) => ({ index: i, amd: amdOf(p), pddWeights: p.weights, pddRows: p.rows })) },
+    invariants: { k: K, hydrogens: 'keep', kept: pdds.map((p, i) => ({ index: i, amd: amdOf(p, K), pddWeights: p.weights, pddRows: p.rows })) },
     convergence: null,
   };
 }
