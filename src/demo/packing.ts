@@ -218,7 +218,7 @@ export function drawPacking(group: GeneratedGroup, mol: MoleculeTemplate, rng: R
 export function closePartner(base: Packing, mol: MoleculeTemplate, rng: Rng, angleDeg: number, stretch: number): Packing | null {
   const ops = groupOps(base.group);
   const basis0 = basisFromCell(...base.cell);
-  // Recover the molecule's centre (fractional) and its Cartesian atoms relative to that centre.
+  // Recover the molecule's centre (fractional) and its Cartesian atoms relative to that centre (as a template).
   const n = mol.elements.length;
   const cart: Vec3[] = [];
   const centre: Vec3 = [0, 0, 0];
@@ -228,6 +228,8 @@ export function closePartner(base: Packing, mol: MoleculeTemplate, rng: Rng, ang
     for (let r = 0; r < 3; r++) centre[r] += p[r] / n;
   }
   const centreFrac = vecMat(centre, inverse(basis0));
+  const relative: MoleculeTemplate = { ...mol, xyz: new Float64Array(3 * n) };
+  for (let a = 0; a < n; a++) for (let r = 0; r < 3; r++) relative.xyz[3 * a + r] = cart[a][r] - centre[r];
   for (let attempt = 0; attempt < 40; attempt++) {
     const axis: Vec3 = [rng.normal(1), rng.normal(1), rng.normal(1)];
     const turn = rotation(axis, (angleDeg * Math.PI) / 180);
@@ -236,21 +238,7 @@ export function closePartner(base: Packing, mol: MoleculeTemplate, rng: Rng, ang
     cell[i] *= 1 + stretch;
     cell[j] /= 1 + stretch;
     const basis = basisFromCell(...cell);
-    const inv = inverse(basis);
-    const c = vecMat(centreFrac, basis);
-    const frac = new Float64Array(3 * n);
-    for (let a = 0; a < n; a++) {
-      const d: Vec3 = [cart[a][0] - centre[0], cart[a][1] - centre[1], cart[a][2] - centre[2]];
-      const q: Vec3 = [
-        turn[0] * d[0] + turn[1] * d[1] + turn[2] * d[2] + c[0],
-        turn[3] * d[0] + turn[4] * d[1] + turn[5] * d[2] + c[1],
-        turn[6] * d[0] + turn[7] * d[1] + turn[8] * d[2] + c[2],
-      ];
-      const fr = vecMat(q, inv);
-      frac[3 * a] = fr[0];
-      frac[3 * a + 1] = fr[1];
-      frac[3 * a + 2] = fr[2];
-    }
+    const frac = placeMolecule(relative, turn, centreFrac, basis);
     if (contactRatio(basis, ops, frac, mol.elements) < 1) continue;
     const p: Packing = { group: base.group, cell, frac, densityGPerCm3: 0 };
     p.densityGPerCm3 = packingDensity(p, mol);
