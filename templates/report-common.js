@@ -153,6 +153,12 @@
     }
   }
 
+  /** Run fn after the next frame has been produced (a task queued from an animation frame callback runs
+   * after that frame's rendering). */
+  function afterPaint(fn) {
+    requestAnimationFrame(function () { setTimeout(fn, 0); });
+  }
+
   function expectReady(part) {
     readyParts[part] = false;
   }
@@ -346,6 +352,7 @@
     plotConfig: plotConfig,
     baseLayout: baseLayout,
     markReady: markReady,
+    afterPaint: afterPaint,
     expectReady: expectReady,
     createTable: createTable,
   };

@@ -66,28 +66,53 @@
   // ---- Landscape -------------------------------------------------------------------------------
   var landscapeDiv = document.getElementById('landscape-plot');
   var gl = P.scatterType(D.kept.length + duplicates.length);
+  // Kept markers as SVG up to KEPT_SVG_LIMIT: measured with 10,000 kept structures in headless Chromium
+  // (software WebGL), SVG markers were drawn sooner than WebGL ones (src/bench/report.ts).
+  var KEPT_SVG_LIMIT = 20000;
+  var keptType = D.kept.length <= KEPT_SVG_LIMIT ? 'scatter' : gl;
   var traces = [];
-  var lineTraces = [];
   var classes = D.edgeClasses;
-  // One line trace per EMD colour class; segments separated by nulls.
-  for (var cl = 0; cl < classes.colours.length; cl++) {
-    lineTraces.push({ x: [], y: [] });
-  }
-  for (var q = 0; q < D.edgeClass.length; q++) {
-    var ea = D.edges[3 * q], eb = D.edges[3 * q + 1];
-    var t = lineTraces[D.edgeClass[q]];
-    t.x.push(S.density[ea], S.density[eb], null);
-    t.y.push(yOf(ea), yOf(eb), null);
-  }
-  report.traces.lines = [];
-  lineTraces.forEach(function (lt, k) {
-    report.traces.lines.push(traces.length);
-    traces.push({
-      type: gl, mode: 'lines', x: lt.x, y: lt.y, hoverinfo: 'skip', showlegend: false,
-      name: 'EMD ' + P.fmtDistance(classes.boundsAngstrom[k]) + '–' + P.fmtDistance(classes.boundsAngstrom[k + 1]) + ' Å',
-      line: { color: classes.colours[k], width: 1.2 }, opacity: 0.75,
+  // Neighbourhood lines: one SVG path per EMD colour class, drawn by the page into the plot's own layer
+  // (under the markers, clipped to the plot area) and redrawn after every zoom or pan. As line traces the
+  // plotting library spends seconds on 30,000 edges (measured with src/bench/report.ts); here it is one
+  // pass over the edges mapping data to pixels.
+  var showLines = true;
+  var linesGroup = null;
+  function drawLines() {
+    var plotLayer = landscapeDiv.querySelector('.overplot > .xy');
+    var fl = landscapeDiv._fullLayout;
+    if (!plotLayer || !fl) return;
+    if (!linesGroup || linesGroup.parentNode !== plotLayer) {
+      linesGroup = document.createElementNS('http://www.w3.org/2000/svg', 'g');
+      linesGroup.setAttribute('class', 'ps-lines');
+      linesGroup.setAttribute('pointer-events', 'none');
+      plotLayer.insertBefore(linesGroup, plotLayer.firstChild);
+    }
+    linesGroup.style.display = showLines ? '' : 'none';
+    if (!showLines) return;
+    var xa = fl.xaxis, ya = fl.yaxis;
+    var px = new Float64Array(S.density.length), py = new Float64Array(S.density.length);
+    var seen = new Uint8Array(S.density.length);
+    var d = [];
+    for (var k = 0; k < classes.colours.length; k++) d.push([]);
+    for (var q = 0; q < D.edgeClass.length; q++) {
+      var ea = D.edges[3 * q], eb = D.edges[3 * q + 1];
+      if (!seen[ea]) { px[ea] = xa.l2p(S.density[ea]); py[ea] = ya.l2p(yOf(ea)); seen[ea] = 1; }
+      if (!seen[eb]) { px[eb] = xa.l2p(S.density[eb]); py[eb] = ya.l2p(yOf(eb)); seen[eb] = 1; }
+      d[D.edgeClass[q]].push('M' + px[ea].toFixed(1) + ',' + py[ea].toFixed(1) + 'L' + px[eb].toFixed(1) + ',' + py[eb].toFixed(1));
+    }
+    P.clear(linesGroup);
+    d.forEach(function (segs, k) {
+      if (segs.length === 0) return;
+      var path = document.createElementNS('http://www.w3.org/2000/svg', 'path');
+      path.setAttribute('d', segs.join(''));
+      path.setAttribute('fill', 'none');
+      path.setAttribute('stroke', classes.colours[k]);
+      path.setAttribute('stroke-width', '1.2');
+      path.setAttribute('stroke-opacity', '0.75');
+      linesGroup.appendChild(path);
     });
-  });
+  }
   if (classes.colours.length > 0) {
     // The colour bar legend for the lines: an invisible point carrying the stepped colour scale.
     var bounds = classes.boundsAngstrom;
@@ -118,7 +143,7 @@
   });
   report.traces.kept = traces.length;
   traces.push({
-    type: gl, mode: 'markers', name: 'Kept structures',
+    type: keptType, mode: 'markers', name: 'Kept structures',
     x: D.kept.map(function (i) { return S.density[i]; }),
     y: D.kept.map(yOf),
     text: D.kept.map(hoverText),
@@ -173,20 +198,27 @@
   performance.mark('polysift:traces');
   Plotly.newPlot(landscapeDiv, traces, landscapeLayout, P.plotConfig).then(function () {
     performance.mark('polysift:landscape');
+    drawLines();
+    // Every redraw of the plot (zoom, pan, resize, restyle) moves the lines with the axes.
+    landscapeDiv.on('plotly_afterplot', drawLines);
     landscapeDiv.on('plotly_click', function (ev) { onPlotClick(ev, 'landscape'); });
-    P.markReady('landscape');
-    // The other panels draw after the landscape so that it appears first.
-    setTimeout(drawSecondary, 0);
+    // Ready once the frame holding the landscape has been produced: the library's promise resolves
+    // before the browser has painted (measured: with WebGL traces the paint came seconds later).
+    P.afterPaint(function () {
+      performance.mark('polysift:painted');
+      P.markReady('landscape');
+      // The other panels draw after the landscape has been painted, so that it is not waiting for them.
+      setTimeout(drawSecondary, 0);
+    });
   });
 
   document.getElementById('show-duplicates').addEventListener('change', function (ev) {
     Plotly.restyle(landscapeDiv, { visible: ev.target.checked }, [report.traces.duplicates]);
   });
   document.getElementById('show-lines').addEventListener('change', function (ev) {
-    var idx = report.traces.lines.slice();
-    if (report.traces.lineLegend !== undefined) idx.push(report.traces.lineLegend);
-    if (idx.length === 0) return;
-    Plotly.restyle(landscapeDiv, { visible: ev.target.checked }, idx);
+    showLines = ev.target.checked;
+    drawLines();
+    if (report.traces.lineLegend !== undefined) Plotly.restyle(landscapeDiv, { visible: showLines }, [report.traces.lineLegend]);
   });
 
   function onPlotClick(ev, plot) {
