@@ -50,6 +50,15 @@ describe('energies CSV', () => {
     expect(summary).toMatch(/1 id\(s\) in e.csv match no structure: ghost/);
   });
 
+  it('gives no energy to structures that share an id, since the CSV cannot tell them apart', () => {
+    const t = parseEnergyCsv('id,energy\nglobal,-5\nsolo,-6\n', 'e.csv');
+    const a = assignEnergies(['global', 'solo', 'global'], t);
+    expect(a.energy).toEqual([null, -6, null]);
+    expect(a.problem[0]).toMatch(/no energy: the id is shared by 2 structures in the inputs, so e.csv cannot tell them apart/);
+    expect(a.problem[1]).toBe('');
+    expect(energySummary(t, a).join('\n')).toMatch(/2 structure\(s\) share their id with another input structure/);
+  });
+
   it('names the file and the missing column in one line', () => {
     expect(() => parseEnergyCsv('id,value\na,1\n', 'x.csv')).toThrow(/^x.csv: no column 'energy' in the header \(columns: 'id', 'value'\)/);
     expect(() => parseEnergyCsv('', 'x.csv')).toThrow(/empty/);

@@ -165,7 +165,16 @@ export function assignEnergies(ids: readonly string[], table: EnergyTable): Ener
   const badRows = new Map<string, EnergyIssue>();
   for (const issue of table.issues) if (issue.id !== '' && !badRows.has(issue.id)) badRows.set(issue.id, issue);
   const present = new Set(ids);
+  // An id shared by several input structures (the same block name in two files) cannot be told apart by the CSV.
+  const uses = new Map<string, number>();
+  for (const id of ids) uses.set(id, (uses.get(id) ?? 0) + 1);
   for (const id of ids) {
+    const shared = uses.get(id)!;
+    if (shared > 1 && table.lineOf.has(id)) {
+      energy.push(null);
+      problem.push(`no energy: the id is shared by ${shared} structures in the inputs, so ${table.file} cannot tell them apart`);
+      continue;
+    }
     const e = table.energies.get(id);
     if (e !== undefined) {
       energy.push(e);
@@ -191,6 +200,8 @@ export function energySummary(table: EnergyTable | null, a: EnergyAssignment): s
   const out: string[] = [];
   const missing = a.problem.filter((p) => p.startsWith('no energy')).length;
   if (missing > 0) out.push(`${missing} structure(s) have no energy (reason per row in structures.csv)`);
+  const shared = a.problem.filter((p) => p.includes('is shared by')).length;
+  if (shared > 0) out.push(`${shared} structure(s) share their id with another input structure; the energies file cannot tell them apart`);
   if (table) {
     if (a.unmatched.length > 0)
       out.push(`${a.unmatched.length} id(s) in ${table.file} match no structure: ${a.unmatched.slice(0, 5).map((u) => u.id).join(', ')}${a.unmatched.length > 5 ? ', ...' : ''}`);
