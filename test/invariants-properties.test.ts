@@ -118,6 +118,10 @@ describe('PDD is an isometry invariant that does not depend on the cell (EMD < 1
 
 describe('continuity and the AMD lower bound', () => {
   it('moving every point by at most eps changes the EMD and the AMD distance by at most 2·eps', () => {
+    // The bound is not vacuous: with two or more points the distances usually move. Not always: when every
+    // point's k nearest neighbours are its own translates (k = 1 with far-apart points), the PDD cannot change.
+    let movable = 0;
+    let changed = 0;
     fc.assert(
       fc.property(dimArb, sizeArb, kArb, fc.double({ min: 1e-4, max: 0.5, noNaN: true }), seedArb, (d, m, k, eps, seed) => {
         const rand = seededRandom(seed);
@@ -127,11 +131,14 @@ describe('continuity and the AMD lower bound', () => {
         const b = pdd(moved, k);
         expect(emd(a, b)).toBeLessThanOrEqual(2 * eps + 1e-12);
         expect(amdDistance(amd(a), amd(b))).toBeLessThanOrEqual(2 * eps + 1e-12);
-        // The bound is not vacuous: with two or more points the distance does move (one point is a lattice, which moves rigidly).
-        if (m >= 2) expect(emd(a, b)).toBeGreaterThan(0);
+        if (m >= 2) {
+          movable++;
+          if (emd(a, b) > 0) changed++;
+        }
       }),
       { numRuns: RUNS },
     );
+    expect(changed).toBeGreaterThan(movable / 2);
   });
 
   it('max_j |AMD_j(S) - AMD_j(Q)| <= EMD(PDD(S), PDD(Q)) on random pairs', () => {
