@@ -41,7 +41,7 @@ export interface StructureRow {
   /** 1-based line of the block's `data_` line. */
   line: number;
   status: Status;
-  /** Why a structure was rejected (empty otherwise). */
+  /** Why a structure was rejected; for usable ones, an energy problem such as "no energy: ..." (empty otherwise). */
   reason: string;
   /** Energy in `parameters.energyUnit`, null when none was given. */
   energy: number | null;
