@@ -2,7 +2,7 @@
 // Sets travel to the workers in chunks packed into a few flat typed arrays, and the PDDs come back the
 // same way, so that one message carries hundreds of structures and structured cloning stays cheap.
 import type { Pdd, PeriodicPointSet } from '../types.js';
-import { defaultThreads, mapInWorkers, type PoolOptions } from '../parallel/pool.js';
+import { defaultThreads, mapInWorkers, type PoolOptions, type WorkerPool } from '../parallel/pool.js';
 import { DEFAULT_COLLAPSE_TOLERANCE_ANGSTROM, pdd } from './pdd.js';
 import { amd } from './amd.js';
 
@@ -51,6 +51,8 @@ export interface InvariantsOptions {
   collapseTolerance?: number;
   /** Sets per message to a worker; by default about 16 chunks per thread, at most 500 sets each. */
   chunkSize?: number;
+  /** Worker threads already open (see WorkerPool); default: threads started for this call. */
+  pool?: WorkerPool;
 }
 
 /** One or more sets could not be handled; `failures` lists them by position in the input. */
@@ -96,11 +98,89 @@ export async function computeInvariantsSettled(
   for (let start = 0; start < n; start += chunkSize) chunks.push(packSets(sets.slice(start, start + chunkSize), k, tol));
   const pool: PoolOptions = {
     threads,
+    pool: opts.pool,
     onProgress: opts.onProgress ? (done, total) => opts.onProgress?.(done === total ? n : Math.min(n, done * chunkSize), n) : undefined,
   };
   const packed = await mapInWorkers<PackedSets, PackedInvariants>(import.meta.url, 'invariantsOfChunk', chunks, pool);
   const out: Array<Invariants | { error: string }> = [];
   for (const p of packed) out.push(...unpackInvariants(p));
+  return out;
+}
+
+/**
+ * Where `computeInvariantsInto` writes: one store of rows, weights and AMDs for many structures (in
+ * SharedArrayBuffers when worker threads write into it). Set i gets rows rowAt[i] .. rowAt[i] + asym count - 1
+ * (rows it does not fill keep weight 0: a PDD merges equal rows, so it may use fewer) and its AMD at amdAt[i] * k.
+ */
+export interface InvariantsTarget {
+  k: number;
+  rows: Float64Array;
+  weights: Float64Array;
+  amd: Float64Array;
+  rowAt: Int32Array;
+  amdAt: Int32Array;
+}
+
+interface IntoChunk {
+  sets: PackedSets;
+  target: InvariantsTarget;
+  /** Index of the chunk's first set in the target's rowAt/amdAt. */
+  first: number;
+}
+
+/**
+ * PDD and AMD of every set written straight into `target` by the worker threads (no copy of the results passes
+ * through messages). Returns, per set, the number of PDD rows written, or the reason it failed.
+ */
+export async function computeInvariantsInto(
+  sets: PeriodicPointSet[],
+  target: InvariantsTarget,
+  opts: InvariantsOptions = {},
+): Promise<Array<number | { error: string }>> {
+  const k = target.k;
+  if (!(Number.isInteger(k) && k >= 1)) throw new Error(`the PDD depth k must be a positive integer, not ${k}`);
+  const n = sets.length;
+  if (n === 0) return [];
+  const threads = Math.max(1, Math.floor(opts.pool?.threads ?? opts.threads ?? defaultThreads()));
+  const chunkSize = Math.max(1, opts.chunkSize ?? Math.min(500, Math.ceil(n / (16 * threads))));
+  const tol = opts.collapseTolerance ?? DEFAULT_COLLAPSE_TOLERANCE_ANGSTROM;
+  const chunks: IntoChunk[] = [];
+  for (let start = 0; start < n; start += chunkSize) chunks.push({ sets: packSets(sets.slice(start, start + chunkSize), k, tol), target, first: start });
+  const pool: PoolOptions = {
+    threads,
+    pool: opts.pool,
+    onProgress: opts.onProgress ? (done, total) => opts.onProgress?.(done === total ? n : Math.min(n, done * chunkSize), n) : undefined,
+  };
+  const parts = await mapInWorkers<IntoChunk, Array<number | { error: string }>>(import.meta.url, 'invariantsIntoChunk', chunks, pool);
+  return parts.flat();
+}
+
+/** Worker entry of computeInvariantsInto. */
+export function invariantsIntoChunk(chunk: IntoChunk): Array<number | { error: string }> {
+  const { sets, target, first } = chunk;
+  const k = sets.k;
+  const out: Array<number | { error: string }> = [];
+  for (let i = 0; i < sets.count; i++) {
+    const dim = sets.dims[i];
+    const set: PeriodicPointSet = {
+      dim,
+      basis: sets.basis.subarray(9 * i, 9 * i + dim * dim),
+      motif: sets.motif.subarray(sets.motifStart[i], sets.motifStart[i + 1]),
+      atomicNumbers: new Uint8Array(0),
+      asym: sets.asym.subarray(sets.asymStart[i], sets.asymStart[i + 1]),
+      multiplicity: sets.multiplicity.subarray(sets.asymStart[i], sets.asymStart[i + 1]),
+    };
+    try {
+      const p = pdd(set, k, { collapseTolerance: sets.collapseTolerance });
+      const at = target.rowAt[first + i];
+      target.rows.set(p.rows, at * k);
+      target.weights.set(p.weights, at);
+      target.amd.set(amd(p), target.amdAt[first + i] * k);
+      out.push(p.weights.length);
+    } catch (err) {
+      out.push({ error: err instanceof Error ? err.message : String(err) });
+    }
+  }
   return out;
 }
 

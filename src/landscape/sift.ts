@@ -3,7 +3,8 @@
 // status (kept, duplicate, rejected or outside-window); nothing is dropped silently.
 import type { Landscape, SiftParameters } from './schema.js';
 import type { EnergyAssignment, EnergyTable } from '../io/energies.js';
-import { defaultThreads } from '../parallel/pool.js';
+import { defaultThreads, WorkerPool } from '../parallel/pool.js';
+import { PairStore } from '../metric/pair-store.js';
 import { emptyComparisons } from './compare-cache.js';
 import { VERSION } from '../version.js';
 import { makeProgress } from '../progress.js';
@@ -19,7 +20,6 @@ import { familiesStage } from './stages/families.js';
 import { buildLandscape } from './stages/landscape.js';
 
 export type { SiftOptions } from './stages/state.js';
-export { PAIR_RADIUS_FACTOR } from './stages/duplicates.js';
 export { DENSE_LIMIT, EMBED_LIMIT, LANDMARKS } from './stages/families.js';
 
 /**
@@ -63,23 +63,32 @@ export interface SiftRun {
    * fairer figure on a shared machine (benchmarks print both).
    */
   cpuSeconds: Record<string, number>;
+  /** Work counters of the comparison stages (EMDs solved, rounds), for benchmarks. */
+  counters: Record<string, number>;
   /** Invariants cache hits and misses; `reused` names the comparison results taken from the comparisons cache. */
   cache: { hits: number; misses: number; file: string | null; problem: string | null; reused: string[] };
 }
 
-/** Run the whole sift. Throws only when the inputs cannot be read at all (missing path, bad energies file). */
+/**
+ * Run the whole sift. Throws only when the inputs cannot be read at all (missing path, bad energies file).
+ * `initialState` + the stages of SIFT_STAGES do the same step by step; whoever does that closes `state.pool`.
+ */
 export async function sift(opts: SiftOptions): Promise<SiftRun> {
   const t0 = performance.now();
   const cpu0 = process.cpuUsage();
   const timings: Record<string, number> = {};
   const cpuSeconds: Record<string, number> = {};
   const s = initialState(opts);
-  for (const [name, stage] of SIFT_STAGES) {
-    const t = performance.now();
-    const c = process.cpuUsage();
-    await stage(s);
-    timings[name] = Math.round(performance.now() - t) / 1000;
-    cpuSeconds[name] = cpuSince(c);
+  try {
+    for (const [name, stage] of SIFT_STAGES) {
+      const t = performance.now();
+      const c = process.cpuUsage();
+      await stage(s);
+      timings[name] = Math.round(performance.now() - t) / 1000;
+      cpuSeconds[name] = cpuSince(c);
+    }
+  } finally {
+    await s.pool.close();
   }
   const t = performance.now();
   const c = process.cpuUsage();
@@ -95,6 +104,7 @@ export async function sift(opts: SiftOptions): Promise<SiftRun> {
     energyAssignment: s.energyAssignment,
     messages: s.messages,
     cpuSeconds,
+    counters: s.counters,
     cache: { hits: s.cacheHits, misses: s.cacheMisses, file: s.cacheFile, problem: s.cacheProblem, reused: s.reused },
   };
 }
@@ -120,9 +130,12 @@ export function initialState(opts: SiftOptions): SiftState {
     energyItem: opts.energyItem ?? null,
   };
   checkParameters(params);
+  const threads = opts.threads ?? defaultThreads();
   return {
     params,
-    threads: opts.threads ?? defaultThreads(),
+    threads,
+    pool: new WorkerPool(threads),
+    counters: {},
     cacheDir: opts.cacheDir ?? null,
     denseLimit: opts.denseLimit,
     idColumn: opts.idColumn,
@@ -139,14 +152,17 @@ export function initialState(opts: SiftOptions): SiftState {
     lowest: null,
     active: [],
     items: [],
+    set: null,
+    index: null,
+    store: new PairStore(),
     cacheHits: 0,
     cacheMisses: 0,
     cacheFile: null,
     comparisons: emptyComparisons(),
     comparisonsChanged: false,
     reused: [],
-    close: null,
-    collapsed: null,
+    classOf: null,
+    duplicates: null,
     keptLocal: [],
     keptPos: new Int32Array(0),
     keptNeighbours: null,

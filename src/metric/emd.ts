@@ -198,7 +198,8 @@ function groupFloor(w: Workspace, m: number, n: number): void {
         const d = Math.abs(sa.rows[ao + col] - sb.rows[bo + col]);
         if (d > max) max = d;
       }
-      groupBound[p * nb + q] = max - sa.groupRadius[ga + p] - sb.groupRadius[gb + q];
+      // Less a hair, so that rounding in this bound never lifts it above the cost it bounds.
+      groupBound[p * nb + q] = max - sa.groupRadius[ga + p] - sb.groupRadius[gb + q] - 1e-12 * (1 + max);
     }
   }
   const { cost, rowOf, colOf } = w;
@@ -213,8 +214,8 @@ function groupFloor(w: Workspace, m: number, n: number): void {
 }
 
 /**
- * Order two packed PDDs: by row count, then row values, then weights. 0 means identical content.
- * Used to solve every pair in one fixed orientation.
+ * Order two packed PDDs by what they carry (rows without weight are skipped): by row count, then row values, then
+ * weights. 0 means identical content. Used to solve every pair in one fixed orientation.
  */
 function comparePacked(
   aRows: Float64Array,
@@ -227,18 +228,31 @@ function comparePacked(
   bCount: number,
   k: number,
 ): number {
-  if (aCount !== bCount) return aCount < bCount ? -1 : 1;
-  const ao = aFirst * k;
-  const bo = bFirst * k;
-  const len = aCount * k;
-  for (let t = 0; t < len; t++) {
-    const x = aRows[ao + t];
-    const y = bRows[bo + t];
-    if (x !== y) return x < y ? -1 : 1;
+  let na = 0;
+  for (let r = aFirst; r < aFirst + aCount; r++) if (aWeights[r] > 0) na++;
+  let nb = 0;
+  for (let r = bFirst; r < bFirst + bCount; r++) if (bWeights[r] > 0) nb++;
+  if (na !== nb) return na < nb ? -1 : 1;
+  let ra = aFirst;
+  let rb = bFirst;
+  for (let r = 0; r < na; r++, ra++, rb++) {
+    while (!(aWeights[ra] > 0)) ra++;
+    while (!(bWeights[rb] > 0)) rb++;
+    const ao = ra * k;
+    const bo = rb * k;
+    for (let t = 0; t < k; t++) {
+      const x = aRows[ao + t];
+      const y = bRows[bo + t];
+      if (x !== y) return x < y ? -1 : 1;
+    }
   }
-  for (let r = 0; r < aCount; r++) {
-    const x = aWeights[aFirst + r];
-    const y = bWeights[bFirst + r];
+  ra = aFirst;
+  rb = bFirst;
+  for (let r = 0; r < na; r++, ra++, rb++) {
+    while (!(aWeights[ra] > 0)) ra++;
+    while (!(bWeights[rb] > 0)) rb++;
+    const x = aWeights[ra];
+    const y = bWeights[rb];
     if (x !== y) return x < y ? -1 : 1;
   }
   return 0;

@@ -113,6 +113,31 @@ export function packItems(items: readonly MetricItem[], shared: boolean, what = 
   return set;
 }
 
+/**
+ * A packed set over rows already in one store (item i's rows are rowStart[i] .. rowStart[i+1]-1; rows of weight 0
+ * carry nothing and may pad an item's slot), without copying them. AMDs, row groups and the read order are computed
+ * here. Inputs are assumed checked (finite, non-negative weights).
+ */
+export function packStore(rows: Float64Array, weights: Float64Array, rowStart: Int32Array, k: number, shared: boolean): PackedSet {
+  const count = rowStart.length - 1;
+  const amd = shared ? sharedFloat64(count * k) : new Float64Array(count * k);
+  for (let i = 0; i < count; i++) {
+    let total = 0;
+    for (let t = rowStart[i]; t < rowStart[i + 1]; t++) if (weights[t] > 0) total += weights[t];
+    if (!(total > 0)) throw new Error(`item ${i} has no positive weight`);
+    const out = i * k;
+    for (let t = rowStart[i]; t < rowStart[i + 1]; t++) {
+      const w = weights[t];
+      if (!(w > 0)) continue;
+      const wn = w / total;
+      for (let j = 0; j < k; j++) amd[out + j] += wn * rows[t * k + j];
+    }
+  }
+  const set: PackedSet = { k, count, rowStart, rows, weights, amd, ...groupAll(rows, weights, rowStart, k, shared), columns: new Int32Array(0) };
+  set.columns = copyInt(readOrder(set), shared);
+  return set;
+}
+
 /** Row groups of every item, flattened (see PackedSet). */
 function groupAll(
   rows: Float64Array,

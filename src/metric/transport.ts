@@ -16,8 +16,8 @@ const EAGER_CELLS = 256;
 
 /**
  * Read more columns of cell c's ground distance (rows at aRows[ao..] and bRows[bo..]), in the order `cols`: at
- * least `least` of them, then stop as soon as the running maximum reaches `limit`, or after all k, where the cost
- * is exact. Updates
+ * least `least` of them, then stop (at the end of a block of four) as soon as the running maximum reaches `limit`,
+ * or after all k, where the cost is exact. Updates
  * cost[c] (the maximum so far) and known[c] (columns read), and returns the new cost[c].
  */
 function readColumns(
@@ -36,11 +36,30 @@ function readColumns(
   let max = cost[c];
   let t = known[c];
   const leastEnd = t + least;
-  for (; t < k; t++) {
-    const col = cols[t];
-    const d = Math.abs(aRows[ao + col] - bRows[bo + col]);
-    if (d > max) {
-      max = d;
+  // Four columns at a time without branches (their maximum), then the stopping test.
+  let done = false;
+  while (t + 4 <= k) {
+    const c0 = cols[t];
+    const c1 = cols[t + 1];
+    const c2 = cols[t + 2];
+    const c3 = cols[t + 3];
+    max = Math.max(
+      max,
+      Math.abs(aRows[ao + c0] - bRows[bo + c0]),
+      Math.abs(aRows[ao + c1] - bRows[bo + c1]),
+      Math.abs(aRows[ao + c2] - bRows[bo + c2]),
+      Math.abs(aRows[ao + c3] - bRows[bo + c3]),
+    );
+    t += 4;
+    if (max >= limit && t >= leastEnd) {
+      done = true;
+      break;
+    }
+  }
+  if (!done) {
+    for (; t < k; t++) {
+      const col = cols[t];
+      max = Math.max(max, Math.abs(aRows[ao + col] - bRows[bo + col]));
       if (max >= limit && t + 1 >= leastEnd) {
         t++;
         break;

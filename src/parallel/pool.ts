@@ -11,6 +11,8 @@ export interface PoolOptions {
   threads?: number;
   /** Called after each input finishes, with the count done so far. */
   onProgress?: (done: number, total: number) => void;
+  /** An open pool to run on (its thread count wins); default: a pool started for this call and closed after it. */
+  pool?: WorkerPool;
 }
 
 /** Default thread count: the machine's available parallelism. */
@@ -29,61 +31,126 @@ export async function mapInWorkers<I, O>(
   inputs: readonly I[],
   options: PoolOptions = {},
 ): Promise<O[]> {
-  const threads = Math.max(1, Math.min(options.threads ?? defaultThreads(), inputs.length));
-  const results = new Array<O>(inputs.length);
-  if (inputs.length === 0) return results;
-  if (threads === 1) {
-    const mod = (await import(moduleUrl)) as Record<string, (input: I) => O | Promise<O>>;
-    const fn = mod[fnName];
-    if (typeof fn !== 'function') throw new Error(`${moduleUrl} has no export named ${fnName}`);
-    for (let i = 0; i < inputs.length; i++) {
-      results[i] = await fn(inputs[i]);
-      options.onProgress?.(i + 1, inputs.length);
+  if (options.pool) return options.pool.map<I, O>(moduleUrl, fnName, inputs, options.onProgress);
+  const pool = new WorkerPool(Math.max(1, Math.min(options.threads ?? defaultThreads(), inputs.length)));
+  try {
+    return await pool.map<I, O>(moduleUrl, fnName, inputs, options.onProgress);
+  } finally {
+    await pool.close();
+  }
+}
+
+interface Job {
+  moduleUrl: string;
+  fnName: string;
+  input: unknown;
+  done: (result: unknown) => void;
+  fail: (err: Error) => void;
+}
+
+/**
+ * Worker threads kept for many calls (a run of sift starts them once). Work from several `map` calls at once is
+ * queued and served in order by whichever thread is free. With one thread everything runs on the calling thread.
+ */
+export class WorkerPool {
+  readonly threads: number;
+  private workers: Worker[] = [];
+  private idle: Worker[] = [];
+  private queue: Job[] = [];
+  private running = new Map<Worker, Job>();
+  private broken: Error | null = null;
+
+  constructor(threads: number) {
+    this.threads = Math.max(1, Math.floor(threads));
+  }
+
+  async map<I, O>(moduleUrl: string, fnName: string, inputs: readonly I[], onProgress?: (done: number, total: number) => void): Promise<O[]> {
+    const results = new Array<O>(inputs.length);
+    if (inputs.length === 0) return results;
+    if (this.threads === 1) {
+      const mod = (await import(moduleUrl)) as Record<string, (input: I) => O | Promise<O>>;
+      const fn = mod[fnName];
+      if (typeof fn !== 'function') throw new Error(`${moduleUrl} has no export named ${fnName}`);
+      for (let i = 0; i < inputs.length; i++) {
+        results[i] = await fn(inputs[i]);
+        onProgress?.(i + 1, inputs.length);
+      }
+      return results;
     }
+    if (this.broken) throw this.broken;
+    let done = 0;
+    await new Promise<void>((resolve, reject) => {
+      let failed = false;
+      inputs.forEach((input, id) => {
+        this.queue.push({
+          moduleUrl,
+          fnName,
+          input,
+          done: (result) => {
+            if (failed) return;
+            results[id] = result as O;
+            done++;
+            onProgress?.(done, inputs.length);
+            if (done === inputs.length) resolve();
+          },
+          fail: (err) => {
+            if (failed) return;
+            failed = true;
+            reject(err);
+          },
+        });
+      });
+      this.start(Math.min(this.threads, this.workers.length + this.queue.length));
+      this.feed();
+    });
     return results;
   }
 
-  const workers: Worker[] = [];
-  let next = 0;
-  let done = 0;
-  try {
-    await new Promise<void>((resolve, reject) => {
-      let failed = false;
-      const feed = (w: Worker) => {
-        if (failed) return;
-        if (next >= inputs.length) {
-          if (done === inputs.length) resolve();
-          return;
-        }
-        const id = next++;
-        w.postMessage({ id, moduleUrl, fnName, input: inputs[id] });
-      };
-      for (let t = 0; t < threads; t++) {
-        const w = startWorker();
-        workers.push(w);
-        w.on('message', (msg: { id: number; result?: O; error?: string }) => {
-          if (msg.error !== undefined) {
-            failed = true;
-            reject(new Error(msg.error));
-            return;
-          }
-          results[msg.id] = msg.result as O;
-          done++;
-          options.onProgress?.(done, inputs.length);
-          if (done === inputs.length) resolve();
-          else feed(w);
-        });
-        w.on('error', (err) => {
-          failed = true;
-          reject(err);
-        });
-        feed(w);
-      }
-    });
-  } finally {
-    await Promise.all(workers.map((w) => w.terminate()));
+  /** Stop every thread; queued work fails. */
+  async close(): Promise<void> {
+    const err = new Error('the worker pool was closed');
+    for (const job of this.queue) job.fail(err);
+    this.queue = [];
+    await Promise.all(this.workers.map((w) => w.terminate()));
+    this.workers = [];
+    this.idle = [];
   }
-  return results;
+
+  private start(count: number): void {
+    while (this.workers.length < count) {
+      const w = startWorker();
+      this.workers.push(w);
+      this.idle.push(w);
+      w.on('message', (msg: { result?: unknown; error?: string }) => {
+        const job = this.running.get(w);
+        this.running.delete(w);
+        this.idle.push(w);
+        if (job) {
+          if (msg.error !== undefined) job.fail(new Error(msg.error));
+          else job.done(msg.result);
+        }
+        this.feed();
+      });
+      w.on('error', (err) => {
+        // A thread that died takes its job down with it; the pool refuses further work.
+        this.broken = err instanceof Error ? err : new Error(String(err));
+        const job = this.running.get(w);
+        this.running.delete(w);
+        job?.fail(this.broken);
+        for (const j of this.queue) j.fail(this.broken);
+        this.queue = [];
+      });
+    }
+  }
+
+  private feed(): void {
+    while (this.idle.length > 0 && this.queue.length > 0) {
+      const w = this.idle.pop()!;
+      const job = this.queue.shift()!;
+      this.running.set(w, job);
+      w.postMessage({ moduleUrl: job.moduleUrl, fnName: job.fnName, input: job.input });
+    }
+  }
 }
 
 /**

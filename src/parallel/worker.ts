@@ -4,7 +4,7 @@ import { parentPort } from 'node:worker_threads';
 type Fn = (input: unknown) => unknown;
 const modules = new Map<string, Record<string, Fn>>();
 
-parentPort!.on('message', async (msg: { id: number; moduleUrl: string; fnName: string; input: unknown }) => {
+parentPort!.on('message', async (msg: { moduleUrl: string; fnName: string; input: unknown }) => {
   try {
     let mod = modules.get(msg.moduleUrl);
     if (!mod) {
@@ -14,8 +14,8 @@ parentPort!.on('message', async (msg: { id: number; moduleUrl: string; fnName: s
     const fn = mod[msg.fnName];
     if (typeof fn !== 'function') throw new Error(`${msg.moduleUrl} has no export named ${msg.fnName}`);
     const result = await fn(msg.input);
-    parentPort!.postMessage({ id: msg.id, result });
+    parentPort!.postMessage({ result });
   } catch (err) {
-    parentPort!.postMessage({ id: msg.id, error: err instanceof Error ? `${err.message}\n${err.stack ?? ''}` : String(err) });
+    parentPort!.postMessage({ error: err instanceof Error ? `${err.message}\n${err.stack ?? ''}` : String(err) });
   }
 });

@@ -1,17 +1,11 @@
-// Stage "duplicates": every pair of compared structures within twice the tolerance (from the comparisons cache
-// when the compared set is unchanged), then the energy-ordered collapse (src/landscape/collapse.ts): each
-// structure joins the nearest kept structure within the tolerance, or is kept. Rows get their status, kept
-// structure, distance to it and group size.
-import { pairsWithin } from '../../metric/graph.js';
-import { collapseDuplicates, visitOrder } from '../collapse.js';
+// Stage "duplicates": the energy-ordered collapse (collapse.ts states the rule) as a search that solves only the
+// EMDs the rule needs (duplicate-rounds.ts): each structure joins the nearest kept structure of its composition
+// class within the tolerance, or is kept. Rows get their status, kept structure, distance to it and group size.
+// Every EMD solved goes into the run's pair store, which the comparisons cache keeps for re-runs.
+import { visitOrder } from '../collapse.js';
+import { findDuplicates } from '../duplicate-rounds.js';
 import { emptyComparisons, listKey, loadComparisons } from '../compare-cache.js';
 import type { SiftState } from './state.js';
-
-/**
- * Pairs are searched within this multiple of the tolerance and cached, so a re-run with a tolerance up to that
- * large reuses them (distinct structures mostly lie far beyond, so the wider search costs few extra EMDs).
- */
-export const PAIR_RADIUS_FACTOR = 2;
 
 export async function duplicatesStage(s: SiftState): Promise<void> {
   const { items, params } = s;
@@ -21,32 +15,36 @@ export async function duplicatesStage(s: SiftState): Promise<void> {
   s.comparisons = loaded.comparisons;
   const itemsKey = listKey(items.map((w) => w.key));
   const cp = s.comparisons.pairs;
-  if (cp && cp.itemsKey === itemsKey && cp.radiusAngstrom >= params.toleranceAngstrom) {
-    s.close = { i: Int32Array.from(cp.i), j: Int32Array.from(cp.j), distances: Float64Array.from(cp.d), radius: cp.radiusAngstrom };
+  if (cp && cp.itemsKey === itemsKey) {
+    // EMDs solved by an earlier run on the same structures are not solved again.
+    s.store.addAll(cp.i, cp.j, cp.d);
     s.reused.push('pairs');
-  } else {
-    const radius = params.toleranceAngstrom * PAIR_RADIUS_FACTOR;
-    const graphItems = items.map((w) => ({ pdd: w.pdd!, amd: w.amd! }));
-    const found = await pairsWithin(graphItems, radius, { threads: s.threads, onProgress: (d: number) => s.progress.tick(d) });
-    s.close = { i: found.i, j: found.j, distances: found.distances, radius };
-    s.comparisons.pairs = { itemsKey, radiusAngstrom: radius, i: Array.from(found.i), j: Array.from(found.j), d: Array.from(found.distances) };
-    s.comparisonsChanged = true;
   }
   const order = visitOrder(
     items.map((_, i) => i),
     items.map((w) => w.row.energy),
   );
-  const close = s.close;
-  const collapsed = collapseDuplicates(items.length, order, { i: close.i, j: close.j, d: close.distances }, params.toleranceAngstrom);
-  s.collapsed = collapsed;
-  s.keptLocal = collapsed.kept;
+  const found = await findDuplicates({
+    set: s.set!,
+    index: s.index!,
+    order,
+    classOf: s.classOf,
+    toleranceAngstrom: params.toleranceAngstrom,
+    store: s.store,
+    pool: s.pool,
+    onProgress: (done) => s.progress.tick(done),
+  });
+  s.duplicates = found;
+  s.counters['duplicates: exact EMDs'] = found.emdEvaluations;
+  s.counters['duplicates: rounds'] = found.rounds;
+  s.keptLocal = found.kept;
   s.keptPos = new Int32Array(items.length).fill(-1);
-  collapsed.kept.forEach((p, r) => (s.keptPos[p] = r));
+  found.kept.forEach((p, r) => (s.keptPos[p] = r));
   for (let p = 0; p < items.length; p++) {
     const row = items[p].row;
-    const kp = collapsed.keptOf[p];
+    const kp = found.keptOf[p];
     row.keptIndex = items[kp].row.index;
-    row.distanceToKept = collapsed.distanceToKept[p];
+    row.distanceToKept = found.distanceToKept[p];
     if (kp === p) row.status = 'kept';
     else {
       row.status = 'duplicate';
@@ -54,6 +52,6 @@ export async function duplicatesStage(s: SiftState): Promise<void> {
     }
   }
   for (const p of s.keptLocal) items[p].row.members = 0;
-  for (let p = 0; p < items.length; p++) items[collapsed.keptOf[p]].row.members++;
+  for (let p = 0; p < items.length; p++) items[found.keptOf[p]].row.members++;
   s.progress.done();
 }

@@ -27,6 +27,7 @@ export async function periodicSetsStage(s: SiftState): Promise<void> {
   const inputs: PrepareInput[] = ranges.map(([a, b]) => ({ records: missing.slice(a, b).map((w) => w.record!), hydrogens: s.params.hydrogens }));
   const out = await mapInWorkers<PrepareInput, Prepared[]>(workerModule('prepare'), 'prepareChunk', inputs, {
     threads: s.threads,
+    pool: s.pool,
     onProgress: (d) => s.progress.tick(Math.min(missing.length, d * PREPARE_CHUNK)),
   });
   let i = 0;

@@ -7,8 +7,11 @@ import type { EnergyUnit, Embedding, HydrogenPolicy, SiftParameters, StructureRo
 import type { EnergyAssignment, EnergyTable } from '../../io/energies.js';
 import type { CacheEntry, CacheParams } from '../cache.js';
 import type { Comparisons } from '../compare-cache.js';
-import type { CollapseResult } from '../collapse.js';
+import type { DuplicateResult } from '../duplicate-rounds.js';
 import type { Progress } from '../../progress.js';
+import type { PackedSet, SortedIndex } from '../../metric/packed.js';
+import type { PairStore } from '../../metric/pair-store.js';
+import type { WorkerPool } from '../../parallel/pool.js';
 
 export interface SiftOptions {
   inputs: string[];
@@ -47,14 +50,6 @@ export interface Work {
   setNotes: string[];
 }
 
-/** Pairs of compared structures (positions in `items`) with their EMD in Å, found within `radius`. */
-export interface ClosePairs {
-  i: Int32Array;
-  j: Int32Array;
-  distances: Float64Array;
-  radius: number;
-}
-
 /** Nearest-neighbour lists of the kept structures: row r lists k positions in `kept` order and their EMDs. */
 export interface KeptNeighbours {
   k: number;
@@ -72,6 +67,10 @@ export interface SiftState {
   progress: Progress;
   /** Lines for stderr (energy problems, skipped steps). */
   messages: string[];
+  /** The worker threads of the whole run (started at first use, closed by `sift`). */
+  pool: WorkerPool;
+  /** Work counters for benchmarks (EMDs solved per stage and the like), by name. */
+  counters: Record<string, number>;
 
   // read: one entry per input block, in input order.
   work: Work[];
@@ -86,19 +85,29 @@ export interface SiftState {
   // window: the lowest energy among usable structures; the structures inside the window.
   lowest: number | null;
   active: Work[];
-  // invariants: the compared structures (usable, in the window, with a PDD and AMD), in input order.
+  // invariants: the compared structures (usable, in the window, with a PDD and AMD), in input order, and their
+  // invariants packed once for every comparison (item p of `set` is items[p]) with the AMD index the searches sweep.
   items: Work[];
+  set: PackedSet | null;
+  index: SortedIndex | null;
   cacheHits: number;
   cacheMisses: number;
   cacheFile: string | null;
-  // comparison results shared by the comparison stages, and their cache.
+  // comparison results shared by the comparison stages, and their cache; `store` holds every exact EMD solved
+  // (pairs of positions in `items`), read and extended by the duplicates, neighbours and families stages.
+  store: PairStore;
   comparisons: Comparisons;
   comparisonsChanged: boolean;
   /** Names of the comparison results taken from the cache. */
   reused: string[];
-  // duplicates: pairs within the search radius, the collapse, kept structures as positions in `items`.
-  close: ClosePairs | null;
-  collapsed: CollapseResult | null;
+  /**
+   * Composition class per position in `items` (equal class = may be duplicates), or null when all structures share
+   * one (the default). Structures of different classes are never duplicates.
+   */
+  classOf: Int32Array | null;
+  // duplicates: the energy-ordered search (kept structure of each, distance to it, the nearest structure of another
+  // class within the tolerance), kept structures as positions in `items`.
+  duplicates: DuplicateResult | null;
   keptLocal: number[];
   /** Per position in `items`: rank in `keptLocal`, -1 for duplicates. */
   keptPos: Int32Array;
