@@ -23,7 +23,11 @@ export interface MergedSet {
   slack: Float64Array;
 }
 
-/** The merged forms of `members` (item indices of `set`), columns in `set.columns` order. */
+/**
+ * The merged forms of `members` (item indices of `set`), columns in `set.columns` order. A group is represented by
+ * the middle of its members' range in each column (no member is then farther than half the group's spread in any
+ * column, against the whole spread from its leader), and the slack is the displacement to those rows.
+ */
 export function buildMerged(set: PackedSet, members: ArrayLike<number>, shared: boolean): MergedSet {
   const k = set.k;
   const n = members.length;
@@ -33,16 +37,41 @@ export function buildMerged(set: PackedSet, members: ArrayLike<number>, shared: 
   const weights = alloc(Float64Array, start[n], shared);
   const slack = alloc(Float64Array, n, shared);
   const cols = set.columns;
+  const hi = new Float64Array(k);
   for (let i = 0; i < n; i++) {
     const item = members[i];
     const g0 = set.groupStart[item];
+    const r0 = set.rowStart[item];
+    const r1 = set.rowStart[item + 1];
+    let total = 0;
+    for (let r = r0; r < r1; r++) if (set.weights[r] > 0) total += set.weights[r];
     for (let g = 0; g < start[i + 1] - start[i]; g++) {
-      const from = set.groupLeader[g0 + g] * k;
       const to = (start[i] + g) * k;
-      for (let t = 0; t < k; t++) rows[to + t] = set.rows[from + cols[t]];
+      // Column-wise lowest and highest value over the group's rows.
+      rows.fill(Infinity, to, to + k);
+      hi.fill(-Infinity);
+      for (let r = r0; r < r1; r++) {
+        if (set.groupOf[r] !== g) continue;
+        for (let t = 0; t < k; t++) {
+          const v = set.rows[r * k + cols[t]];
+          if (v < rows[to + t]) rows[to + t] = v;
+          if (v > hi[t]) hi[t] = v;
+        }
+      }
+      for (let t = 0; t < k; t++) rows[to + t] = (rows[to + t] + hi[t]) / 2;
       weights[start[i] + g] = set.groupWeight[g0 + g];
     }
-    slack[i] = set.displacement[item];
+    // Displacement: every row's weight sent to its group's row.
+    let d = 0;
+    for (let r = r0; r < r1; r++) {
+      const g = set.groupOf[r];
+      if (g < 0) continue;
+      const to = (start[i] + g) * k;
+      let max = 0;
+      for (let t = 0; t < k; t++) max = Math.max(max, Math.abs(set.rows[r * k + cols[t]] - rows[to + t]));
+      d += (set.weights[r] / total) * max;
+    }
+    slack[i] = d;
   }
   return { k, start, rows, weights, slack };
 }

@@ -77,6 +77,11 @@ export async function invariantsStage(s: SiftState): Promise<void> {
   s.items.forEach((w, p) => (rowStart[p] = slots[position.get(w)!]));
   rowStart[s.items.length] = s.items.length > 0 ? slots[position.get(s.items[s.items.length - 1])! + 1] : 0;
   s.set = packStore(target.rows, target.weights, rowStart, k, shared);
+  const rowCounts = s.items.map((w) => w.pdd!.weights.length).sort((x, y) => x - y);
+  if (rowCounts.length > 0) {
+    s.counters['PDD rows: median'] = rowCounts[rowCounts.length >> 1];
+    s.counters['PDD rows: largest'] = rowCounts[rowCounts.length - 1];
+  }
   s.index = buildIndex(s.set, shared);
   if (s.cacheDir && toCompute.length > 0) {
     const keep = new Map<string, CacheEntry>();

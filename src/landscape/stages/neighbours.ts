@@ -46,7 +46,9 @@ export async function neighboursStage(s: SiftState): Promise<void> {
       keptNbr = { k: kNbr, indices, distances };
       s.reused.push('kept neighbours');
     } else {
+      const t0 = performance.now();
       const g = await nearestWithin(set, index, kept, kept, kNbr, s.store, s.pool);
+      s.counters['kept neighbours: seconds'] = Math.round(performance.now() - t0) / 1000;
       s.counters['kept neighbours: exact EMDs'] = g.emdEvaluations;
       s.counters['kept neighbours: merged EMDs'] = g.mergedEvaluations;
       s.counters['kept neighbours: merged row-minimum bounds'] = g.rowMinEvaluations;
@@ -95,7 +97,9 @@ export async function neighboursStage(s: SiftState): Promise<void> {
     end,
     known: s.store.size > 0 ? s.store.knownFor(members.subarray(memberStart[start], memberStart[end])) : null,
   }));
+  const t1 = performance.now();
   const parts = await s.pool.map<GroupNearestTask, GroupNearestChunk>(GROUPS_URL, 'groupNearestChunk', tasks);
+  s.counters['nearest in groups: seconds'] = Math.round(performance.now() - t1) / 1000;
   const nn = new Float64Array(items.length).fill(NaN);
   const nearestKept = new Int32Array(items.length).fill(-1);
   const nearestKeptD = new Float64Array(items.length).fill(NaN);
