@@ -5,6 +5,7 @@ import { availableParallelism } from 'node:os';
 import { fileURLToPath, pathToFileURL } from 'node:url';
 import { createRequire } from 'node:module';
 import { dirname, join } from 'node:path';
+import { describeLargeViews } from './large-views.js';
 
 export interface PoolOptions {
   /** Number of worker threads; 1 runs everything on the calling thread. Default: available cores. */
@@ -148,7 +149,7 @@ export class WorkerPool {
       const w = this.idle.pop()!;
       const job = this.queue.shift()!;
       this.running.set(w, job);
-      w.postMessage({ moduleUrl: job.moduleUrl, fnName: job.fnName, input: job.input });
+      w.postMessage({ moduleUrl: job.moduleUrl, fnName: job.fnName, input: describeLargeViews(job.input) });
     }
   }
 }
