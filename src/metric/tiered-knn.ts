@@ -71,8 +71,13 @@ export function tieredKnnChunk(task: TieredKnnTask): TieredKnnChunk {
   // Per candidate (position): exact distance when known for this query (stamp), else -1.
   const knownStamp = new Int32Array(n).fill(-1);
   const knownD = new Float64Array(n);
-  // Cache of exact EMDs within the chunk (queries of a chunk are neighbours along the key, so they share pairs).
+  // Caches within the chunk, by unordered pair: a pair met by one query is met again by the other when both are in
+  // the chunk (queries of a chunk are neighbours along the key, so they share many pairs). Row-minimum bounds that
+  // stopped early (above that query's limit) are kept apart: still a lower bound, but complete only below it.
   const exactCache = new Map<number, number>();
+  const mergedCache = new Map<number, number>();
+  const rowMinCache = new Map<number, number>();
+  const rowMinPartial = new Map<number, number>();
   const heap = new Heap();
   // The k smallest upper bounds so far, one per candidate (ascending), and whose they are.
   const ubs = new Float64Array(k);
@@ -145,9 +150,19 @@ export function tieredKnnChunk(task: TieredKnnTask): TieredKnnChunk {
         exI.push(t);
         continue;
       }
+      const pairKey = qp < t ? qp * 4294967296 + t : t * 4294967296 + qp;
       if (level === AMD) {
-        rowMinEvaluations++;
-        const b = mergedRowMinBound(ms, qp, t, limit);
+        let b = rowMinCache.get(pairKey) ?? -Infinity;
+        if (b === -Infinity) {
+          const partial = rowMinPartial.get(pairKey);
+          if (partial !== undefined && partial > limit) b = partial;
+          else {
+            rowMinEvaluations++;
+            b = mergedRowMinBound(ms, qp, t, limit);
+            if (b > limit) rowMinPartial.set(pairKey, b);
+            else rowMinCache.set(pairKey, b);
+          }
+        }
         if (b > lb) {
           if (b <= limit) heap.push(b, t, ROWMIN);
           continue;
@@ -156,8 +171,12 @@ export function tieredKnnChunk(task: TieredKnnTask): TieredKnnChunk {
         continue;
       }
       if (level === ROWMIN) {
-        mergedEvaluations++;
-        const m = qp < t ? mergedEmd(ms, qp, t) : mergedEmd(ms, t, qp);
+        let m = mergedCache.get(pairKey);
+        if (m === undefined) {
+          mergedEvaluations++;
+          m = qp < t ? mergedEmd(ms, qp, t) : mergedEmd(ms, t, qp);
+          mergedCache.set(pairKey, m);
+        }
         const slack = ms.slack[qp] + ms.slack[t];
         offerUpper(m + slack, t);
         const b = m - slack > lb ? m - slack : lb;
@@ -188,6 +207,11 @@ export function tieredKnnChunk(task: TieredKnnTask): TieredKnnChunk {
       distances[r * k + c] = e === undefined ? Infinity : exD[e];
     }
     if (exactCache.size > 1 << 20) exactCache.clear();
+    if (mergedCache.size > 1 << 20) mergedCache.clear();
+    if (rowMinCache.size + rowMinPartial.size > 1 << 21) {
+      rowMinCache.clear();
+      rowMinPartial.clear();
+    }
   }
   return {
     indices,

@@ -14,7 +14,8 @@ import type { WorkerPool } from '../../parallel/pool.js';
 import { listKey } from '../compare-cache.js';
 import type { KeptNeighbours, SiftState } from './state.js';
 
-const QUERIES_PER_JOB = 256;
+/** Most queries per kept-neighbour job: as few jobs as threads below that, since a job shares the pairs its queries meet. */
+const QUERIES_PER_JOB = 2048;
 const GROUPS_PER_JOB = 128;
 const KNN_URL = metricModule('tiered-knn');
 const GROUPS_URL = metricModule('group-nearest');
@@ -203,7 +204,7 @@ export async function nearestWithin(
   const merged = buildMerged(set, [...members, ...extra], pool.threads > 1);
   // Queries in key order, so that a job's queries share candidates.
   const qOrder = Array.from(queries.keys()).sort((a, b) => set.amd[queries[a] * dim + keyColumn] - set.amd[queries[b] * dim + keyColumn] || a - b);
-  const ranges = chunkRanges(qOrder.length, Math.ceil(qOrder.length / QUERIES_PER_JOB));
+  const ranges = chunkRanges(qOrder.length, Math.max(pool.threads, Math.ceil(qOrder.length / QUERIES_PER_JOB)));
   const tasks: TieredKnnTask[] = ranges.map(([a, b]) => {
     const qs = Int32Array.from(qOrder.slice(a, b), (r) => queries[r]);
     const known = store.knownFor(qs, (o) => positionOf.has(o));
