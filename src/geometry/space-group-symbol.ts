@@ -66,7 +66,7 @@ export function settingFromSymbol(symbol: string, hints: SettingHints = {}): Res
     hexagonalLattice = candidates.length > 0;
   }
   if (candidates.length === 0) {
-    const other = OTHER_SETTINGS.filter((s) => compact(s.hm) === parsed.key);
+    const other = OTHER_SETTINGS.filter((s) => compact(s.hm) === parsed.key || compact(withoutOnes(s.hm)) === parsed.key);
     if (other.length === 0) return null;
     const s = other[0]!;
     return {
@@ -213,7 +213,7 @@ function symbolIndex(): Map<string, SpaceGroupSetting[]> {
   // ('P 21/c'); other unique axes get the short form only where it names no b-axis setting ('B 2/b').
   const monoclinic = SPACE_GROUP_SETTINGS.filter(isMonoclinic);
   for (const s of monoclinic) {
-    const key = compact(s.hm.split(' ').filter((p, i) => i === 0 || p !== '1').join(' '));
+    const key = compact(withoutOnes(s.hm));
     const taken = map.get(key);
     if (/^-?b/.test(s.ext) || taken === undefined || !taken.some((t) => /^-?b/.test(t.ext))) add(key, s);
   }
@@ -243,6 +243,11 @@ function spellingsOf(s: SpaceGroupSetting): string[] {
     }
   }
   return out;
+}
+
+/** A monoclinic symbol without its 1s: 'P 1 21/c 1' -> 'P 21/c'. */
+function withoutOnes(hm: string): string {
+  return hm.split(' ').filter((p, i) => i === 0 || p !== '1').join(' ');
 }
 
 function isMonoclinic(s: SpaceGroupSetting): boolean {
@@ -315,9 +320,12 @@ function decide(
   }
   if (left.length === 1) return { chosen: left[0]!, open: left, undecided: null };
   const def = defaultSetting(left[0]!.number);
-  const chosen = left.includes(def) ? def : left[0]!;
+  // Not the default itself (another axis setting): origin choice 2 and hexagonal axes, as in the default.
+  const likeDefault = left.find((s) => /^2|H$/.test(s.ext));
+  const chosen = left.includes(def) ? def : likeDefault ?? left[0]!;
   const others = left.filter((s) => s !== chosen).map((s) => `'${settingLabel(s)}'`);
-  const why = chosen === def ? 'the International Tables default' : 'the first International Tables lists';
+  const why =
+    chosen === def ? 'the International Tables default' : chosen === likeDefault ? 'origin and axes as in the International Tables default' : 'the first International Tables lists';
   const undecided =
     `${what} does not say which of ${left.length} settings is meant and neither the cell nor the atom sites decide: ` +
     `took '${settingLabel(chosen)}' (Hall '${chosen.hall}'), ${why}; the others are ${others.join(', ')}`;
