@@ -174,7 +174,7 @@ describe('spellings files use', () => {
     // A symbol that fixes the axes keeps them, and a cell of the other shape is noted.
     const r = settingFromSymbol('R -3 c:H', { cell: rhombohedral })!;
     expect(r.setting.ext).toBe('H');
-    expect(r.notes.join()).toMatch(/is on hexagonal axes but the cell .* does not have that shape/);
+    expect(r.notes.join()).toMatch(/'R -3 c:H' is on hexagonal axes but the cell does not have that shape \(a = b, alpha = beta = 90° and gamma = 120°\)/);
   });
 
   it('takes setting codes, origin markers and cell-setting items as hints', () => {

@@ -363,12 +363,21 @@ function cellCheck(s: SpaceGroupSetting, cell: CellParams | null, notes: string[
   if (cell === null || cellFits(s, cell) !== false) return;
   if (/[HR]$/.test(s.ext)) {
     notes.push(
-      `'${settingLabel(s)}' is on ${s.ext.endsWith('R') ? 'rhombohedral' : 'hexagonal'} axes but the cell ` +
-        `(a ${cell.a}, b ${cell.b}, c ${cell.c} Å, alpha ${cell.alpha}, beta ${cell.beta}, gamma ${cell.gamma}°) does not have that shape`,
+      `'${settingLabel(s)}' is on ${s.ext.endsWith('R') ? 'rhombohedral' : 'hexagonal'} axes but the cell does not have that shape ` +
+        `(${s.ext.endsWith('R') ? 'a = b = c and alpha = beta = gamma' : 'a = b, alpha = beta = 90° and gamma = 120°'})`,
     );
   } else {
     notes.push(`'${settingLabel(s)}' has unique axis ${/^-?([abc])/.exec(s.ext)![1]} but the cell's angle that is not 90° belongs to axis ${obliqueAxis(cell)}`);
   }
+}
+
+/**
+ * What the decisions above read from a cell, as a short key: equal keys give equal settings and notes, so callers
+ * may cache a lookup by symbol and this key.
+ */
+export function cellShapeKey(cell: CellParams | null): string {
+  if (cell === null) return '';
+  return `${isRhombohedralCell(cell) ? 'r' : ''}${isHexagonalCell(cell) ? 'h' : ''}${obliqueAxis(cell) ?? ''}`;
 }
 
 function near(x: number, y: number, tol: number): boolean {

@@ -10,7 +10,7 @@ import type { CellParams, SymOp } from '../types.js';
 import { opsFromHall } from '../geometry/hall.js';
 import { opKey } from '../geometry/symmetry.js';
 import { settingByHall, settingLabel, type SpaceGroupSetting } from '../geometry/space-group-table.js';
-import { settingFromNumber, settingFromSymbol, type SettingHints } from '../geometry/space-group-symbol.js';
+import { cellShapeKey, settingFromNumber, settingFromSymbol, type SettingHints } from '../geometry/space-group-symbol.js';
 
 /** The texts a block gives (trimmed, null when absent or '?'). */
 export interface SpaceGroupItems {
@@ -45,8 +45,26 @@ export interface DeclaredSpaceGroup {
   conflicts: string[];
 }
 
-/** A space group from the items, a reason when items are given but none can be read, or null when there are none. */
+/** Results by items and cell shape: prediction files repeat one symbol in every block. */
+const declaredCache = new Map<string, DeclaredSpaceGroup | { unreadable: string } | null>();
+const DECLARED_CACHE_MAX = 1024;
+
+/**
+ * A space group from the items, a reason when items are given but none can be read, or null when there are none.
+ * The result may be shared between calls: do not change it.
+ */
 export function declaredSpaceGroup(items: SpaceGroupItems, cell: CellParams): DeclaredSpaceGroup | { unreadable: string } | null {
+  const key = `${items.hm}\u0000${items.hall}\u0000${items.number}\u0000${items.code}\u0000${items.cellSetting}\u0000${cellShapeKey(cell)}`;
+  let result = declaredCache.get(key);
+  if (result === undefined) {
+    result = readDeclared(items, cell);
+    if (declaredCache.size >= DECLARED_CACHE_MAX) declaredCache.clear();
+    declaredCache.set(key, result);
+  }
+  return result;
+}
+
+function readDeclared(items: SpaceGroupItems, cell: CellParams): DeclaredSpaceGroup | { unreadable: string } | null {
   const { hm, hall, number } = items;
   if (hm === null && hall === null && number === null) return null;
   const hints: SettingHints = { code: items.code, cellSetting: items.cellSetting, cell };
