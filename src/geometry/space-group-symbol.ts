@@ -90,21 +90,7 @@ export function settingFromSymbol(symbol: string, hints: SettingHints = {}): Res
     ...parsed.markers.map((m): [string, string] => [m, `the marker '${m}' after the symbol`]),
     ...parsed.remarks.map((r): [string, string] => [r, `the remark '${r}'`]),
   ];
-  if (hints.code) soft.push([hints.code, `the setting code '${hints.code}'`]);
-  const cellSettingCode = hints.cellSetting ? axesFromCellSetting(hints.cellSetting) : null;
-  if (cellSettingCode !== null && candidates.some((s) => /[HR]$/.test(s.ext))) {
-    soft.push([cellSettingCode, `_symmetry_cell_setting '${hints.cellSetting}'`]);
-  }
-  for (const [text, what] of soft) {
-    const filter = codeFilter(remarkCode(text));
-    if (filter === null) {
-      notes.push(`${what} is not a setting code this reader knows; it was ignored`);
-      continue;
-    }
-    const kept = candidates.filter(filter);
-    if (kept.length === 0) notes.push(`${what} does not fit '${shown}'; it was ignored`);
-    else candidates = kept;
-  }
+  candidates = applySoftHints(candidates, soft, hints, `'${shown}'`, notes);
   const { chosen, open, undecided } = decide(candidates, hints.cell ?? null, `'${shown}'`);
   if (hexagonalLattice) notes.push(`'${shown}' read as ${settingLabel(chosen)} (the H lattice letter names hexagonal axes)`);
   cellCheck(chosen, hints.cell ?? null, notes);
@@ -117,21 +103,37 @@ export function settingFromNumber(number: number, hints: SettingHints = {}): Res
   let candidates = settingsOfGroup(number);
   const allowed = candidates;
   const notes: string[] = [];
-  const soft: Array<[string, string]> = [];
-  if (hints.code) soft.push([hints.code, `the setting code '${hints.code}'`]);
-  const cellSettingCode = hints.cellSetting ? axesFromCellSetting(hints.cellSetting) : null;
-  if (cellSettingCode !== null && candidates.some((s) => /[HR]$/.test(s.ext))) {
-    soft.push([cellSettingCode, `_symmetry_cell_setting '${hints.cellSetting}'`]);
-  }
-  for (const [text, what] of soft) {
-    const filter = codeFilter(remarkCode(text));
-    const kept = filter === null ? [] : candidates.filter(filter);
-    if (kept.length === 0) notes.push(`${what} does not fit group ${number}; it was ignored`);
-    else candidates = kept;
-  }
+  candidates = applySoftHints(candidates, [], hints, `group ${number}`, notes);
   const { chosen, open, undecided } = decide(candidates, hints.cell ?? null, `the space-group number ${number} alone`);
   cellCheck(chosen, hints.cell ?? null, notes);
   return { setting: chosen, allowed: distinct(allowed), open, undecided, notes };
+}
+
+/**
+ * Narrow the candidates by hints that may be wrong: `soft` (text, how to name it in a note) plus the setting code and
+ * cell-setting items of `hints`. A hint that fits none of the candidates, or is no code at all, is reported and ignored.
+ */
+function applySoftHints(
+  candidates: SpaceGroupSetting[], soft: Array<[string, string]>, hints: SettingHints, what: string, notes: string[],
+): SpaceGroupSetting[] {
+  const all = [...soft];
+  if (hints.code) all.push([hints.code, `the setting code '${hints.code}'`]);
+  const cellSettingCode = hints.cellSetting ? axesFromCellSetting(hints.cellSetting) : null;
+  if (cellSettingCode !== null && candidates.some((s) => /[HR]$/.test(s.ext))) {
+    all.push([cellSettingCode, `_symmetry_cell_setting '${hints.cellSetting}'`]);
+  }
+  let left = candidates;
+  for (const [text, name] of all) {
+    const filter = codeFilter(remarkCode(text));
+    if (filter === null) {
+      notes.push(`${name} is not a setting code this reader knows; it was ignored`);
+      continue;
+    }
+    const kept = left.filter(filter);
+    if (kept.length === 0) notes.push(`${name} does not fit ${what}; it was ignored`);
+    else left = kept;
+  }
+  return left;
 }
 
 /** The parts of a written symbol: its compact key, suffix codes, trailing markers and remarks. */
