@@ -56,7 +56,7 @@ export function landscapeOf(kept: SyntheticStructure[], k: number, params: Parti
   if (lowest !== null) order.sort((x, y) => (structures[x].energy ?? Infinity) - (structures[y].energy ?? Infinity) || x - y);
   const parameters: SiftParameters = {
     k, hydrogens: 'keep', toleranceAngstrom: 0.05, minFamilySize: 3, minSamples: 3, energyWindow: null,
-    energyUnit: 'kJ/mol', neighbours: 5, inputs: ['invented.cif'], energiesFile: null, energyItem: null, ...params,
+    energyUnit: 'kJ/mol', energyBasis: 'molecule', neighbours: 5, inputs: ['invented.cif'], energiesFile: null, energyItem: null, ...params,
   };
   return {
     format: 'polysift-landscape', formatVersion: 1, tool: { name: 'polysift', version: '0.1.0' },
