@@ -5,7 +5,7 @@
 // python3-gemmi, scripts/bond-lengths-gemmi.py) expands each block and counts its atoms per cell, divided by the
 // 11 atoms of the invented molecule.
 import { spawnSync } from 'node:child_process';
-import { mkdtempSync, writeFileSync } from 'node:fs';
+import { mkdtempSync, readFileSync, writeFileSync } from 'node:fs';
 import { tmpdir } from 'node:os';
 import { join } from 'node:path';
 import { beforeAll, describe, expect, it } from 'vitest';
@@ -98,6 +98,22 @@ describe('energies per cell', () => {
     expect(w.row.energy).toBeNull();
     expect(w.row.reason).toBe('no energy: the energy is per cell and the molecules per cell (Z) are unknown, so it cannot be divided');
   });
+
+  it('is asked for on the command line with --energy-basis cell, and says so', () => {
+    const out = join(dir, 'cli');
+    const tsx = join(process.cwd(), 'node_modules', '.bin', 'tsx');
+    // The old spelling of the tolerance is still read (the default value, so the landscape is the same).
+    const r = spawnSync(tsx, [join(process.cwd(), 'src', 'cli.ts'), 'sift', cif, '--energies', join(dir, 'per-cell.csv'), '--energy-basis', 'cell',
+      '--duplicate-tolerance', '0.04', '--no-cache', '--threads', '1', '--out', out], { encoding: 'utf8', timeout: 240_000 });
+    expect(r.status, r.stderr).toBe(0);
+    expect(r.stderr).toMatch(/polysift: energies are per cell: divided by each structure's Z/);
+    const landscape = JSON.parse(readFileSync(join(out, 'landscape.json'), 'utf8')) as typeof perCell.landscape;
+    expect(landscape.parameters.energyBasis).toBe('cell');
+    expect(readFileSync(join(out, 'structures.csv'), 'utf8')).toBe(structuresCsv({ ...perCell.landscape, parameters: { ...perCell.landscape.parameters, inputs: landscape.parameters.inputs } }));
+    const bad = spawnSync(tsx, [join(process.cwd(), 'src', 'cli.ts'), 'sift', cif, '--energy-basis', 'atom', '--out', join(dir, 'bad')], { encoding: 'utf8' });
+    expect(bad.status).toBe(1);
+    expect(bad.stderr).toBe("polysift: --energy-basis must be molecule or cell, not 'atom'\n");
+  }, 240_000);
 
   it('leaves energies per molecule untouched (the default)', async () => {
     const s = initialState({ inputs: ['x.cif'] });
