@@ -1,7 +1,7 @@
 #!/usr/bin/env python3
 """Cell volume, atoms per cell and covalent bond lengths of every block of CIF files, read with gemmi (Debian package
-python3-gemmi): the CIF parser, the symmetry operations (gemmi.Op; listed operations win, otherwise those of the
-space-group symbol, otherwise P1, as scripts/amd-gemmi.py does) and the cell's orthogonalisation are gemmi's. For test/locate-experimental.test.ts, which checks that the experimental-like
+python3-gemmi): the CIF parser, the symmetry expansion (scripts/gemmi_unit_cell.py) and the cell's orthogonalisation
+are gemmi's. For test/locate-experimental.test.ts, which checks that the experimental-like
 variants of src/bench/_experimental-variants.ts keep molecules rigid while the cell grows, and shorten exactly the
 bonds to hydrogen; and for test/sift-energy-basis.test.ts, which needs each structure's atoms per cell.
 
@@ -16,27 +16,9 @@ import sys
 import gemmi
 import numpy as np
 
+from gemmi_unit_cell import unit_cell_sites
+
 BOND_ANGSTROM = 1.6
-
-
-def unit_cell_sites(block, st):
-    """Fractional positions and hydrogen flags of every atom in the cell (images on one point merged)."""
-    listed = [gemmi.cif.as_string(v) for v in block.find_values('_space_group_symop_operation_xyz')]
-    if listed:
-        ops = [gemmi.Op(t) for t in listed]
-    else:
-        sg = st.find_spacegroup()
-        ops = list(sg.operations()) if sg else [gemmi.Op('x,y,z')]
-    frac, hydrogen = [], []
-    for site in st.sites:
-        images = []
-        for op in ops:
-            x = [v % 1.0 for v in op.apply_to_xyz([site.fract.x, site.fract.y, site.fract.z])]
-            if not any(max(min(abs(a - b), 1 - abs(a - b)) for a, b in zip(x, y)) < 1e-4 for y in images):
-                images.append(x)
-        frac += images
-        hydrogen += [site.element.name in ('H', 'D')] * len(images)
-    return np.array(frac), np.array(hydrogen)
 
 
 def bonds(frac, hydrogen, orth):
@@ -59,8 +41,9 @@ def main():
     for path in sys.argv[1:]:
         for block in gemmi.cif.read(path):
             st = gemmi.make_small_structure_from_block(block)
-            frac, hydrogen = unit_cell_sites(block, st)
-            heavy, with_h = bonds(frac, hydrogen, np.array(st.cell.orthogonalization_matrix))
+            frac, elements, _mass = unit_cell_sites(block, st)
+            hydrogen = np.array([e in ('H', 'D') for e in elements])
+            heavy, with_h = bonds(np.array(frac), hydrogen, np.array(st.cell.orthogonalization_matrix))
             out[block.name] = {'volume': st.cell.volume, 'sites': len(frac), 'heavy': heavy, 'hydrogen': with_h}
     json.dump(out, sys.stdout)
 
