@@ -20,7 +20,14 @@ export const NOTE_KINDS: readonly NoteKind[] = [
   { code: 'ops-from-symbol', pattern: /^no operations are listed: the \d+ operations were built/ },
   { code: 'p1-assumed', pattern: /^no symmetry operations and no space-group symbol/ },
   { code: 'ops-joined', pattern: /^operations written with spaces/ },
-  { code: 'ops-setting', pattern: /listed operations are not the default setting/ },
+  { code: 'ops-setting', pattern: /listed operations are not the (default )?setting/ },
+  // Space-group settings read from symbols and numbers (src/io/declared-space-group.ts, src/geometry/space-group-symbol.ts).
+  { code: 'setting-decided', pattern: /(does not say which of \d+ settings is meant|\(the H lattice letter names hexagonal axes\))/ },
+  { code: 'setting-cell', pattern: /(is on (rhombohedral|hexagonal) axes but the cell|has unique axis \w but the cell)/ },
+  {
+    code: 'symbol-conflict',
+    pattern: /(name different settings|names no setting this reader knows|cannot be read; the|is not one of 1\.\.230|does not match the .* symbol|is not a setting code this reader knows|does not fit .*; it was ignored)/,
+  },
   { code: 'ops-not-group', pattern: /listed symmetry operations do not form a group/ },
   { code: 'element-read', pattern: /^(type symbol|label) '/ },
   { code: 'occupancy-above-1', pattern: /^site .* has occupancy .* > 1$/ },
@@ -41,6 +48,7 @@ export const NOTE_KINDS: readonly NoteKind[] = [
   { code: 'formula-hydrogen', pattern: /has hydrogen but no hydrogen sites are listed/ },
   { code: 'density-stated', pattern: /(^_exptl_crystal_density_diffrn says|^the sites give .* but _chemical_formula_sum)/ },
   { code: 'z-stated', pattern: /^_cell_formula_units_Z says/ },
+  { code: 'composition', pattern: /which is not a whole multiple of _chemical_formula_sum/ },
   { code: 'no-facts', pattern: /^density and Z could not be computed/ },
   // Energies (src/io/energies.ts, src/landscape/stages/energies.ts, energy-basis.ts, window.ts).
   { code: 'no-energy-window', pattern: /^no energy, so the energy window/ },
