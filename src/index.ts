@@ -30,7 +30,7 @@ export { embed2d } from './cluster/embedding.js';
 export { adjustedRandIndex, spearman } from './cluster/stats.js';
 
 // Pipelines (src/landscape)
-export { sift } from './landscape/sift.js';
+export { sift, SIFT_STAGES } from './landscape/sift.js';
 export { siftFiles } from './landscape/sift-files.js';
 export { collapseDuplicates } from './landscape/collapse.js';
 export { convergenceCurve } from './landscape/convergence.js';
