@@ -9,6 +9,8 @@ import { writeFilesAtomically, removePendingFiles } from '../io/outputs.js';
 import { parseEnergyAmount, parseEnergyUnit } from '../io/energies.js';
 import { makeProgress } from '../progress.js';
 import type { HydrogenPolicy } from '../landscape/schema.js';
+import { DEFAULT_SYMMETRY_TOLERANCE_ANGSTROM } from '../geometry/detect-symmetry.js';
+import { parseSymmetryTolerance } from './inspect.js';
 
 export const DEFAULT_OUT = 'sift-out';
 export const CACHE_FOLDER = '.polysift-cache';
@@ -22,6 +24,7 @@ interface SiftCliOptions {
   energyItem?: string;
   k: string;
   duplicateTolerance: string;
+  symmetryTolerance: string;
   minFamilySize: string;
   familyMinSamples?: string;
   energyWindow?: string;
@@ -47,6 +50,11 @@ export function registerSift(program: Command): void {
     .option('--energy-item <name>', 'CIF data item holding each structure\'s energy (instead of --energies)')
     .option('-k, --pdd-depth <n>', 'neighbours per PDD row (k)', String(DEFAULT_K))
     .option('--duplicate-tolerance <angstrom>', 'EMD in Å within which a structure is a duplicate of a kept one', String(DEFAULT_TOLERANCE_ANGSTROM))
+    .option(
+      '--symmetry-tolerance <angstrom>',
+      'distance in Å within which atoms must map onto atoms for a symmetry operation to count (space group and Z\' reported)',
+      String(DEFAULT_SYMMETRY_TOLERANCE_ANGSTROM),
+    )
     .option('--min-family-size <n>', 'smallest family HDBSCAN reports (kept structures)', String(DEFAULT_MIN_FAMILY_SIZE))
     .option('--family-min-samples <n>', 'HDBSCAN neighbour count for core distances (default: the minimum family size)')
     .option('--energy-window <energy>', 'only structures within this energy above the lowest are compared, e.g. 20 or 5kcal/mol')
@@ -74,6 +82,7 @@ export function registerSift(program: Command): void {
         k: integer(o.pddDepth, '-k', 1),
         hydrogens,
         toleranceAngstrom: decimal(o.duplicateTolerance, '--duplicate-tolerance'),
+        symmetryToleranceAngstrom: parseSymmetryTolerance(o.symmetryTolerance),
         minFamilySize,
         minSamples: o.familyMinSamples === undefined ? minFamilySize : integer(o.familyMinSamples, '--family-min-samples', 1),
         energyWindow: o.energyWindow === undefined ? null : parseEnergyAmount(o.energyWindow, unit),

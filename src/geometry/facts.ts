@@ -1,4 +1,5 @@
-// Facts about a crystal that need no invariants: volume, atoms per cell, density, molecules, Z, Z'.
+// Facts about a crystal that need no invariants: volume, atoms per cell, density, molecules, Z, Z', and the
+// space group the crystal has (./crystal-symmetry.ts).
 // Always computed on the full structure with hydrogens, so they do not depend on the hydrogen option.
 //
 // Density = sum over atoms in the cell of occupancy * standard atomic weight / (N_A * V)
@@ -9,13 +10,25 @@ import { selectOrderedSites } from './disorder.js';
 import { atomicNumber, atomicWeight } from './elements.js';
 import { findMolecules, OVERLAP_ANGSTROM } from './molecules.js';
 import { expandSites } from './periodic-set.js';
+import { crystalSymmetry, type SymmetryDoubts } from './crystal-symmetry.js';
+import { DEFAULT_SYMMETRY_TOLERANCE_ANGSTROM, type SymmetryDetection } from './detect-symmetry.js';
 
 const AVOGADRO_PER_MOL = 6.02214076e23;
 const CUBIC_ANGSTROM_IN_CM3 = 1e-24;
 /** Declared and computed values that differ by more than this fraction get a note. */
 const AGREEMENT_FRACTION = 0.005;
 
-export function crystalFacts(record: CrystalRecord): CrystalFacts {
+export interface FactsOptions {
+  /** Tolerance (Å) of symmetry detection (./detect-symmetry.ts); default DEFAULT_SYMMETRY_TOLERANCE_ANGSTROM. */
+  symmetryToleranceAngstrom?: number;
+}
+
+export function crystalFacts(record: CrystalRecord, opts: FactsOptions = {}): CrystalFacts {
+  return crystalFactsAndSymmetry(record, opts).facts;
+}
+
+/** The facts and the full symmetry detection behind `facts.symmetry` (null when detection did not run). */
+export function crystalFactsAndSymmetry(record: CrystalRecord, opts: FactsOptions = {}): { facts: CrystalFacts; detection: SymmetryDetection | null } {
   const volumeA3 = cellVolume(record.cell);
   const notes: string[] = [];
   if (record.sites.length === 0) {
@@ -54,14 +67,31 @@ export function crystalFacts(record: CrystalRecord): CrystalFacts {
   const zPrime = opsKnown ? molecules.z / nOps : null;
 
   notes.push(...consistencyNotes(record, volumeA3, densityGPerCm3, massPerCell, molecules.z, all.duplicateSites));
+
+  // The crystal's own symmetry, on the ordered atoms with hydrogens.
+  const formula = textItem(record.text, '_chemical_formula_sum');
+  const composition = formula === null ? null : parseFormulaSum(formula);
+  const doubts: SymmetryDoubts = {
+    disordered: selection.notes.length > 0 || record.sites.some((site) => site.occupancy < 1 - 1e-6),
+    missingHydrogens: composition !== null && (composition.get(1) ?? 0) > 0 && !record.sites.some((site) => site.element === 'H'),
+    overlaps: molecules.overlaps,
+  };
+  const { symmetry, detection } = crystalSymmetry(
+    record, { basis: ordered.basis, frac: ordered.frac, types: ordered.atomicNumbers }, molecules.z, doubts,
+    opts.symmetryToleranceAngstrom ?? DEFAULT_SYMMETRY_TOLERANCE_ANGSTROM,
+  );
   return {
-    volumeA3,
-    atomsPerCell: ordered.count,
-    densityGPerCm3,
-    z: molecules.z,
-    zPrime,
-    formulas: molecules.formulas,
-    notes,
+    facts: {
+      volumeA3,
+      atomsPerCell: ordered.count,
+      densityGPerCm3,
+      z: molecules.z,
+      zPrime,
+      formulas: molecules.formulas,
+      symmetry,
+      notes,
+    },
+    detection,
   };
 }
 

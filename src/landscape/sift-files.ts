@@ -6,16 +6,18 @@ import { csvLine, csvNumber, stableJson } from '../io/outputs.js';
 import type { SiftRun } from './sift.js';
 import { convergenceCsv } from './convergence.js';
 import { renderSiftReport } from '../report/sift-report.js';
+import { formatWrittenIn } from './written-in.js';
 
 export const STRUCTURES_COLUMNS = [
   'id', 'source', 'status', 'reason', 'energy', 'energy_rel', 'density', 'atoms', 'space_group', 'duplicate_of',
   'distance_to_kept', 'family', 'nearest', 'nearest_distance', 'nn_distance', 'members', 'z', 'z_prime', 'formula',
-  'file', 'block', 'line', 'notes',
+  'file', 'block', 'line', 'notes', 'space_group_declared', 'space_group_source', 'symmetry_note',
 ] as const;
 
 export const UNIQUE_COLUMNS = [
   'id', 'source', 'energy', 'energy_rel', 'density', 'members', 'energy_min', 'energy_max', 'density_min', 'density_max',
   'max_distance_to_kept', 'family', 'nearest', 'nearest_distance', 'space_group', 'z', 'z_prime', 'formula',
+  'space_group_declared', 'written_in',
 ] as const;
 
 export function structuresCsv(l: Landscape): string {
@@ -26,6 +28,7 @@ export function structuresCsv(l: Landscape): string {
         r.id, r.source, r.status, r.reason, csvNumber(r.energy), csvNumber(r.energyRel), csvNumber(r.densityGPerCm3), r.atoms,
         r.spaceGroup, r.duplicateOf, csvNumber(r.distanceToKept), r.family, r.nearest, csvNumber(r.nearestDistance),
         csvNumber(r.nnDistance), r.members, r.z, r.zPrime, r.formulas.join(' '), r.file, r.block, r.line, r.notes.join('; '),
+        r.symmetry?.declared ?? null, r.symmetry?.source ?? null, r.symmetry?.note ?? null,
       ]),
     );
   }
@@ -55,7 +58,7 @@ export function uniqueCsv(l: Landscape): string {
       csvLine([
         r.id, r.source, csvNumber(r.energy), csvNumber(r.energyRel), csvNumber(r.densityGPerCm3), r.members, csvNumber(eMin),
         csvNumber(eMax), csvNumber(dMin), csvNumber(dMax), csvNumber(maxD), r.family, r.nearest, csvNumber(r.nearestDistance),
-        r.spaceGroup, r.z, r.zPrime, r.formulas.join(' '),
+        r.spaceGroup, r.z, r.zPrime, r.formulas.join(' '), r.symmetry?.declared ?? null, formatWrittenIn(r.writtenIn),
       ]),
     );
   }
