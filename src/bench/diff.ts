@@ -38,7 +38,7 @@ export async function run(): Promise<void> {
     );
     const refs: ReferenceInvariants[] = a.slice(0, 20).map((p, i) => {
       const q = noisy(r, p);
-      return { id: `ref-${i}`, source: `ref.cif#ref-${i}`, pdd: asPdd(q), amd: amdOf(q, K), densityGPerCm3: null, spaceGroup: null, notes: [] };
+      return { id: `ref-${i}`, source: `ref.cif#ref-${i}`, pdd: asPdd(q), amd: amdOf(q, K), densityGPerCm3: null, spaceGroup: null, zPrime: null, notes: [] };
     });
     t = performance.now();
     await locateReferences(lb, 'B', refs);

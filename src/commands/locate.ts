@@ -44,7 +44,7 @@ export function registerLocate(program: Command): void {
       const hydrogens: HydrogenPolicy = (opts.hydrogens as HydrogenPolicy | undefined) ?? landscape.invariants.hydrogens;
       const problem = hydrogenProblem(landscape, hydrogens, path);
       if (problem) throw new Error(problem);
-      const { references, unusable } = await readReferences(refs, landscape.invariants.k, hydrogens);
+      const { references, unusable } = await readReferences(refs, landscape.invariants.k, hydrogens, landscape.parameters.symmetryToleranceAngstrom);
       for (const u of unusable) process.stderr.write(`polysift: reference ${u.source} (line ${u.line}) not used: ${u.reason}\n`);
       if (references.length === 0) throw new Error(`no usable reference structure in ${refs.join(', ')}`);
       const result = await locateReferences(landscape, path, references, { toleranceAngstrom: tolerance, count, threads });

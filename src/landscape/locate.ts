@@ -15,7 +15,9 @@ export interface ReferenceInvariants {
   pdd: Pdd;
   amd: number[];
   densityGPerCm3: number | null;
+  /** The space group the reference has (detected within the landscape's symmetry tolerance, or declared) and its Z'. */
   spaceGroup: string | null;
+  zPrime: number | null;
   notes: string[];
 }
 
@@ -39,6 +41,7 @@ export interface LocateHit {
   energyRel: number | null;
   densityGPerCm3: number | null;
   spaceGroup: string | null;
+  zPrime: number | null;
   family: number;
 }
 
@@ -51,6 +54,7 @@ export interface LocatedReference {
   nearest: LocateHit[];
   densityGPerCm3: number | null;
   spaceGroup: string | null;
+  zPrime: number | null;
   notes: string[];
 }
 
@@ -113,13 +117,13 @@ export async function locateReferences(
       nearest.push({
         order: j + 1, index: s.index, id: s.id, source: s.source, emdAngstrom: cross.neighbourDistance[q * count + j],
         energyRank: ranks.get(s.index) ?? null, energyRel: s.energyRel, densityGPerCm3: s.densityGPerCm3,
-        spaceGroup: s.spaceGroup, family: s.family,
+        spaceGroup: s.spaceGroup, zPrime: s.zPrime ?? null, family: s.family,
       });
     }
     const found = nearest.length > 0 && nearest[0].emdAngstrom <= tol;
     return {
       id: r.id, source: r.source, found, match: found ? nearest[0] : null, nearest,
-      densityGPerCm3: r.densityGPerCm3, spaceGroup: r.spaceGroup, notes: r.notes,
+      densityGPerCm3: r.densityGPerCm3, spaceGroup: r.spaceGroup, zPrime: r.zPrime, notes: r.notes,
     };
   });
   return {
