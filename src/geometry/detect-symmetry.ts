@@ -108,14 +108,7 @@ function detectOnce(cell: SymmetryCell, tol: number): SymmetryDetection {
   const basisIn = Array.from({ length: 9 }, (_, i) => cell.basis[i]);
   // 1. Reduced cell and its pure translations.
   const red = reduceBasis(basisIn, 3);
-  const uInvT = transpose3(inverse(red.transform, 3));
-  const fracR = new Float64Array(3 * m);
-  for (let i = 0; i < m; i++) {
-    const x = mulVec3(uInvT, [cell.frac[3 * i], cell.frac[3 * i + 1], cell.frac[3 * i + 2]]);
-    fracR[3 * i] = wrapUnit(x[0]);
-    fracR[3 * i + 1] = wrapUnit(x[1]);
-    fracR[3 * i + 2] = wrapUnit(x[2]);
-  }
+  const fracR = transformCoordinates(transpose3(inverse(red.transform, 3)), cell.frac, m, true);
   const types = Int32Array.from(cell.types);
   const ixIn = buildMotifIndex(red.basis, fracR, types, tol);
   // The zero translation first, so that the identity leads the operations in the given cell.
@@ -154,22 +147,25 @@ function detectOnce(cell: SymmetryCell, tol: number): SymmetryDetection {
   const pm = m / n;
   const fracP = new Float64Array(3 * pm);
   const typesP = new Int32Array(pm);
-  const firstInput = new Int32Array(pm);
+  const inP = transformCoordinates(kT, cell.frac, m, false);
   let p = 0;
   for (let i = 0; i < m; i++) {
     if (atomOf[i] >= 0) continue;
-    const ref = mulVec3(kT, [cell.frac[3 * i], cell.frac[3 * i + 1], cell.frac[3 * i + 2]]);
-    const sum = [0, 0, 0];
+    let s0 = 0, s1 = 0, s2 = 0;
     for (const op of pure) {
       const j = op.perm[i];
       if (atomOf[j] >= 0) return { ok: false, reason: `the pure translations found within ${fmt(tol)} Å do not map atoms one to one` };
       atomOf[j] = p;
-      const x = mulVec3(kT, [cell.frac[3 * j], cell.frac[3 * j + 1], cell.frac[3 * j + 2]]);
-      for (let r = 0; r < 3; r++) sum[r] += x[r] - ref[r] - Math.round(x[r] - ref[r]);
+      // Members of an orbit differ by primitive lattice vectors: whole numbers in primitive coordinates.
+      const d0 = inP[3 * j] - inP[3 * i], d1 = inP[3 * j + 1] - inP[3 * i + 1], d2 = inP[3 * j + 2] - inP[3 * i + 2];
+      s0 += d0 - Math.round(d0);
+      s1 += d1 - Math.round(d1);
+      s2 += d2 - Math.round(d2);
     }
-    for (let r = 0; r < 3; r++) fracP[3 * p + r] = wrapUnit(ref[r] + sum[r] / n);
+    fracP[3 * p] = wrapUnit(inP[3 * i] + s0 / n);
+    fracP[3 * p + 1] = wrapUnit(inP[3 * i + 1] + s1 / n);
+    fracP[3 * p + 2] = wrapUnit(inP[3 * i + 2] + s2 / n);
     typesP[p] = types[i];
-    firstInput[p] = i;
     p++;
   }
   if (p !== pm) return { ok: false, reason: `the pure translations found within ${fmt(tol)} Å do not map atoms one to one` };
@@ -187,17 +183,18 @@ function detectOnce(cell: SymmetryCell, tol: number): SymmetryDetection {
 
   // Operations in the given cell: W_in = K^-T W K^T, t_in = K^-T t, times every pure translation.
   const kInvT = transpose3(inverse(k, 3));
+  // (Float64Arrays: a zero translation and a fractional one must look alike to the compiler.)
   const pureIn = pure.map((op) => {
     const x = mulVec3(transpose3(red.transform), op.trans);
-    return x.map((v) => wrapUnit(Math.round(v * n) / n));
+    return Float64Array.of(wrapUnit(Math.round(x[0] * n) / n), wrapUnit(Math.round(x[1] * n) / n), wrapUnit(Math.round(x[2] * n) / n));
   });
   const operations: SymOp[] = [];
   for (const pureT of pureIn) {
     for (const o of found) {
       const rot = roundedInteger3(mul3(mul3(kInvT, o.rot), kT), 1e-6);
       if (rot === null) return { ok: false, reason: 'an operation has no integer form in the given cell' };
-      const t = mulVec3(kInvT, o.trans);
-      operations.push({ rot, trans: t.map((v, r) => clean(wrapUnit(v + pureT[r]))) });
+      const t = Float64Array.from(mulVec3(kInvT, o.trans));
+      operations.push({ rot, trans: [clean(wrapUnit(t[0] + pureT[0])), clean(wrapUnit(t[1] + pureT[1])), clean(wrapUnit(t[2] + pureT[2]))] });
     }
   }
 
@@ -247,18 +244,31 @@ function detectOnce(cell: SymmetryCell, tol: number): SymmetryDetection {
   };
 }
 
+/** Fractional coordinates of m atoms under the matrix `t` (x' = t x), optionally wrapped to [0,1). */
+function transformCoordinates(t: ArrayLike<number>, frac: ArrayLike<number>, m: number, wrap: boolean): Float64Array {
+  const out = new Float64Array(3 * m);
+  for (let i = 0; i < m; i++) {
+    const x = frac[3 * i], y = frac[3 * i + 1], z = frac[3 * i + 2];
+    const a = t[0] * x + t[1] * y + t[2] * z, b = t[3] * x + t[4] * y + t[5] * z, c = t[6] * x + t[7] * y + t[8] * z;
+    out[3 * i] = wrap ? wrapUnit(a) : a;
+    out[3 * i + 1] = wrap ? wrapUnit(b) : b;
+    out[3 * i + 2] = wrap ? wrapUnit(c) : c;
+  }
+  return out;
+}
+
 /**
  * Why the operations are not a group (a product missing, or present with another translation beyond the
  * tolerance), or null when they are one.
  */
 function closureProblem(found: { rot: number[]; trans: number[] }[], basis: number[], tol: number): string | null {
-  const byRot = new Map<string, number[]>();
-  for (const o of found) byRot.set(o.rot.join(','), o.trans);
+  const byRot = new Map<number, number[]>();
+  for (const o of found) byRot.set(rotationKey(o.rot), o.trans);
   const tol2 = (2 * tol) * (2 * tol);
   for (const a of found) {
     for (const b of found) {
       const rot = mul3(a.rot, b.rot);
-      const t = byRot.get(rot.join(','));
+      const t = byRot.get(rotationKey(rot));
       if (t === undefined) return `the operations found within ${fmt(tol)} Å are not closed under products`;
       const wb = mulVec3(a.rot, b.trans);
       let d0 = wb[0] + a.trans[0] - t[0], d1 = wb[1] + a.trans[1] - t[1], d2 = wb[2] + a.trans[2] - t[2];
@@ -287,6 +297,16 @@ export function cellOf(basis: ArrayLike<number>): CellParams {
 /** Volume of the conventional cell over that of the given cell (to turn molecules per given cell into Z). */
 export function conventionalPerGiven(symmetry: DetectedSymmetry, givenBasis: ArrayLike<number>): number {
   return basisVolume(symmetry.conventionalBasis) / basisVolume(givenBasis);
+}
+
+/** A number naming an integer rotation of a reduced cell (entries within ±7; others get NaN, which matches nothing). */
+function rotationKey(w: ArrayLike<number>): number {
+  let k = 0;
+  for (let i = 0; i < 9; i++) {
+    if (w[i] < -7 || w[i] > 7) return Number.NaN;
+    k = k * 15 + (w[i] + 7);
+  }
+  return k;
 }
 
 function isZero(t: number[]): boolean {

@@ -84,31 +84,21 @@ function rarestElement(ix: MotifIndex): { rare: number; members: number[] } {
 /** Move t to the mean offset of all atoms and measure the largest remaining distance. */
 function refine(ix: MotifIndex, w: number[], t: number[], perm: Int32Array): MotifOperation {
   const m = ix.count;
-  const f = ix.frac, B = ix.basis;
-  const off = new Float64Array(3 * m);
+  const B = ix.basis;
   let s0 = 0, s1 = 0, s2 = 0;
   for (let i = 0; i < m; i++) {
-    const a0 = f[3 * i], a1 = f[3 * i + 1], a2 = f[3 * i + 2];
-    const j = perm[i];
-    let d0 = f[3 * j] - (w[0] * a0 + w[1] * a1 + w[2] * a2 + t[0]);
-    let d1 = f[3 * j + 1] - (w[3] * a0 + w[4] * a1 + w[5] * a2 + t[1]);
-    let d2 = f[3 * j + 2] - (w[6] * a0 + w[7] * a1 + w[8] * a2 + t[2]);
-    d0 -= Math.round(d0);
-    d1 -= Math.round(d1);
-    d2 -= Math.round(d2);
-    off[3 * i] = d0;
-    off[3 * i + 1] = d1;
-    off[3 * i + 2] = d2;
-    s0 += d0;
-    s1 += d1;
-    s2 += d2;
+    offset(ix, w, t, perm, i, OFFSET);
+    s0 += OFFSET[0];
+    s1 += OFFSET[1];
+    s2 += OFFSET[2];
   }
   s0 /= m;
   s1 /= m;
   s2 /= m;
   let worst = 0;
   for (let i = 0; i < m; i++) {
-    const d0 = off[3 * i] - s0, d1 = off[3 * i + 1] - s1, d2 = off[3 * i + 2] - s2;
+    offset(ix, w, t, perm, i, OFFSET);
+    const d0 = OFFSET[0] - s0, d1 = OFFSET[1] - s1, d2 = OFFSET[2] - s2;
     const x = d0 * B[0] + d1 * B[3] + d2 * B[6];
     const y = d0 * B[1] + d1 * B[4] + d2 * B[7];
     const z = d0 * B[2] + d1 * B[5] + d2 * B[8];
@@ -120,4 +110,19 @@ function refine(ix: MotifIndex, w: number[], t: number[], perm: Int32Array): Mot
     perm: perm.slice(),
     deviationAngstrom: Math.sqrt(worst),
   };
+}
+
+const OFFSET = new Float64Array(3);
+
+/** Fractional offset from atom i's image under (w, t) to its partner, nearest lattice translate, into `out`. */
+function offset(ix: MotifIndex, w: number[], t: number[], perm: Int32Array, i: number, out: Float64Array): void {
+  const f = ix.frac;
+  const a0 = f[3 * i], a1 = f[3 * i + 1], a2 = f[3 * i + 2];
+  const j = perm[i];
+  const d0 = f[3 * j] - (w[0] * a0 + w[1] * a1 + w[2] * a2 + t[0]);
+  const d1 = f[3 * j + 1] - (w[3] * a0 + w[4] * a1 + w[5] * a2 + t[1]);
+  const d2 = f[3 * j + 2] - (w[6] * a0 + w[7] * a1 + w[8] * a2 + t[2]);
+  out[0] = d0 - Math.round(d0);
+  out[1] = d1 - Math.round(d1);
+  out[2] = d2 - Math.round(d2);
 }
