@@ -11,6 +11,11 @@ export { parseEnergyCsv, assignEnergies, convertEnergy } from './io/energies.js'
 export { cellToBasis, cellVolume } from './geometry/cell.js';
 export { parseSymopXyz, opsFromSymbol, closeGroup } from './geometry/symmetry.js';
 export { opsFromHall } from './geometry/hall.js';
+export {
+  SPACE_GROUP_SETTINGS, OTHER_SETTINGS, settingByHall, settingByOperations, defaultSetting, groupSymbol, settingsOfGroup, settingLabel,
+  type SpaceGroupSetting,
+} from './geometry/space-group-table.js';
+export { settingFromSymbol, settingFromNumber, type ResolvedSetting, type SettingHints } from './geometry/space-group-symbol.js';
 export { toPeriodicSet } from './geometry/periodic-set.js';
 export { crystalFacts } from './geometry/facts.js';
 export { reduceBasis } from './geometry/reduce.js';

@@ -12,6 +12,7 @@ import { formatOpXyz } from '../geometry/symmetry.js';
 import { toPeriodicSet } from '../geometry/periodic-set.js';
 import { pdd } from '../invariants/pdd.js';
 import { amd } from '../invariants/amd.js';
+import { settingLabel } from '../geometry/space-group-table.js';
 
 /** Default hydrogen handling: kept, as in `sift` (predicted structures place hydrogens reliably); drop them for X-ray structures. */
 export const DEFAULT_HYDROGENS: HydrogenPolicy = 'keep';
@@ -45,8 +46,14 @@ export interface InspectEntry {
   symmetry: CrystalSymmetry;
   /** The detected group in full, when detection ran and succeeded. */
   detected: DetectedJson | null;
+  /** The space-group table entry the declared operations were built from (symbol- or number-built records), else null. */
+  tableEntry: { number: number; hm: string; ext: string; hall: string; label: string } | null;
   atomsPerCell: number;
   densityGPerCm3: number;
+  /** Density counting the hydrogens of `_atom_site_attached_hydrogens` (only when such hydrogens have no sites). */
+  densityWithAttachedHydrogensGPerCm3?: number;
+  /** Those hydrogens per cell. */
+  attachedHydrogensPerCell?: number;
   /** Molecules per conventional cell and per asymmetric unit of the reported group. */
   z: number | null;
   zPrime: number | null;
@@ -119,8 +126,15 @@ export function inspectEntryJson(
     operationsFrom: record.opsOrigin,
     symmetry: sym,
     detected: detection !== null && detection.ok && sym.source === 'detected' ? detectedJson(detection.symmetry) : null,
+    tableEntry: record.setting === undefined ? null : {
+      number: record.setting.number, hm: record.setting.hm, ext: record.setting.ext, hall: record.setting.hall, label: settingLabel(record.setting),
+    },
     atomsPerCell: facts.atomsPerCell,
     densityGPerCm3: facts.densityGPerCm3,
+    ...(facts.implicitHydrogens === undefined ? {} : {
+      densityWithAttachedHydrogensGPerCm3: facts.implicitHydrogens.densityGPerCm3,
+      attachedHydrogensPerCell: facts.implicitHydrogens.perCell,
+    }),
     z: sym.z,
     zPrime: sym.zPrime,
     moleculesPerCell: facts.z,
@@ -205,8 +219,17 @@ export function formatEntryText(s: InspectEntry): string {
     lines.push(`  cells         conventional ${formatCell(d.conventionalCell)}; primitive ${formatCell(d.primitiveCell)}, ${d.primitiveAtoms} atoms`);
   }
   lines.push(`  declared      ${s.spaceGroupAsWritten ?? '(not stated)'}${s.symmetry.declared !== null && s.symmetry.declared !== s.spaceGroupAsWritten ? ` (${s.symmetry.declared})` : ''}; ${s.operations} operation(s) ${describeOrigin(s.operationsFrom)}`);
+  if (s.tableEntry !== null) {
+    const t = s.tableEntry;
+    lines.push(`  table entry   group ${t.number}, ${t.label}${t.ext === '' || t.label.endsWith(`:${t.ext}`) ? '' : ` (setting ${t.ext})`}, Hall ${t.hall}`);
+  }
   lines.push(`  atoms/cell    ${s.atomsPerCell} (hydrogens included); periodic set ${s.setPoints} points, ${s.asymmetricUnitPoints} in the asymmetric unit (hydrogens ${s.hydrogens === 'keep' ? 'kept' : 'dropped'})`);
-  lines.push(`  density       ${fmt(s.densityGPerCm3, 4)} g/cm³`);
+  lines.push(
+    `  density       ${fmt(s.densityGPerCm3, 4)} g/cm³` +
+      (s.densityWithAttachedHydrogensGPerCm3 === undefined
+        ? ''
+        : `; ${fmt(s.densityWithAttachedHydrogensGPerCm3, 4)} g/cm³ with the ${Math.round(s.attachedHydrogensPerCell! * 1000) / 1000} hydrogens per cell of _atom_site_attached_hydrogens (no sites; not in the comparison)`),
+  );
   lines.push(
     `  Z             ${s.z ?? '–'}   Z' ${s.zPrime === null ? '–' : Math.round(s.zPrime * 1000) / 1000}   (${s.moleculesPerCell} molecule(s) in this cell` +
       `${s.symmetry.declaredZPrime === null || s.zPrime === null || Math.abs(s.symmetry.declaredZPrime - s.zPrime) < 1e-6 ? '' : `; Z' ${Math.round(s.symmetry.declaredZPrime * 1000) / 1000} by the declared operations`})`,
