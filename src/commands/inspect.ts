@@ -7,7 +7,7 @@ import type { CellParams, CrystalFacts, CrystalRecord, CrystalSymmetry, OpsOrigi
 import type { HydrogenPolicy } from '../landscape/schema.js';
 import { readStructures } from '../io/read.js';
 import { crystalFactsAndSymmetry } from '../geometry/facts.js';
-import { cellOf, DEFAULT_SYMMETRY_TOLERANCE_ANGSTROM, type SymmetryDetection } from '../geometry/detect-symmetry.js';
+import { cellOf, DEFAULT_SYMMETRY_TOLERANCE_ANGSTROM, type DetectedSymmetry, type SymmetryDetection } from '../geometry/detect-symmetry.js';
 import { formatOpXyz } from '../geometry/symmetry.js';
 import { toPeriodicSet } from '../geometry/periodic-set.js';
 import { pdd } from '../invariants/pdd.js';
@@ -74,27 +74,18 @@ export interface InspectEntry {
 }
 
 /** The detected space group with its operations and cells, as `inspect --json` reports it. */
-export interface DetectedJson {
-  number: number;
-  symbol: string;
-  /** Hermann–Mauguin symbol of the default setting as International Tables write it, and the full symbol. */
-  hm: string;
-  full: string;
-  hall: string;
-  pointGroup: string;
-  crystalSystem: string;
-  toleranceAngstrom: number;
-  deviationAngstrom: number;
+export type DetectedJson = Pick<
+  DetectedSymmetry,
+  'number' | 'symbol' | 'hm' | 'full' | 'hall' | 'pointGroup' | 'crystalSystem' | 'toleranceAngstrom' | 'deviationAngstrom' |
+  'latticePointsPerCell' | 'primitiveAtoms' | 'originShift'
+> & {
   /** Operations in the given cell, x,y,z form. */
   operations: string[];
-  latticePointsPerCell: number;
   primitiveCell: CellParams;
-  primitiveAtoms: number;
   conventionalCell: CellParams;
   /** x_standard = transformation x_given + originShift (fractional columns; rows of the 3x3 matrix). */
   transformation: number[][];
-  originShift: number[];
-}
+};
 
 export interface InspectRejected {
   id: string;
@@ -148,7 +139,7 @@ export function inspectEntryJson(
   };
 }
 
-function detectedJson(d: Extract<SymmetryDetection, { ok: true }>['symmetry']): DetectedJson {
+function detectedJson(d: DetectedSymmetry): DetectedJson {
   const t = d.transformation;
   const r6 = (v: number) => Math.round(v * 1e6) / 1e6 + 0;
   return {
@@ -158,7 +149,7 @@ function detectedJson(d: Extract<SymmetryDetection, { ok: true }>['symmetry']): 
     primitiveCell: roundCell(cellOf(d.primitiveBasis)), primitiveAtoms: d.primitiveAtoms,
     conventionalCell: roundCell(cellOf(d.conventionalBasis)),
     transformation: [0, 1, 2].map((r) => [t[3 * r], t[3 * r + 1], t[3 * r + 2]].map(r6)),
-    originShift: d.originShift.map(r6),
+    originShift: [r6(d.originShift[0]), r6(d.originShift[1]), r6(d.originShift[2])],
   };
 }
 

@@ -6,6 +6,7 @@
 import type { CrystalRecord, CrystalSymmetry, SymOp } from '../types.js';
 import { conventionalPerGiven, detectSymmetry, type SymmetryCell, type SymmetryDetection } from './detect-symmetry.js';
 import { defaultSetting, settingByOperations, type SpaceGroupSetting } from './space-group-table.js';
+import { wrappedLength2 } from './matrix3.js';
 
 /** Why detection is not applied to a structure (null when it is). */
 export interface SymmetryDoubts {
@@ -131,14 +132,7 @@ function containsOperations(found: SymOp[], declared: SymOp[], basis: ArrayLike<
   return declared.every((op) =>
     found.some((f) => {
       for (let i = 0; i < 9; i++) if (f.rot[i] !== op.rot[i]) return false;
-      const d = [0, 1, 2].map((r) => {
-        const x = f.trans[r] - op.trans[r];
-        return x - Math.round(x);
-      });
-      const x = d[0] * basis[0] + d[1] * basis[3] + d[2] * basis[6];
-      const y = d[0] * basis[1] + d[1] * basis[4] + d[2] * basis[7];
-      const z = d[0] * basis[2] + d[1] * basis[5] + d[2] * basis[8];
-      return x * x + y * y + z * z <= tol2;
+      return wrappedLength2(f.trans[0] - op.trans[0], f.trans[1] - op.trans[1], f.trans[2] - op.trans[2], basis) <= tol2;
     }),
   );
 }

@@ -25,7 +25,7 @@ import { latticeRotations } from './lattice-symmetry.js';
 import { latticeBasis } from './integer-lattice.js';
 import { matchSpaceGroup } from './space-group-match.js';
 import { pointGroupSymbol, type CrystalSystem } from './point-group.js';
-import { mul3, mulVec3, roundedInteger3, transpose3 } from './matrix3.js';
+import { mul3, mulVec3, roundedInteger3, transpose3, wrappedLength2 } from './matrix3.js';
 
 /**
  * Default tolerance (Å) of symmetry detection, chosen from measurements on the generator's landscapes
@@ -271,14 +271,7 @@ function closureProblem(found: { rot: number[]; trans: number[] }[], basis: numb
       const t = byRot.get(rotationKey(rot));
       if (t === undefined) return `the operations found within ${fmt(tol)} Å are not closed under products`;
       const wb = mulVec3(a.rot, b.trans);
-      let d0 = wb[0] + a.trans[0] - t[0], d1 = wb[1] + a.trans[1] - t[1], d2 = wb[2] + a.trans[2] - t[2];
-      d0 -= Math.round(d0);
-      d1 -= Math.round(d1);
-      d2 -= Math.round(d2);
-      const x = d0 * basis[0] + d1 * basis[3] + d2 * basis[6];
-      const y = d0 * basis[1] + d1 * basis[4] + d2 * basis[7];
-      const z = d0 * basis[2] + d1 * basis[5] + d2 * basis[8];
-      if (x * x + y * y + z * z > tol2) return `the translations of the operations found within ${fmt(tol)} Å do not compose`;
+      if (wrappedLength2(wb[0] + a.trans[0] - t[0], wb[1] + a.trans[1] - t[1], wb[2] + a.trans[2] - t[2], basis) > tol2) return `the translations of the operations found within ${fmt(tol)} Å do not compose`;
     }
   }
   return null;

@@ -51,3 +51,18 @@ export function gcd(a: number, b: number): number {
   }
   return a;
 }
+
+/**
+ * Squared length (in the units of `basis`) of the fractional difference (d0, d1, d2) taken to its nearest lattice
+ * translate: each component moved into [-1/2, 1/2], then through the basis rows. Exact for differences shorter than
+ * half the smallest plane spacing of a reduced cell, which is how the symmetry search uses it.
+ */
+export function wrappedLength2(d0: number, d1: number, d2: number, basis: ArrayLike<number>): number {
+  d0 -= Math.round(d0);
+  d1 -= Math.round(d1);
+  d2 -= Math.round(d2);
+  const x = d0 * basis[0] + d1 * basis[3] + d2 * basis[6];
+  const y = d0 * basis[1] + d1 * basis[4] + d2 * basis[7];
+  const z = d0 * basis[2] + d1 * basis[5] + d2 * basis[8];
+  return x * x + y * y + z * z;
+}

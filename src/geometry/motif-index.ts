@@ -3,6 +3,7 @@
 // bins about 1.5 Å thick; a query looks only at the one to eight bins its tolerance ball reaches, so a
 // lookup costs a few distance checks whatever the cell size.
 import { planeSpacings } from './cell.js';
+import { wrappedLength2 } from './matrix3.js';
 
 /** Target bin thickness (Å): a few atoms per bin in an organic crystal (about 15 Å³ per atom). */
 const BIN_ANGSTROM = 1.5;
@@ -78,14 +79,7 @@ export function findAtom(ix: MotifIndex, g0: number, g1: number, g2: number, typ
         for (let q = ix.binStart[bin]; q < ix.binStart[bin + 1]; q++) {
           const j = ix.binAtoms[q];
           if (ix.types[j] !== type) continue;
-          let d0 = g0 - frac[3 * j], d1 = g1 - frac[3 * j + 1], d2 = g2 - frac[3 * j + 2];
-          d0 -= Math.round(d0);
-          d1 -= Math.round(d1);
-          d2 -= Math.round(d2);
-          const x = d0 * B[0] + d1 * B[3] + d2 * B[6];
-          const y = d0 * B[1] + d1 * B[4] + d2 * B[7];
-          const z = d0 * B[2] + d1 * B[5] + d2 * B[8];
-          const dd = x * x + y * y + z * z;
+          const dd = wrappedLength2(g0 - frac[3 * j], g1 - frac[3 * j + 1], g2 - frac[3 * j + 2], B);
           if (dd <= bestD2) {
             bestD2 = dd;
             best = j;

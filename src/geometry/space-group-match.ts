@@ -13,7 +13,7 @@ import { conventionalCandidates } from './conventional-axes.js';
 import { defaultSetting, settingOperations, type SpaceGroupSetting } from './space-group-table.js';
 import { solveModOne } from './congruence.js';
 import { inverse } from './reduce.js';
-import { mul3, mulVec3, roundedInteger3, transpose3 } from './matrix3.js';
+import { mul3, mulVec3, roundedInteger3, transpose3, wrappedLength2 } from './matrix3.js';
 
 export interface GroupMatch {
   setting: SpaceGroupSetting;
@@ -147,16 +147,10 @@ function agrees(
     const wp = mulVec3(o.rot, p);
     let best = Infinity;
     for (const c of target.centrings) {
-      let d0 = o.trans[0] + p[0] - wp[0] - want[0] - c[0];
-      let d1 = o.trans[1] + p[1] - wp[1] - want[1] - c[1];
-      let d2 = o.trans[2] + p[2] - wp[2] - want[2] - c[2];
-      d0 -= Math.round(d0);
-      d1 -= Math.round(d1);
-      d2 -= Math.round(d2);
-      const x = d0 * cartesian[0] + d1 * cartesian[3] + d2 * cartesian[6];
-      const y = d0 * cartesian[1] + d1 * cartesian[4] + d2 * cartesian[7];
-      const z = d0 * cartesian[2] + d1 * cartesian[5] + d2 * cartesian[8];
-      best = Math.min(best, x * x + y * y + z * z);
+      const gap2 = wrappedLength2(
+        o.trans[0] + p[0] - wp[0] - want[0] - c[0], o.trans[1] + p[1] - wp[1] - want[1] - c[1], o.trans[2] + p[2] - wp[2] - want[2] - c[2], cartesian,
+      );
+      best = Math.min(best, gap2);
     }
     if (best > tol2) return false;
   }
