@@ -77,7 +77,7 @@
   r.references.forEach(function (ref, q) {
     var table = P.el('table', { className: 'ps-table' },
       P.el('caption', { className: 'ps-sr', text: 'Nearest kept structures of ' + ref.id }),
-      P.el('thead', null, P.el('tr', null, ['Order', 'Id', (r.scale === 'volume' ? 'Scale-free EMD (Å)' : 'EMD (Å)'), 'Energy rank', 'Rel. energy (' + unit + ')', 'Density (g/cm³)', 'Space group', 'Family'].map(function (h) {
+      P.el('thead', null, P.el('tr', null, ['Order', 'Id', (r.scale === 'volume' ? 'Scale-free EMD (Å)' : 'EMD (Å)'), 'Energy rank', 'Rel. energy (' + unit + ')', 'Density (g/cm³)', 'Space group', 'Z′', 'Family'].map(function (h) {
         return P.el('th', { scope: 'col', text: h });
       }))),
       P.el('tbody', null, ref.nearest.map(function (h) {
@@ -86,11 +86,13 @@
           P.el('td', { className: 'ps-num', text: P.fmtDistance(h.distanceAngstrom) }),
           P.el('td', { className: 'ps-num', text: h.energyRank === null ? '–' : h.energyRank }),
           P.el('td', { className: 'ps-num', text: P.fmt(h.energyRel, 2) }), P.el('td', { className: 'ps-num', text: P.fmt(h.densityGPerCm3, 3) }),
-          P.el('td', { text: h.spaceGroup === null ? '–' : h.spaceGroup }), P.el('td', { className: 'ps-num', text: h.family }));
+          P.el('td', { text: h.spaceGroup === null ? '–' : h.spaceGroup }),
+          P.el('td', { className: 'ps-num', text: h.zPrime === null || h.zPrime === undefined ? '–' : String(Math.round(h.zPrime * 1000) / 1000) }),
+          P.el('td', { className: 'ps-num', text: h.family }));
       })));
     box.appendChild(P.el('section', { className: 'ps-card', 'aria-label': 'Reference ' + ref.id },
       P.el('h2', null, P.el('span', { text: '■ ', style: 'color:' + data.referenceColours[q] }), 'Reference ', P.el('span', { className: 'ps-id', text: ref.id })),
-      P.el('p', { className: 'ps-muted', text: ref.source + (ref.spaceGroup ? ' · ' + ref.spaceGroup : '') + (ref.densityGPerCm3 !== null ? ' · density ' + P.fmt(ref.densityGPerCm3, 3) + ' g/cm³' : '') }),
+      P.el('p', { className: 'ps-muted', text: ref.source + (ref.spaceGroup ? ' · ' + ref.spaceGroup + (ref.zPrime === null || ref.zPrime === undefined ? '' : ', Z′ ' + Math.round(ref.zPrime * 1000) / 1000) : '') + (ref.densityGPerCm3 !== null ? ' · density ' + P.fmt(ref.densityGPerCm3, 3) + ' g/cm³' : '') }),
       P.el('p', { className: 'ps-statement', text: (ref.found ? 'Found: ' : 'Not found: ') + ref.decisionText + '.' }),
       P.el('div', { className: 'ps-table-wrap' }, table),
       ref.notes.length ? P.el('ul', { className: 'ps-notes' }, ref.notes.map(function (n) { return P.el('li', { text: n }); })) : null));

@@ -55,6 +55,18 @@
   function familyName(f) { return f < 0 ? 'unassigned' : 'family ' + f; }
   function markerSize(members) { return Math.min(24, 6 + 4 * Math.sqrt(Math.max(0, members - 1))); }
   function energyText(i) { return hasEnergies ? P.fmt(S.energyRel[i], 3) + ' ' + unit : 'no energy'; }
+  function zPrimeText(i) { return S.zPrime[i] === null ? '–' : String(Math.round(S.zPrime[i] * 1000) / 1000); }
+  // 'P21/c, Z′ 1 (written in P1)': the group the crystal has, and what its file declared when that differs.
+  function symmetryText(i) {
+    if (S.spaceGroup[i] === null) return 'space group unknown';
+    var t = S.spaceGroup[i] + ', Z′ ' + zPrimeText(i);
+    if (S.sgDetected[i] === 0) return t + ' (as declared)';
+    var w = S.writtenIn[i];
+    if (w && w !== S.spaceGroup[i] + ' x ' + S.members[i]) return t + ' (members written in ' + w + ')';
+    return S.sgDeclared[i] !== null && S.sgDeclared[i] !== S.spaceGroup[i] ? t + ' (written in ' + S.sgDeclared[i] + ')' : t;
+  }
+  var groupOfSpelling = {};
+  (D.groupSpellings || []).forEach(function (g) { g[1].split(' | ').forEach(function (sp) { groupOfSpelling[sp] = g[0]; }); });
 
   // ---- Header ----------------------------------------------------------------------------------
   var c = D.counts;
@@ -169,6 +181,7 @@
   function hoverText(i) {
     var lines = ['<b>' + P.escapeForPlot(S.id[i]) + '</b>',
       'rel. energy ' + energyText(i) + ', density ' + P.fmt(S.density[i], 4) + ' g/cm³',
+      P.escapeForPlot(symmetryText(i)),
       familyName(S.family[i]) + ', ' + S.members[i] + (S.members[i] === 1 ? ' member' : ' members')];
     var nb = neighbours[i] || [];
     if (nb.length > 0) {
@@ -246,10 +259,17 @@
       { label: 'EMD to nearest (Å)', numeric: true, value: function (i) { return S.nearestDistance[i]; }, text: function (i) { return P.fmtDistance(S.nearestDistance[i]); } },
       { label: 'Space group', value: function (i) { return S.spaceGroup[i]; }, text: function (i) { return S.spaceGroup[i] === null ? '–' : S.spaceGroup[i]; } },
       { label: 'Z', numeric: true, value: function (i) { return S.z[i]; }, text: function (i) { return S.z[i] === null ? '–' : String(S.z[i]); } },
+      { label: 'Z′', numeric: true, value: function (i) { return S.zPrime[i]; }, text: function (i) { return zPrimeText(i); } },
     ],
     filterInput: document.getElementById('table-filter'),
     filterText: function (i) {
-      return [S.id[i], S.spaceGroup[i] || '', familyName(S.family[i]), source(i)].join(' ');
+      return [S.id[i], S.spaceGroup[i] || '', familyName(S.family[i]), source(i), S.sgDeclared[i] || '', S.writtenIn[i]].join(' | ');
+    },
+    // A query that is a space-group symbol in any common spelling ('P 21/c', 'P 1 21/c 1', 'P2_1/c', 'p21/c') or its
+    // number (14) finds the structures of that group; any other query is looked for in the row's text.
+    filterMatch: function (i, query, text) {
+      var g = groupOfSpelling[query.replace(/\s+/g, ' ')];
+      return g !== undefined ? S.sgNumber[i] === g : text.indexOf(query) >= 0;
     },
     countEl: document.getElementById('table-count'),
     prevButton: document.getElementById('kept-prev'),
@@ -306,8 +326,11 @@
     fact('Density', P.fmt(S.density[i], 4) + ' g/cm³');
     fact('Family', familyName(S.family[i]));
     fact('Members', String(S.members[i]));
-    fact('Space group', S.spaceGroup[i] === null ? '–' : S.spaceGroup[i]);
-    fact('Z / Z′', (S.z[i] === null ? '–' : String(S.z[i])) + ' / ' + (S.zPrime[i] === null ? '–' : String(S.zPrime[i])));
+    fact('Space group', S.spaceGroup[i] === null ? '–' : S.spaceGroup[i] + (S.sgNumber[i] === null ? '' : ' (No. ' + S.sgNumber[i] + ')') +
+      (S.sgDetected[i] === 1 ? ', detected within ' + D.parameters.symmetryToleranceAngstrom + ' Å' : S.sgDetected[i] === 0 ? ', as declared (see notes)' : ''));
+    fact('Declared', S.sgDeclared[i] === null ? '–' : S.sgDeclared[i]);
+    if (S.writtenIn[i]) fact('Members written in', S.writtenIn[i]);
+    fact('Z / Z′', (S.z[i] === null ? '–' : String(S.z[i])) + ' / ' + zPrimeText(i));
     fact('Atoms per cell', S.atoms[i] === null ? '–' : String(S.atoms[i]));
     fact('Formula', D.formulas[S.formula[i]] || '–');
     var nb = neighbours[i] || [];
@@ -494,7 +517,8 @@
     var pl = document.getElementById('parameters-list');
     var pr = D.parameters;
     var names = {
-      k: 'PDD depth k', hydrogens: 'Hydrogens', toleranceAngstrom: 'Duplicate tolerance (Å)', minFamilySize: 'Minimum family size',
+      k: 'PDD depth k', hydrogens: 'Hydrogens', toleranceAngstrom: 'Duplicate tolerance (Å)', symmetryToleranceAngstrom: 'Symmetry tolerance (Å)',
+      minFamilySize: 'Minimum family size',
       minSamples: 'Minimum samples', energyWindow: 'Energy window (' + unit + ')', energyUnit: 'Energy unit',
       energyBasis: 'Energies given per (a cell: divided by each structure\'s Z)',
       neighbours: 'Neighbours per structure', inputs: 'Inputs', energiesFile: 'Energies file', energyItem: 'Energy data item',

@@ -65,7 +65,7 @@ export function registerLocate(program: Command): void {
     const hydrogens: HydrogenPolicy = opts.hydrogens === undefined ? landscape.invariants.hydrogens : parseHydrogens(opts.hydrogens);
     const cacheDir = opts.cache === false ? null : typeof opts.cache === 'string' ? opts.cache : join(dirname(path), CACHE_FOLDER);
     const kept = await keptWithPolicy(landscape, path, hydrogens, { cacheDir, threads });
-    const { references, unusable } = await readReferences(refs, landscape.invariants.k, hydrogens);
+    const { references, unusable } = await readReferences(refs, landscape.invariants.k, hydrogens, landscape.parameters.symmetryToleranceAngstrom);
     for (const u of unusable) process.stderr.write(`polysift: reference ${u.source} (line ${u.line}) not used: ${u.reason}\n`);
     if (references.length === 0) throw new Error(`no usable reference structure in ${refs.join(', ')}`);
     const result = await locateReferences(landscape, path, references, { criterion, scale: opts.scale as LocateScale, count, threads, kept });

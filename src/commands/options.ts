@@ -6,6 +6,7 @@
 import { Option, type Command } from 'commander';
 import type { HydrogenPolicy } from '../landscape/schema.js';
 import { DEFAULT_K } from '../landscape/sift.js';
+import { DEFAULT_SYMMETRY_TOLERANCE_ANGSTROM } from '../geometry/detect-symmetry.js';
 
 /** The project-wide default PDD depth (the library's, src/landscape/sift.ts). */
 export const DEFAULT_PDD_DEPTH = DEFAULT_K;
@@ -21,6 +22,24 @@ export function addPddDepth(cmd: Command, what = 'neighbours per PDD row (k)'): 
  */
 export function addTolerance(cmd: Command, meaning: string, defaultText: string): Command {
   return cmd.option('--tolerance <angstrom>', `${meaning} (default: ${defaultText})`);
+}
+
+/** `--symmetry-tolerance <angstrom>`: read as `symmetryTolerance`. */
+export function addSymmetryTolerance(cmd: Command): Command {
+  return cmd.option(
+    '--symmetry-tolerance <angstrom>',
+    "distance in Å within which atoms must map onto atoms for a symmetry operation to count (space group and Z' reported)",
+    String(DEFAULT_SYMMETRY_TOLERANCE_ANGSTROM),
+  );
+}
+
+/** The --symmetry-tolerance value: a positive distance in Å, at most 1 Å (beyond that any molecular crystal looks symmetric). */
+export function parseSymmetryTolerance(value: string): number {
+  const v = Number(value);
+  if (!/^\s*[0-9.eE+-]+\s*$/.test(value) || !Number.isFinite(v) || v <= 0 || v > 1) {
+    throw new Error(`--symmetry-tolerance must be a distance in Å above 0 and at most 1, not '${value}'`);
+  }
+  return v;
 }
 
 /** `--hydrogens <keep|drop>` with a fixed default, or (`derivedDefault` text) one that depends on the inputs. */

@@ -8,7 +8,7 @@ import { siftFiles } from '../landscape/sift-files.js';
 import { writeFilesAtomically, removePendingFiles } from '../io/outputs.js';
 import { parseEnergyAmount, parseEnergyUnit } from '../io/energies.js';
 import { makeProgress } from '../progress.js';
-import { addHiddenAlias, addHydrogens, addOutputModes, addPddDepth, addThreads, addTitle, addTolerance, parseDecimal, parseHydrogens, parseThreads, parseWhole } from './options.js';
+import { addHiddenAlias, addHydrogens, addOutputModes, addPddDepth, addThreads, addTitle, addTolerance, parseDecimal, parseHydrogens, parseSymmetryTolerance, parseThreads, parseWhole, addSymmetryTolerance } from './options.js';
 
 import { CACHE_FOLDER } from '../landscape/cache.js';
 
@@ -27,6 +27,7 @@ interface SiftCliOptions {
   tolerance?: string;
   /** The old spelling of --tolerance, still read. */
   duplicateTolerance?: string;
+  symmetryTolerance: string;
   minFamilySize: string;
   familyMinSamples?: string;
   energyWindow?: string;
@@ -54,6 +55,7 @@ export function registerSift(program: Command): void {
   addPddDepth(cmd);
   addTolerance(cmd, 'EMD in Å within which a structure is a duplicate of a kept one', String(DEFAULT_TOLERANCE_ANGSTROM));
   addHiddenAlias(cmd, '--duplicate-tolerance <angstrom>');
+  addSymmetryTolerance(cmd);
   cmd
     .option('--min-family-size <n>', 'smallest family HDBSCAN reports (kept structures)', String(DEFAULT_MIN_FAMILY_SIZE))
     .option('--family-min-samples <n>', 'HDBSCAN neighbour count for core distances (default: the minimum family size)')
@@ -85,6 +87,7 @@ export function registerSift(program: Command): void {
       k: parseWhole(o.pddDepth, '-k', 1),
       hydrogens,
       toleranceAngstrom: tolerance === undefined ? DEFAULT_TOLERANCE_ANGSTROM : parseDecimal(tolerance, '--tolerance'),
+      symmetryToleranceAngstrom: parseSymmetryTolerance(o.symmetryTolerance),
       minFamilySize,
       minSamples: o.familyMinSamples === undefined ? minFamilySize : parseWhole(o.familyMinSamples, '--family-min-samples', 1),
       energyWindow: o.energyWindow === undefined ? null : parseEnergyAmount(o.energyWindow, unit),

@@ -20,7 +20,7 @@ export const DIFF_STRUCTURE_COLUMNS: ReadonlyArray<Column<DiffStructure>> = [
   { name: 'partner', quantity: 'text', value: (s) => s.partner },
   { name: 'partner_distance', quantity: 'distance', value: (s) => s.partnerDistance },
   { name: 'nearest_other', quantity: 'text', value: (s) => s.nearestOther },
-  { name: 'nearest_other_distance', quantity: 'distance', value: (s) => s.nearestOtherDistance },
+  { name: 'nearest_other_distance', quantity: 'distance', value: (s) => s.nearestOtherDistance },  { name: 'z_prime', quantity: 'z-prime', value: (s) => s.zPrime },
 ];
 
 export const DIFF_PAIR_COLUMNS: ReadonlyArray<Column<MatchedPair>> = [

@@ -99,7 +99,7 @@ export async function keptWithPolicy(
     });
     const invariants = await computeInvariants(sets.map((s) => s.set), k, { threads: opts.threads });
     sets.forEach((s, m) => {
-      loaded.entries.set(keys[s.j], { pdd: invariants[m].pdd, atoms: s.set.motif.length / 3, facts: null, notes: s.notes });
+      loaded.entries.set(keys[s.j], { pdd: invariants[m].pdd, atoms: s.set.motif.length / 3, facts: null, notes: s.notes, symmetryToleranceAngstrom: null });
     });
     if (cacheDir) saveCache(cacheDir, params, loaded.entries);
   }

@@ -22,9 +22,11 @@ export interface ReferenceInvariants {
   pdd: Pdd;
   amd: number[];
   densityGPerCm3: number | null;
+  /** The space group the reference has (detected within the landscape's symmetry tolerance, or declared) and its Z'. */
   spaceGroup: string | null;
   /** Cell volume / atoms compared (Å³), null when unknown. */
   volumePerAtomA3: number | null;
+  zPrime: number | null;
   notes: string[];
 }
 
@@ -62,6 +64,7 @@ export interface LocateHit {
   energyRel: number | null;
   densityGPerCm3: number | null;
   spaceGroup: string | null;
+  zPrime: number | null;
   family: number;
 }
 
@@ -79,6 +82,7 @@ export interface LocatedReference {
   densityGPerCm3: number | null;
   spaceGroup: string | null;
   volumePerAtomA3: number | null;
+  zPrime: number | null;
   notes: string[];
 }
 
@@ -161,14 +165,14 @@ export async function locateReferences(
         scaledEmdAngstrom: scale === 'volume' ? distance : null,
         scaleFactor: vr !== null && vk !== null ? scaleFactor(vr, vk) : null,
         energyRank: ranks.get(s.index) ?? null, energyRel: s.energyRel, densityGPerCm3: s.densityGPerCm3,
-        spaceGroup: s.spaceGroup, family: s.family,
+        spaceGroup: s.spaceGroup, zPrime: s.zPrime ?? null, family: s.family,
       });
     }
     const decision = decideFound(hits[0]?.distanceAngstrom ?? null, hits[1]?.distanceAngstrom ?? null, criterion);
     return {
       id: r.id, source: r.source, found: decision.found, match: decision.found ? hits[0] : null, decision,
       decisionText: decisionPhrase(decision, criterion), nearest: hits.slice(0, count),
-      densityGPerCm3: r.densityGPerCm3, spaceGroup: r.spaceGroup, volumePerAtomA3: r.volumePerAtomA3, notes: r.notes,
+      densityGPerCm3: r.densityGPerCm3, spaceGroup: r.spaceGroup, volumePerAtomA3: r.volumePerAtomA3, zPrime: r.zPrime, notes: r.notes,
     };
   });
   return {

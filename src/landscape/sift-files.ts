@@ -10,6 +10,7 @@ import { assignNoteCodes, notesCell, type NoteCode, type NoteCodes } from '../io
 import type { SiftRun } from './sift.js';
 import { convergenceCsv } from './convergence.js';
 import { renderSiftReport } from '../report/sift-report.js';
+import { formatWrittenIn } from './written-in.js';
 
 /** A structure row with the note codes of its run. */
 interface StructureLine {
@@ -68,6 +69,9 @@ export const STRUCTURES_COLUMNS: ReadonlyArray<Column<StructureLine>> = [
   { name: 'block', quantity: 'text', value: ({ r }) => r.block },
   { name: 'line', quantity: 'integer', value: ({ r }) => r.line },
   { name: 'notes', quantity: 'text', value: ({ r, codes }) => notesCell(r.notes, codes) },
+  { name: 'space_group_declared', quantity: 'text', value: ({ r }) => r.symmetry?.declared ?? null },
+  { name: 'space_group_source', quantity: 'text', value: ({ r }) => r.symmetry?.source ?? null },
+  { name: 'symmetry_note', quantity: 'text', value: ({ r }) => r.symmetry?.note ?? null },
 ];
 
 export const UNIQUE_COLUMNS: ReadonlyArray<Column<UniqueLine>> = [
@@ -89,6 +93,8 @@ export const UNIQUE_COLUMNS: ReadonlyArray<Column<UniqueLine>> = [
   { name: 'z', quantity: 'integer', value: ({ r }) => r.z },
   { name: 'z_prime', quantity: 'z-prime', value: ({ r }) => r.zPrime },
   { name: 'formula', quantity: 'text', value: ({ r }) => r.formulas.join(' ') },
+  { name: 'space_group_declared', quantity: 'text', value: ({ r }) => r.symmetry?.declared ?? null },
+  { name: 'written_in', quantity: 'text', value: ({ r }) => formatWrittenIn(r.writtenIn) },
   ...cellColumns((u: UniqueLine) => u.r),
 ];
 

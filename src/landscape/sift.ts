@@ -7,6 +7,7 @@ import { defaultThreads } from '../parallel/pool.js';
 import { emptyComparisons } from './compare-cache.js';
 import { VERSION } from '../version.js';
 import { makeProgress } from '../progress.js';
+import { DEFAULT_SYMMETRY_TOLERANCE_ANGSTROM } from '../geometry/detect-symmetry.js';
 import type { SiftOptions, SiftState } from './stages/state.js';
 import { readStage } from './stages/read.js';
 import { energiesStage } from './stages/energies.js';
@@ -93,6 +94,7 @@ export function initialState(opts: SiftOptions): SiftState {
     k: opts.k ?? DEFAULT_K,
     hydrogens: opts.hydrogens ?? 'keep',
     toleranceAngstrom: opts.toleranceAngstrom ?? DEFAULT_TOLERANCE_ANGSTROM,
+    symmetryToleranceAngstrom: opts.symmetryToleranceAngstrom ?? DEFAULT_SYMMETRY_TOLERANCE_ANGSTROM,
     minFamilySize: opts.minFamilySize ?? DEFAULT_MIN_FAMILY_SIZE,
     minSamples: opts.minSamples ?? opts.minFamilySize ?? DEFAULT_MIN_FAMILY_SIZE,
     energyWindow: opts.energyWindow ?? null,
@@ -119,6 +121,7 @@ export function initialState(opts: SiftOptions): SiftState {
     cacheParams: { k: params.k, hydrogens: params.hydrogens, version: VERSION },
     cache: new Map(),
     cacheProblem: null,
+    cacheFactsChanged: false,
     prepared: new Map(),
     lowest: null,
     active: [],
@@ -143,6 +146,9 @@ export function initialState(opts: SiftOptions): SiftState {
 function checkParameters(p: SiftParameters): void {
   if (!Number.isInteger(p.k) || p.k < 1) throw new Error(`the PDD depth k must be a positive integer, not ${p.k}`);
   if (!(p.toleranceAngstrom >= 0)) throw new Error(`the duplicate tolerance must be a number of Å >= 0, not ${p.toleranceAngstrom}`);
+  if (!(p.symmetryToleranceAngstrom > 0 && p.symmetryToleranceAngstrom <= 1)) {
+    throw new Error(`the symmetry tolerance must be a distance in Å above 0 and at most 1, not ${p.symmetryToleranceAngstrom}`);
+  }
   if (!Number.isInteger(p.minFamilySize) || p.minFamilySize < 2) throw new Error(`the minimum family size must be an integer >= 2, not ${p.minFamilySize}`);
   if (!Number.isInteger(p.minSamples) || p.minSamples < 1) throw new Error(`the minimum samples must be an integer >= 1, not ${p.minSamples}`);
   if (p.energyWindow !== null && !(p.energyWindow >= 0)) throw new Error(`the energy window must be >= 0, not ${p.energyWindow}`);

@@ -22,6 +22,8 @@ export interface SiftOptions {
   k?: number;
   hydrogens?: HydrogenPolicy;
   toleranceAngstrom?: number;
+  /** Symmetry tolerance (Å); default DEFAULT_SYMMETRY_TOLERANCE_ANGSTROM. */
+  symmetryToleranceAngstrom?: number;
   minFamilySize?: number;
   minSamples?: number;
   /** Energy window above the lowest energy, in `energyUnit`; null for none. */
@@ -84,6 +86,8 @@ export interface SiftState {
   cacheParams: CacheParams;
   cache: Map<string, CacheEntry>;
   cacheProblem: string | null;
+  /** Cached entries whose facts were recomputed (another symmetry tolerance): the cache is written again. */
+  cacheFactsChanged: boolean;
   prepared: Map<Work, PeriodicPointSet>;
   // window: the lowest energy among usable structures; the structures inside the window.
   lowest: number | null;
