@@ -9,7 +9,7 @@
 // 4. Matched pairs are "in both"; the rest "only in A" / "only in B". For matched pairs: energy rank in each
 //    run, energy and density shifts, and Spearman's rank correlation of the energies over the pairs.
 import { matchOneToOne } from './matching.js';
-import { energyRanks, invariantsByIndex } from './load.js';
+import { energyRanks, ensureUniqueIds, invariantsByIndex } from './load.js';
 import { crossNeighbours, toPdd } from './cross.js';
 import { spearman } from '../cluster/stats.js';
 import type { EnergyUnit, Landscape } from './schema.js';
@@ -120,6 +120,10 @@ export async function diffLandscapes(
   const tol = options.toleranceAngstrom ?? Math.max(a.parameters.toleranceAngstrom, b.parameters.toleranceAngstrom);
   if (!Number.isFinite(tol) || tol < 0) throw new Error(`the matching tolerance must be a non-negative number of Å, got ${tol}`);
   const notes: string[] = [];
+  for (const [label, l] of [['Run A', a], ['Run B', b]] as const) {
+    const note = ensureUniqueIds(l, label);
+    if (note) notes.push(note);
+  }
   if (options.toleranceAngstrom === undefined && a.parameters.toleranceAngstrom !== b.parameters.toleranceAngstrom) {
     notes.push(`The runs used different duplicate tolerances (${a.parameters.toleranceAngstrom} Å and ${b.parameters.toleranceAngstrom} Å); the larger one is used for matching.`);
   }

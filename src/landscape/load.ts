@@ -3,6 +3,7 @@
 import { existsSync, readFileSync, statSync } from 'node:fs';
 import { join } from 'node:path';
 import type { KeptInvariants, Landscape, StructureRow } from './schema.js';
+import { sharedNameNote, uniqueIds } from './unique-ids.js';
 
 const STATUSES = new Set(['kept', 'duplicate', 'rejected', 'outside-window']);
 const UNITS = new Set(['kJ/mol', 'kcal/mol', 'eV']);
@@ -119,6 +120,30 @@ export function validateLandscape(data: unknown, where: string): Landscape {
   }
   if (data.lowestEnergy !== null && !isFiniteNumber(data.lowestEnergy)) fail('"lowestEnergy"', 'must be a number or null');
   return data as unknown as Landscape;
+}
+
+/**
+ * Landscapes written before ids were made unique can repeat an id (one block name in two input files). Give
+ * such structures the ids sift gives them now (src/landscape/unique-ids.ts), in place, and re-derive the
+ * references by index, so that diff and locate tables name one structure each. Returns a note, or null when
+ * every id was already unique.
+ */
+export function ensureUniqueIds(landscape: Landscape, label: string): string | null {
+  const rows = landscape.structures;
+  const { ids, shared } = uniqueIds(rows.map((r) => r.id));
+  let renamed = 0;
+  rows.forEach((r, i) => {
+    if (ids[i] === r.id) return;
+    r.notes = [...r.notes, sharedNameNote(r.id, shared[i], ids[i])];
+    r.id = ids[i];
+    renamed++;
+  });
+  if (renamed === 0) return null;
+  for (const r of rows) {
+    if (r.status === 'duplicate' && typeof r.keptIndex === 'number' && rows[r.keptIndex]) r.duplicateOf = rows[r.keptIndex].id;
+    if (typeof r.nearestIndex === 'number' && rows[r.nearestIndex]) r.nearest = rows[r.nearestIndex].id;
+  }
+  return `${label} repeats ${renamed} structure id(s) (block names shared by several inputs); they are called name~n here, n their place in input order.`;
 }
 
 /** The stored invariants of each kept structure, keyed by structure index. */

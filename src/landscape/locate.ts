@@ -3,7 +3,8 @@
 // by exact EMD with their energy rank and energy above the lowest, and whether the nearest lies within the
 // tolerance ("found").
 import { crossNeighbours, toPdd } from './cross.js';
-import { energyRanks, invariantsByIndex } from './load.js';
+import { energyRanks, ensureUniqueIds, invariantsByIndex } from './load.js';
+import { sharedNameNote, uniqueIds } from './unique-ids.js';
 import type { EnergyUnit, HydrogenPolicy, Landscape } from './schema.js';
 import type { Pdd } from '../types.js';
 
@@ -66,6 +67,8 @@ export interface LocateResult {
   references: LocatedReference[];
   /** Reference blocks that could not be read or used, with the reason (filled by the caller that read them). */
   unusable: Array<{ source: string; line: number; reason: string }>;
+  /** Things about the inputs a reader should know (repeated ids made unique, ...). */
+  notes: string[];
 }
 
 /**
@@ -96,6 +99,13 @@ export async function locateReferences(
   const tol = options.toleranceAngstrom ?? landscape.parameters.toleranceAngstrom;
   if (!Number.isFinite(tol) || tol < 0) throw new Error(`the tolerance must be a non-negative number of Å, got ${tol}`);
   const count = Math.max(1, Math.floor(options.count ?? 5));
+  const notes: string[] = [];
+  const landscapeNote = ensureUniqueIds(landscape, landscapePath);
+  if (landscapeNote) notes.push(landscapeNote);
+  // References sharing a block name get ids of their own, as sift gives its structures.
+  const refIds = uniqueIds(references.map((r) => r.id));
+  const renamedRefs = refIds.ids.filter((id, q) => id !== references[q].id).length;
+  if (renamedRefs > 0) notes.push(`${renamedRefs} reference(s) share a block name with another reference; they are called name~n here.`);
   const inv = invariantsByIndex(landscape);
   const kept = landscape.kept;
   const targets = kept.map((i) => toPdd(inv.get(i)!, k));
@@ -117,15 +127,18 @@ export async function locateReferences(
       });
     }
     const found = nearest.length > 0 && nearest[0].emdAngstrom <= tol;
+    const id = refIds.ids[q];
     return {
-      id: r.id, source: r.source, found, match: found ? nearest[0] : null, nearest,
-      densityGPerCm3: r.densityGPerCm3, spaceGroup: r.spaceGroup, notes: r.notes,
+      id, source: r.source, found, match: found ? nearest[0] : null, nearest,
+      densityGPerCm3: r.densityGPerCm3, spaceGroup: r.spaceGroup,
+      notes: id === r.id ? r.notes : [...r.notes, sharedNameNote(r.id, refIds.shared[q], id)],
     };
   });
   return {
     format: 'polysift-locate', formatVersion: 1, landscapePath, k, hydrogens: landscape.invariants.hydrogens,
     toleranceAngstrom: tol, energyUnit: landscape.parameters.energyUnit, keptCount: kept.length, references: located,
     unusable: [],
+    notes,
   };
 }
 

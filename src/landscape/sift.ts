@@ -17,6 +17,7 @@ import { duplicatesStage } from './stages/duplicates.js';
 import { neighboursStage } from './stages/neighbours.js';
 import { familiesStage } from './stages/families.js';
 import { buildLandscape } from './stages/landscape.js';
+import { renameBlockText } from './unique-ids.js';
 
 export type { SiftOptions } from './stages/state.js';
 export { PAIR_RADIUS_FACTOR } from './stages/duplicates.js';
@@ -78,7 +79,7 @@ export async function sift(opts: SiftOptions): Promise<SiftRun> {
   timings.total = Math.round(performance.now() - t0) / 1000;
   return {
     landscape,
-    keptTexts: s.keptLocal.map((p) => s.items[p].text),
+    keptTexts: s.keptLocal.map((p) => renameBlockText(s.items[p].text, s.items[p].row.block, s.items[p].row.id)),
     energyTable: s.energyTable,
     energyAssignment: s.energyAssignment,
     messages: s.messages,

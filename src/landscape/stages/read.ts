@@ -7,6 +7,7 @@ import { blockKey } from '../cache.js';
 import { cellVolume } from '../../geometry/cell.js';
 import type { CellParams } from '../../types.js';
 import type { SiftState, Work } from './state.js';
+import { sharedNameNote, uniqueIds } from '../unique-ids.js';
 
 export async function readStage(s: SiftState): Promise<void> {
   s.progress.stage('reading structures');
@@ -14,7 +15,21 @@ export async function readStage(s: SiftState): Promise<void> {
     s.work.push(workFromBlock(r, s.work.length));
     if (s.work.length % 500 === 0) s.progress.tick(s.work.length);
   }
+  giveUniqueIds(s.work);
   s.progress.done();
+}
+
+/**
+ * Blocks that share a name (runs or databases combined) get ids of their own (src/landscape/unique-ids.ts), so
+ * that every reference in the outputs names one structure; the row keeps its block name and says so in a note.
+ */
+export function giveUniqueIds(work: Work[]): void {
+  const { ids, shared } = uniqueIds(work.map((w) => w.row.id));
+  work.forEach((w, i) => {
+    if (ids[i] === w.row.id) return;
+    w.row.notes.push(sharedNameNote(w.row.id, shared[i], ids[i]));
+    w.row.id = ids[i];
+  });
 }
 
 export function workFromBlock(r: BlockResult, index: number): Work {
