@@ -18,7 +18,10 @@ export async function periodicSetsStage(s: SiftState): Promise<void> {
   for (const w of s.work) {
     if (!w.record) continue;
     const hit = s.cache.get(w.key);
-    if (hit) applyFacts(w, hit.facts, hit.atoms, hit.notes);
+    if (hit) {
+      applyFacts(w, hit.facts, hit.atoms, hit.notes);
+      w.row.composition = hit.composition;
+    }
     else missing.push(w);
   }
   if (missing.length === 0) return;
@@ -35,6 +38,7 @@ export async function periodicSetsStage(s: SiftState): Promise<void> {
       const w = missing[i++];
       if (p.ok) {
         applyFacts(w, p.facts, p.set.motif.length / p.set.dim, p.notes);
+        w.row.composition = p.composition;
         s.prepared.set(w, p.set);
       } else reject(w, p.reason);
     }
