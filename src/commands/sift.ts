@@ -8,7 +8,8 @@ import { siftFiles } from '../landscape/sift-files.js';
 import { writeFilesAtomically, removePendingFiles } from '../io/outputs.js';
 import { parseEnergyAmount, parseEnergyUnit } from '../io/energies.js';
 import { makeProgress } from '../progress.js';
-import type { HydrogenPolicy } from '../landscape/schema.js';
+import type { EnergyUnit, HydrogenPolicy } from '../landscape/schema.js';
+import { DEFAULT_ENERGY_MISMATCH_KJ_PER_MOL, DEFAULT_FLAT_DENSITY_G_PER_CM3, DEFAULT_FLAT_ENERGY_KJ_PER_MOL, FLAG_CODES } from '../landscape/flags.js';
 
 export const DEFAULT_OUT = 'sift-out';
 export const CACHE_FOLDER = '.polysift-cache';
@@ -22,6 +23,10 @@ interface SiftCliOptions {
   energyItem?: string;
   k: string;
   duplicateTolerance: string;
+  elementCheck: boolean;
+  energyMismatch?: string;
+  flatEnergy?: string;
+  flatDensity?: string;
   minFamilySize: string;
   familyMinSamples?: string;
   energyWindow?: string;
@@ -46,7 +51,11 @@ export function registerSift(program: Command): void {
     .option('--energy-unit <unit>', 'unit of the energies: kJ/mol, kcal/mol or eV (per molecule); outputs keep it', 'kJ/mol')
     .option('--energy-item <name>', 'CIF data item holding each structure\'s energy (instead of --energies)')
     .option('-k, --pdd-depth <n>', 'neighbours per PDD row (k)', String(DEFAULT_K))
-    .option('--duplicate-tolerance <angstrom>', 'EMD in Å within which a structure is a duplicate of a kept one', String(DEFAULT_TOLERANCE_ANGSTROM))
+    .option('--duplicate-tolerance <angstrom|auto>', `EMD in Å within which a structure is a duplicate of a kept one, or 'auto': from the gap in the run's own distances (${DEFAULT_TOLERANCE_ANGSTROM} Å when it shows none)`, 'auto')
+    .option('--no-element-check', 'let structures of one composition be duplicates on geometry alone (skip the element-aware EMD)')
+    .option('--energy-mismatch <energy>', `flag duplicates this far from their group's median energy (default ${DEFAULT_ENERGY_MISMATCH_KJ_PER_MOL} kJ/mol)`)
+    .option('--flat-energy <energy>', `flag kept pairs just beyond the tolerance within this energy (and --flat-density) as one flat minimum (default ${DEFAULT_FLAT_ENERGY_KJ_PER_MOL} kJ/mol)`)
+    .option('--flat-density <g/cm3>', `density agreement for the flat-minimum flag (default ${DEFAULT_FLAT_DENSITY_G_PER_CM3} g/cm3)`)
     .option('--min-family-size <n>', 'smallest family HDBSCAN reports (kept structures)', String(DEFAULT_MIN_FAMILY_SIZE))
     .option('--family-min-samples <n>', 'HDBSCAN neighbour count for core distances (default: the minimum family size)')
     .option('--energy-window <energy>', 'only structures within this energy above the lowest are compared, e.g. 20 or 5kcal/mol')
@@ -73,7 +82,11 @@ export function registerSift(program: Command): void {
         energyItem: o.energyItem ?? null,
         k: integer(o.pddDepth, '-k', 1),
         hydrogens,
-        toleranceAngstrom: decimal(o.duplicateTolerance, '--duplicate-tolerance'),
+        toleranceAngstrom: o.duplicateTolerance.trim().toLowerCase() === 'auto' ? 'auto' : decimal(o.duplicateTolerance, '--duplicate-tolerance'),
+        elementCheck: o.elementCheck,
+        energyMismatch: o.energyMismatch === undefined ? undefined : positiveEnergy(o.energyMismatch, unit, '--energy-mismatch'),
+        flatEnergy: o.flatEnergy === undefined ? undefined : positiveEnergy(o.flatEnergy, unit, '--flat-energy'),
+        flatDensityGPerCm3: o.flatDensity === undefined ? undefined : decimal(o.flatDensity, '--flat-density'),
         minFamilySize,
         minSamples: o.familyMinSamples === undefined ? minFamilySize : integer(o.familyMinSamples, '--family-min-samples', 1),
         energyWindow: o.energyWindow === undefined ? null : parseEnergyAmount(o.energyWindow, unit),
@@ -117,9 +130,19 @@ function nothingUsable(run: SiftRun): string {
 export function summaryLine(run: SiftRun, out: string): string {
   const l = run.landscape;
   const c = l.counts;
+  const f = l.flagCounts;
+  const flags = [
+    f.otherChemistry ? `${f.otherChemistry} ${FLAG_CODES.otherChemistry}` : '',
+    f.energyMismatch ? `${f.energyMismatch} ${FLAG_CODES.energyMismatch}` : '',
+    f.flatMinimum ? `${f.flatMinimum} ${FLAG_CODES.flatMinimum}` : '',
+  ].filter((x) => x !== '');
+  const tc = l.toleranceChoice;
   return (
     `sifted ${c.input} structure(s): ${c.kept} kept, ${c.duplicate} duplicate, ${c.rejected} rejected, ${c.outsideWindow} outside the window; ` +
-    `${l.families.length} famil${l.families.length === 1 ? 'y' : 'ies'}; wrote ${join(out, 'report.html')}`
+    `${l.families.length} famil${l.families.length === 1 ? 'y' : 'ies'}; ` +
+    (tc ? `tolerance ${l.parameters.toleranceAngstrom} Å (auto${tc.clear ? '' : ', no clear gap'}); ` : '') +
+    (flags.length ? `flagged: ${flags.join(', ')} (column flags of structures.csv); ` : '') +
+    `wrote ${join(out, 'report.html')}`
   );
 }
 
@@ -129,6 +152,8 @@ function summary(run: SiftRun, out: string, files: string[]) {
     out,
     files,
     counts: l.counts,
+    flagCounts: l.flagCounts,
+    toleranceChoice: l.toleranceChoice && { ...l.toleranceChoice, edgeLengthsAngstrom: undefined },
     families: l.families.length,
     parameters: l.parameters,
     lowestEnergy: l.lowestEnergy,
@@ -141,6 +166,12 @@ function summary(run: SiftRun, out: string, files: string[]) {
 function integer(text: string, name: string, min: number): number {
   const v = Number(text);
   if (!/^\s*\d+\s*$/.test(text) || v < min) throw new Error(`${name} must be a whole number >= ${min}, not '${text}'`);
+  return v;
+}
+
+function positiveEnergy(text: string, unit: EnergyUnit, name: string): number {
+  const v = parseEnergyAmount(text, unit);
+  if (!(v > 0)) throw new Error(`${name} must be an energy > 0, not '${text}'`);
   return v;
 }
 

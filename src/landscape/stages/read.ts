@@ -52,6 +52,7 @@ export function workFromBlock(r: BlockResult, index: number): Work {
     z: null,
     zPrime: null,
     formulas: [],
+    composition: null,
     keptIndex: null,
     duplicateOf: null,
     distanceToKept: null,
@@ -62,16 +63,25 @@ export function workFromBlock(r: BlockResult, index: number): Work {
     nnDistance: null,
     members: 0,
     notes: r.kind === 'record' ? r.record.notes.slice() : [],
+    flags: [],
+    otherChemistryIndex: null,
+    otherChemistry: null,
+    otherComposition: null,
+    otherChemistryDistance: null,
+    energyOffset: null,
+    flatPartnerIndices: [],
+    flatPartners: [],
+    flatPartnerDistance: null,
   };
   if (r.kind === 'rejected') {
     row.reason = r.rejected.reason;
-    return { row, record: null, text: r.rejected.text, key: '', pdd: null, amd: null, facts: null, setNotes: [] };
+    return { row, record: null, text: r.rejected.text, key: '', pdd: null, amd: null, facts: null, setNotes: [], elements: null };
   }
   // Usable so far; the status is settled later (kept, duplicate, outside-window or rejected).
   row.status = 'kept';
   const c = r.record.cell;
   row.cell = { a: c.a, b: c.b, c: c.c, alpha: c.alpha, beta: c.beta, gamma: c.gamma, volume: volumeOrNull(c) };
-  return { row, record: r.record, text: r.record.text, key: blockKey(r.record.text), pdd: null, amd: null, facts: null, setNotes: [] };
+  return { row, record: r.record, text: r.record.text, key: blockKey(r.record.text), pdd: null, amd: null, facts: null, setNotes: [], elements: null };
 }
 
 /** Cell volume in Å³, or null for angles that span no cell (such a block is rejected by a later stage). */
