@@ -26,7 +26,7 @@ const recs: CrystalRecord[] = readCifText(g.cif, 'gen.cif').map((r) => {
 const copy = (p: number, kind: string) => recs[g.ids.findIndex((_id, i) => g.truth[i] === p && g.kinds[i] === kind)];
 const kept: SyntheticStructure[] = [0, 1, 2].map((p) => {
   const inv = referenceInvariants(copy(p, 'standard'), K, 'keep');
-  return { id: copy(p, 'standard').id, pdd: { rows: Array.from(inv.pdd.rows), weights: Array.from(inv.pdd.weights) }, energy: g.energiesKjPerMol[g.ids.indexOf(copy(p, 'standard').id)], densityGPerCm3: inv.densityGPerCm3 as number };
+  return { id: copy(p, 'standard').id, pdd: { rows: Array.from(inv.pdd.rows), weights: Array.from(inv.pdd.weights) }, energy: g.energiesKjPerMol[g.ids.indexOf(copy(p, 'standard').id)], densityGPerCm3: inv.densityGPerCm3 as number, composition: inv.composition };
 });
 const root = mkdtempSync(join(tmpdir(), 'polysift-locate-cli-'));
 const land = join(root, 'run');

@@ -34,7 +34,7 @@ function buildLandscape(hydrogens: HydrogenPolicy) {
     const id = blockOf(p, 'standard');
     const inv = referenceInvariants(records.get(id)!, K, hydrogens);
     const n = g.ids.indexOf(id);
-    kept.push({ id, pdd: { rows: Array.from(inv.pdd.rows), weights: Array.from(inv.pdd.weights) }, energy: g.energiesKjPerMol[n], densityGPerCm3: inv.densityGPerCm3 as number });
+    kept.push({ id, pdd: { rows: Array.from(inv.pdd.rows), weights: Array.from(inv.pdd.weights) }, energy: g.energiesKjPerMol[n], densityGPerCm3: inv.densityGPerCm3 as number, composition: inv.composition });
   }
   return validateLandscape(landscapeOf(kept, K, { hydrogens, toleranceAngstrom: 0.05 }), 'generated');
 }

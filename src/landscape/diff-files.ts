@@ -8,7 +8,8 @@ import { renderDiffReport } from '../report/diff-report.js';
 
 export const DIFF_STRUCTURE_COLUMNS = [
   'run', 'id', 'source', 'presence', 'energy_rank', 'energy_rel', 'density', 'space_group',
-  'partner', 'partner_emd', 'nearest_other', 'nearest_other_emd',
+  'partner', 'partner_emd', 'nearest_other', 'nearest_other_emd', 'composition', 'flags', 'flat_minimum_with',
+  'flat_minimum_distance_angstrom',
 ] as const;
 
 export const DIFF_PAIR_COLUMNS = [
@@ -20,7 +21,8 @@ export const DIFF_PAIR_COLUMNS = [
 export function diffStructuresCsv(d: LandscapeDiff): string {
   const rows = d.structures.map((s) => [
     s.run, s.id, s.source, s.presence, s.rank, s.energyRel, s.densityGPerCm3, s.spaceGroup ?? '',
-    s.partner ?? '', s.partnerDistance, s.nearestOther ?? '', s.nearestOtherDistance,
+    s.partner ?? '', s.partnerDistance, s.nearestOther ?? '', s.nearestOtherDistance, s.composition ?? '', s.flags.join(' '),
+    s.flatPartner ?? '', s.flatPartnerDistance,
   ]);
   return csv([...DIFF_STRUCTURE_COLUMNS], rows);
 }

@@ -15,6 +15,8 @@ export interface ReferenceInvariants {
   source: string;
   pdd: Pdd;
   amd: number[];
+  /** Reduced formula of the compared points (src/geometry/composition.ts). */
+  composition: string;
   densityGPerCm3: number | null;
   spaceGroup: string | null;
   notes: string[];
@@ -41,15 +43,24 @@ export interface LocateHit {
   densityGPerCm3: number | null;
   spaceGroup: string | null;
   family: number;
+  /** The kept structure's composition (null in landscapes written before compositions were kept). */
+  composition: string | null;
 }
 
 export interface LocatedReference {
   id: string;
   source: string;
+  /** Whether a kept structure of the reference's composition lies within the tolerance. */
   found: boolean;
-  /** The kept structure matched (the nearest, when within the tolerance). */
+  /** The kept structure matched: the nearest listed one of the same composition, when within the tolerance. */
   match: LocateHit | null;
   nearest: LocateHit[];
+  composition: string;
+  /**
+   * When the nearest kept structure has another composition than the reference: its id (a structure of other
+   * chemistry with the same geometry never counts as found).
+   */
+  nearestOtherComposition: string | null;
   densityGPerCm3: number | null;
   spaceGroup: string | null;
   notes: string[];
@@ -123,13 +134,17 @@ export async function locateReferences(
       nearest.push({
         order: j + 1, index: s.index, id: s.id, source: s.source, emdAngstrom: cross.neighbourDistance[q * count + j],
         energyRank: ranks.get(s.index) ?? null, energyRel: s.energyRel, densityGPerCm3: s.densityGPerCm3,
-        spaceGroup: s.spaceGroup, family: s.family,
+        spaceGroup: s.spaceGroup, family: s.family, composition: s.composition,
       });
     }
-    const found = nearest.length > 0 && nearest[0].emdAngstrom <= tol;
+    // Structures of another composition are never the reference, however close (geometry only in PDD and EMD).
+    const sameChemistry = (h: LocateHit) => h.composition === null || h.composition === r.composition;
+    const match = nearest.find((h) => sameChemistry(h) && h.emdAngstrom <= tol) ?? null;
+    const found = match !== null;
     const id = refIds.ids[q];
     return {
-      id, source: r.source, found, match: found ? nearest[0] : null, nearest,
+      id, source: r.source, found, match, nearest, composition: r.composition,
+      nearestOtherComposition: nearest.length > 0 && !sameChemistry(nearest[0]) ? nearest[0].id : null,
       densityGPerCm3: r.densityGPerCm3, spaceGroup: r.spaceGroup,
       notes: id === r.id ? r.notes : [...r.notes, sharedNameNote(r.id, refIds.shared[q], id)],
     };
@@ -148,7 +163,10 @@ export function locateSentence(r: LocatedReference, unit: EnergyUnit, tol: numbe
     `${h.id} (EMD ${h.emdAngstrom.toPrecision(3)} Å` +
     (h.energyRank !== null ? `, energy rank ${h.energyRank}` : '') +
     (h.energyRel !== null ? `, ${h.energyRel.toFixed(2)} ${unit} above the lowest` : '') + ')';
-  if (r.found && r.match) return `${r.id}: found as ${fmtHit(r.match)}.`;
+  const other = r.nearestOtherComposition !== null && r.nearest.length > 0
+    ? ` Note: the nearest kept structure, ${fmtHit(r.nearest[0])}, has another composition (${r.nearest[0].composition}; the reference is ${r.composition}): same geometry, other chemistry.`
+    : '';
+  if (r.found && r.match) return `${r.id}: found as ${fmtHit(r.match)}.${other}`;
   if (r.nearest.length === 0) return `${r.id}: not found; the landscape keeps no structures.`;
-  return `${r.id}: not found within ${tol} Å; nearest ${fmtHit(r.nearest[0])}.`;
+  return `${r.id}: not found within ${tol} Å; nearest ${fmtHit(r.nearest[0])}.${other}`;
 }

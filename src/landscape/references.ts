@@ -6,6 +6,7 @@ import { toPeriodicSet } from '../geometry/periodic-set.js';
 import { crystalFacts } from '../geometry/facts.js';
 import { pdd } from '../invariants/pdd.js';
 import { amd } from '../invariants/amd.js';
+import { reducedComposition } from '../geometry/composition.js';
 import type { ReferenceInvariants } from './locate.js';
 import type { HydrogenPolicy } from './schema.js';
 import type { CrystalRecord } from '../types.js';
@@ -47,6 +48,7 @@ export function referenceInvariants(record: CrystalRecord, k: number, hydrogens:
     source: record.source,
     pdd: p,
     amd: Array.from(amd(p)),
+    composition: reducedComposition(set.atomicNumbers),
     densityGPerCm3: densityOf(record),
     spaceGroup: record.spaceGroup,
     notes: [...record.notes, ...notes],
