@@ -560,7 +560,9 @@
     var pl = document.getElementById('parameters-list');
     var pr = D.parameters;
     var names = {
-      k: 'PDD depth k', hydrogens: 'Hydrogens', toleranceAngstrom: 'Duplicate tolerance (Å)', minFamilySize: 'Minimum family size',
+      k: 'PDD depth k', hydrogens: 'Hydrogens', toleranceAngstrom: 'Duplicate tolerance (Å)', toleranceMode: 'Tolerance chosen',
+      elementCheck: 'Element-aware check', energyMismatch: 'Energy mismatch (' + unit + ')', flatEnergy: 'Flat minimum: energy (' + unit + ')',
+      flatDensityGPerCm3: 'Flat minimum: density (g/cm³)', minFamilySize: 'Minimum family size',
       minSamples: 'Minimum samples', energyWindow: 'Energy window (' + unit + ')', energyUnit: 'Energy unit',
       neighbours: 'Neighbours per structure', inputs: 'Inputs', energiesFile: 'Energies file', energyItem: 'Energy data item',
     };

@@ -23,6 +23,9 @@ import { atomicNumber } from '../src/geometry/elements.js';
 import { generateLandscape } from '../src/demo/landscape.js';
 import { collapseDuplicates } from '../src/landscape/collapse.js';
 import type { StructureRow } from '../src/landscape/schema.js';
+import { readReferences } from '../src/landscape/references.js';
+import { locateReferences, locateSentence } from '../src/landscape/locate.js';
+import { diffLandscapes } from '../src/landscape/diff.js';
 
 const DIR = join('test', 'data', 'real', 'same-geometry');
 const FILES = [...readdirSync(DIR).filter((f) => f.endsWith('.cif')).sort().map((f) => join(DIR, f)), join('test', 'data', 'real', 'silicon-origin-choice-2.cif')];
@@ -113,6 +116,41 @@ describe('crystals with the same geometry and other elements (open-database reco
     expect(fluorite.other_chemistry_neighbour).toBe(row('uraninite.cif').id);
     expect(fluorite.other_chemistry_composition).toBe('O2U');
     expect(Number(fluorite.other_chemistry_distance_angstrom)).toBeCloseTo(row('fluorite.cif').otherChemistryDistance!, 6);
+  });
+});
+
+describe('diff and locate across chemistry (the same records)', async () => {
+  const file = (name: string) => join(DIR, name);
+  const siftOf = async (names: string[]) => (await sift({ inputs: names.map(file), threads: 1, cacheDir: null, toleranceAngstrom: 0.04 })).landscape;
+  const left = await siftOf(['gold.cif', 'fluorite.cif', 'iron-alpha.cif', 'silicon.cif']);
+  const right = await siftOf(['silver.cif', 'uraninite.cif', 'chromium.cif', 'gallium-phosphide.cif']);
+
+  it('diff matches no structure with one of another composition, and flags those within the tolerance', async () => {
+    const d = await diffLandscapes(left, right, 'left', 'right', { threads: 1 });
+    expect(d.counts.both).toBe(0);
+    expect(d.counts.onlyA).toBe(4);
+    expect(d.counts.onlyB).toBe(4);
+    for (const st of d.structures) {
+      expect(st.nearestOtherDistance!).toBeLessThanOrEqual(0.04);
+      expect(st.flags).toContain(FLAG_CODES.otherChemistry);
+    }
+    expect(d.counts.otherChemistry).toBe(8);
+  });
+
+  it('locate finds a reference only among kept structures of its composition and says when the nearest has another', async () => {
+    const { references } = await readReferences([file('silver.cif'), file('gold.cif')], left.invariants.k, 'keep');
+    const r = await locateReferences(left, 'left', references, { threads: 1 });
+    const [silver, gold] = r.references;
+    expect(silver.composition).toBe('Ag');
+    expect(silver.found).toBe(false);
+    expect(silver.match).toBeNull();
+    expect(silver.nearest[0].composition).toBe('Au');
+    expect(silver.nearest[0].emdAngstrom).toBeLessThanOrEqual(0.04);
+    expect(silver.nearestOtherComposition).toBe(silver.nearest[0].id);
+    expect(locateSentence(silver, r.energyUnit, r.toleranceAngstrom)).toMatch(/not found within 0.04 Å; nearest .* has another composition \(Au; the reference is Ag\): same geometry, other chemistry/);
+    expect(gold.found).toBe(true);
+    expect(gold.match!.composition).toBe('Au');
+    expect(gold.nearestOtherComposition).toBeNull();
   });
 });
 
