@@ -24,25 +24,27 @@ export const FLAG_MEANINGS: Record<string, string> = {
  * Default energy mismatch, kJ/mol. The same minimum relaxed twice agrees to well under 1 kJ/mol (common
  * practice). Measured (`npm run bench sift-flags`): in the demo's relaxed search every duplicate has exactly its
  * kept structure's energy (to the 4 decimals written); in the generated landscapes (0.02 kJ/mol energy noise
- * per copy) no copy lies more than 0.12 kJ/mol from its group's median. 1 kJ/mol is eight times that, and half
+ * per copy) no copy lies more than 0.08 kJ/mol from its group's median. 1 kJ/mol is twelve times that, and half
  * the smallest fault planted in the tests (2 kJ/mol).
  */
 export const DEFAULT_ENERGY_MISMATCH_KJ_PER_MOL = 1;
 
 /**
  * Flat-minimum thresholds. Measured (`npm run bench sift-flags`): the demo's three P21 structures at one
- * minimum agree to 0.0001 kJ/mol and 0.00004 g/cm3 at EMD 0.044-0.093 Å; over the demo's 17,000 pairs of
- * distinct kept structures the closest agreement is 0.0001 kJ/mol with 0.0009 g/cm3 (at 0.24 Å) and nothing
- * else lies within 0.12 Å; the generated close partners (distinct minima turned by 1-4 degrees,
- * 0.055-0.17 Å apart) differ by at least 0.036 kJ/mol between kept structures where they lie within 0.12 Å. Density alone cannot tell them apart (same cell volume by construction), energy can.
+ * minimum agree to 0.0001 kJ/mol and 0.00004 g/cm3 at EMD 0.044-0.093 Å, and no other kept pair lies within
+ * 0.12 Å. Among the demo's 17,000 pairs of distinct kept structures two agree as closely by chance (0.0001 kJ/mol
+ * and 0.0009 g/cm3 at 0.24 Å; 0.0018 and 0.0007 at 0.29 Å), which the EMD window keeps out. The generated close
+ * partners (distinct minima turned by 1-4 degrees, 0.055-0.17 Å apart) differ by at least 0.036 kJ/mol between
+ * kept structures where they lie within 0.12 Å; density cannot tell them apart (same cell volume by
+ * construction), energy can.
  */
 export const DEFAULT_FLAT_ENERGY_KJ_PER_MOL = 0.01;
 export const DEFAULT_FLAT_DENSITY_G_PER_CM3 = 0.002;
 /**
  * Flat-minimum pairs lie beyond the tolerance but within FLAT_WINDOW_FACTOR times it, and never less than
  * FLAT_WINDOW_MIN_ANGSTROM: the demo's flat minimum spans 0.044-0.093 Å whatever tolerance is chosen (auto picks
- * 0.018 Å there). The window keeps coincidences out: among the demo's distinct kept pairs the one that agrees in
- * energy and density as closely lies 0.24 Å apart.
+ * 0.018 Å there). The window keeps coincidences out: the demo's distinct kept pairs that agree in energy and
+ * density as closely lie 0.24 and 0.29 Å apart.
  */
 export const FLAT_WINDOW_FACTOR = 3;
 export const FLAT_WINDOW_MIN_ANGSTROM = 0.12;

@@ -26,7 +26,8 @@ export { PAIR_RADIUS_FACTOR } from './stages/duplicates.js';
 export { DENSE_LIMIT, EMBED_LIMIT, LANDMARKS } from './stages/families.js';
 
 /**
- * Default duplicate tolerance, EMD in Å, chosen from measurements on the generator's landscapes
+ * Fixed duplicate tolerance, EMD in Å: what `auto` (the default, src/landscape/auto-tolerance.ts) falls back to
+ * when a run shows no clear gap, and what a run searches pairs around (twice it). Chosen from measurements on the generator's landscapes
  * (`npm run bench`, module sift-tolerance; k = 100, hydrogens kept). Copies of one minimum with optimiser-like
  * noise of sigma Å per coordinate (plus 2e-4 relative on cell lengths) lie at most 0.008 / 0.014 / 0.020 /
  * 0.031 Å apart for sigma = 0.001 / 0.002 / 0.003 / 0.005 Å; distinct packings whose molecule is turned by only

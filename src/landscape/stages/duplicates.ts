@@ -1,7 +1,8 @@
 // Stage "duplicates": every pair of compared structures within twice the tolerance (from the comparisons cache
-// when the compared set is unchanged), then the energy-ordered collapse (src/landscape/collapse.ts): each
-// structure joins the nearest kept structure within the tolerance, or is kept. Rows get their status, kept
-// structure, distance to it and group size.
+// when the compared set is unchanged); with `auto`, the tolerance from the gap in those distances
+// (src/landscape/auto-tolerance.ts); then the energy-ordered collapse (src/landscape/collapse.ts): each structure
+// joins the nearest kept structure of its composition within the tolerance that the element-aware check accepts,
+// or is kept. Rows get their status, kept structure, distance to it and group size.
 import { pairsWithin } from '../../metric/graph.js';
 import { collapseDuplicates, visitOrder } from '../collapse.js';
 import { emptyComparisons, listKey, loadComparisons } from '../compare-cache.js';
@@ -27,7 +28,7 @@ export async function duplicatesStage(s: SiftState): Promise<void> {
   const itemsKey = listKey(items.map((w) => w.key));
   const cp = s.comparisons.pairs;
   const auto = params.toleranceMode === 'auto';
-  // In auto mode the pairs are searched within a radius beyond the closest distinct packings, to see the gap.
+  // In auto mode the pairs are searched within the radius a default run searches (AUTO_SEARCH_RADIUS_ANGSTROM).
   const needed = auto ? AUTO_SEARCH_RADIUS_ANGSTROM : params.toleranceAngstrom;
   if (cp && cp.itemsKey === itemsKey && cp.radiusAngstrom >= needed) {
     s.close = { i: Int32Array.from(cp.i), j: Int32Array.from(cp.j), distances: Float64Array.from(cp.d), radius: cp.radiusAngstrom };

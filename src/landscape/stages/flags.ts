@@ -4,8 +4,8 @@
 //    composition with atoms of other elements at the same places (pairs the collapse's element check refused);
 //  - energy mismatch: a member of a duplicate group whose energy lies further than the threshold from the
 //    group's median energy (the lower middle value for even sizes, so for a pair it is the kept structure's);
-//  - flat minimum: two kept structures of one composition just beyond the tolerance (up to FLAT_WINDOW_FACTOR
-//    times it) whose energies and densities agree within the flat-minimum thresholds.
+//  - flat minimum: two kept structures of one composition just beyond the tolerance (within flatWindowAngstrom)
+//    whose energies and densities agree within the flat-minimum thresholds.
 import { emd } from '../../metric/emd.js';
 import { FLAG_CODES, isFlatPair } from '../flags.js';
 import { pairKey } from './duplicates.js';
