@@ -57,11 +57,21 @@ export async function duplicatesStage(s: SiftState): Promise<void> {
     if (!l) labelled.set(p, (l = labelledPdd(items[p].pdd!, items[p].elements!)));
     return l;
   };
+  // Element-aware EMDs do not depend on the tolerance: those of an earlier run on the same set are reused.
   s.elementDistances = new Map();
+  const cachedElements = s.comparisons.elementDistances;
+  if (cachedElements && cachedElements.itemsKey === itemsKey) {
+    cachedElements.i.forEach((a, t) => s.elementDistances.set(pairKey(a, cachedElements.j[t]), cachedElements.d[t]));
+    s.reused.push('element distances');
+  }
+  const known = s.elementDistances.size;
   const accept = params.elementCheck
     ? (a: number, b: number) => {
-        const d = emd(labelledOf(a), labelledOf(b));
-        s.elementDistances.set(pairKey(a, b), d);
+        let d = s.elementDistances.get(pairKey(a, b));
+        if (d === undefined) {
+          d = emd(labelledOf(a), labelledOf(b));
+          s.elementDistances.set(pairKey(a, b), d);
+        }
         return d <= params.toleranceAngstrom;
       }
     : undefined;
@@ -70,6 +80,19 @@ export async function duplicatesStage(s: SiftState): Promise<void> {
     accept,
   });
   s.collapsed = collapsed;
+  if (s.elementDistances.size > known) {
+    const i: number[] = [];
+    const j: number[] = [];
+    const d: number[] = [];
+    for (const [key, v] of s.elementDistances) {
+      const [a, b] = key.split(',').map(Number);
+      i.push(a);
+      j.push(b);
+      d.push(v);
+    }
+    s.comparisons.elementDistances = { itemsKey, i, j, d };
+    s.comparisonsChanged = true;
+  }
   s.keptLocal = collapsed.kept;
   s.keptPos = new Int32Array(items.length).fill(-1);
   collapsed.kept.forEach((p, r) => (s.keptPos[p] = r));
