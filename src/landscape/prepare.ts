@@ -5,6 +5,7 @@ import type { CrystalFacts, CrystalRecord, PeriodicPointSet } from '../types.js'
 import type { HydrogenPolicy } from './schema.js';
 import { toPeriodicSet } from '../geometry/periodic-set.js';
 import { crystalFacts } from '../geometry/facts.js';
+import { reducedComposition } from '../geometry/composition.js';
 
 export interface PrepareInput {
   records: CrystalRecord[];
@@ -14,7 +15,7 @@ export interface PrepareInput {
 }
 
 export type Prepared =
-  | { ok: true; set: PeriodicPointSet; facts: CrystalFacts | null; notes: string[] }
+  | { ok: true; set: PeriodicPointSet; facts: CrystalFacts | null; notes: string[]; composition: string }
   | { ok: false; reason: string };
 
 export function prepareChunk(input: PrepareInput): Prepared[] {
@@ -36,7 +37,7 @@ export function prepareOne(record: CrystalRecord, hydrogens: HydrogenPolicy, sym
   } catch (err) {
     notes = [...notes, `density and Z could not be computed: ${stripSource((err as Error).message, record.source)}`];
   }
-  return { ok: true, set, facts, notes };
+  return { ok: true, set, facts, notes, composition: reducedComposition(set.atomicNumbers) };
 }
 
 /** Reasons are shown beside the structure's source, so a leading "file#block: " is not repeated. */

@@ -2,9 +2,8 @@
 // threads. A structure whose invariants cannot be computed is rejected with the reason; the others go on. The
 // cache keeps what this run used (and older entries of other blocks, up to the size of this run again).
 import { join } from 'node:path';
-import type { Pdd } from '../../types.js';
-import { computeInvariants } from '../../invariants/batch.js';
-import { pdd as computePdd } from '../../invariants/pdd.js';
+import { computeInvariants, type Invariants } from '../../invariants/batch.js';
+import { pddWithElements } from '../../invariants/pdd.js';
 import { amd as computeAmd } from '../../invariants/amd.js';
 import { cacheFileName, saveCache, type CacheEntry } from '../cache.js';
 import { reject, type SiftState, type Work } from './state.js';
@@ -15,6 +14,7 @@ export async function invariantsStage(s: SiftState): Promise<void> {
     const hit = s.cache.get(w.key);
     if (hit) {
       w.pdd = hit.pdd;
+      w.elements = hit.elements;
       s.cacheHits++;
     } else toCompute.push(w);
   }
@@ -22,15 +22,15 @@ export async function invariantsStage(s: SiftState): Promise<void> {
   if (toCompute.length > 0) {
     s.progress.stage('computing invariants', toCompute.length);
     const sets = toCompute.map((w) => s.prepared.get(w)!);
-    let results: Array<{ pdd: Pdd; amd: Float64Array } | Error>;
+    let results: Array<Invariants | Error>;
     try {
       results = await computeInvariants(sets, s.params.k, { threads: s.threads, onProgress: (d: number) => s.progress.tick(d) });
     } catch {
       // One set broke the batch: compute one at a time so only the broken ones are rejected.
       results = sets.map((set) => {
         try {
-          const p = computePdd(set, s.params.k);
-          return { pdd: p, amd: computeAmd(p) };
+          const p = pddWithElements(set, s.params.k);
+          return { pdd: p.pdd, amd: computeAmd(p.pdd), elements: p.elements };
         } catch (err) {
           return err as Error;
         }
@@ -42,8 +42,11 @@ export async function invariantsStage(s: SiftState): Promise<void> {
       else {
         w.pdd = r.pdd;
         w.amd = r.amd;
+        w.elements = r.elements ?? null;
+        if (!w.elements) throw new Error(`internal: no elements for the rows of ${w.row.id}`);
         s.cache.set(w.key, {
-          pdd: r.pdd, atoms: w.row.atoms ?? 0, facts: w.facts, notes: w.setNotes, symmetryToleranceAngstrom: s.params.symmetryToleranceAngstrom,
+          pdd: r.pdd, atoms: w.row.atoms ?? 0, facts: w.facts, notes: w.setNotes, composition: w.row.composition ?? '', elements: w.elements,
+          symmetryToleranceAngstrom: s.params.symmetryToleranceAngstrom,
         });
       }
     });

@@ -20,8 +20,10 @@ export async function periodicSetsStage(s: SiftState): Promise<void> {
   for (const w of s.work) {
     if (!w.record) continue;
     const hit = s.cache.get(w.key);
-    if (hit && hit.symmetryToleranceAngstrom === symmetryTolerance) applyFacts(w, hit.facts, hit.atoms, hit.notes);
-    else missing.push(w);
+    if (hit && hit.symmetryToleranceAngstrom === symmetryTolerance) {
+      applyFacts(w, hit.facts, hit.atoms, hit.notes);
+      w.row.composition = hit.composition;
+    } else missing.push(w);
   }
   if (missing.length === 0) return;
   s.progress.stage('building periodic sets', missing.length);
@@ -39,6 +41,7 @@ export async function periodicSetsStage(s: SiftState): Promise<void> {
       const w = missing[i++];
       if (p.ok) {
         applyFacts(w, p.facts, p.set.motif.length / p.set.dim, p.notes);
+        w.row.composition = p.composition;
         s.prepared.set(w, p.set);
         // A cached entry computed with another symmetry tolerance keeps its invariants and takes the new facts.
         const hit = s.cache.get(w.key);

@@ -3,12 +3,13 @@
 // heavy parts of a stage (periodic sets, invariants, EMD searches) run in worker threads; the state itself stays
 // on the main thread.
 import type { CrystalFacts, CrystalRecord, Pdd, PeriodicPointSet } from '../../types.js';
-import type { EnergyBasis, EnergyUnit, Embedding, HydrogenPolicy, SiftParameters, StructureRow } from '../schema.js';
+import type { EnergyBasis, EnergyUnit, Embedding, FlagCounts, HydrogenPolicy, SiftParameters, StructureRow, ToleranceChoice } from '../schema.js';
 import type { EnergyAssignment, EnergyTable } from '../../io/energies.js';
 import type { CacheEntry, CacheParams } from '../cache.js';
 import type { Comparisons } from '../compare-cache.js';
 import type { CollapseResult } from '../collapse.js';
 import type { Progress } from '../../progress.js';
+import type { RowElements } from '../../invariants/pdd.js';
 
 export interface SiftOptions {
   inputs: string[];
@@ -21,9 +22,17 @@ export interface SiftOptions {
   energyItem?: string | null;
   k?: number;
   hydrogens?: HydrogenPolicy;
-  toleranceAngstrom?: number;
   /** Symmetry tolerance (Å); default DEFAULT_SYMMETRY_TOLERANCE_ANGSTROM. */
   symmetryToleranceAngstrom?: number;
+  /** Duplicate tolerance in Å, or 'auto' (the default) to choose it from the run's own gap (src/landscape/auto-tolerance.ts). */
+  toleranceAngstrom?: number | 'auto';
+  /** Compare elements too (element-aware EMD) before two structures of one composition become duplicates; default true. */
+  elementCheck?: boolean;
+  /** Energy mismatch threshold in `energyUnit` (default 1 kJ/mol converted; src/landscape/flags.ts). */
+  energyMismatch?: number;
+  /** Flat-minimum thresholds: energy in `energyUnit` (default 0.01 kJ/mol converted) and density. */
+  flatEnergy?: number;
+  flatDensityGPerCm3?: number;
   minFamilySize?: number;
   minSamples?: number;
   /** Energy window above the lowest energy, in `energyUnit`; null for none. */
@@ -49,6 +58,8 @@ export interface Work {
   facts: CrystalFacts | null;
   /** Notes of the periodic-set construction (what the invariants cache stores beside the PDD). */
   setNotes: string[];
+  /** Elements at the centres of the PDD rows (invariants stage), for the element-aware comparison. */
+  elements: RowElements | null;
 }
 
 /** Pairs of compared structures (positions in `items`) with their EMD in Å, found within `radius`. */
@@ -104,6 +115,10 @@ export interface SiftState {
   reused: string[];
   // duplicates: pairs within the search radius, the collapse, kept structures as positions in `items`.
   close: ClosePairs | null;
+  /** Per position in `items`: composition class (equal reduced formula, src/geometry/composition.ts). */
+  compositionClass: Int32Array;
+  /** Element-aware EMDs (Å) computed by the collapse's check, keyed by pairKey (stages/duplicates.ts). */
+  elementDistances: Map<string, number>;
   collapsed: CollapseResult | null;
   keptLocal: number[];
   /** Per position in `items`: rank in `keptLocal`, -1 for duplicates. */
@@ -111,6 +126,10 @@ export interface SiftState {
   // neighbours
   keptNeighbours: KeptNeighbours | null;
   edges: Array<[number, number, number]>;
+  // duplicates: how `auto` chose the tolerance (null when given)
+  toleranceChoice: ToleranceChoice | null;
+  // flags
+  flagCounts: FlagCounts;
   // families and map: per kept structure (keptLocal order).
   familyLabels: Int32Array;
   embedding: Embedding | null;
