@@ -10,7 +10,8 @@ import { makeProgress } from '../progress.js';
 import type { SiftOptions, SiftState } from './stages/state.js';
 import { readStage } from './stages/read.js';
 import { energiesStage } from './stages/energies.js';
-import { periodicSetsStage } from './stages/periodic-sets.js';
+import { BLOCKS_PER_JOB, periodicSetsStage } from './stages/periodic-sets.js';
+import { localExecutor } from '../parallel/executor.js';
 import { windowStage } from './stages/window.js';
 import { invariantsStage } from './stages/invariants.js';
 import { duplicatesStage } from './stages/duplicates.js';
@@ -101,9 +102,14 @@ export function initialState(opts: SiftOptions): SiftState {
     energyItem: opts.energyItem ?? null,
   };
   checkParameters(params);
+  if (opts.blocksPerJob !== undefined && !(Number.isInteger(opts.blocksPerJob) && opts.blocksPerJob >= 1))
+    throw new Error(`the blocks per job must be a whole number >= 1, not ${opts.blocksPerJob}`);
+  const threads = opts.threads ?? defaultThreads();
   return {
     params,
-    threads: opts.threads ?? defaultThreads(),
+    threads,
+    executor: opts.executor ?? localExecutor(threads),
+    blocksPerJob: opts.blocksPerJob ?? BLOCKS_PER_JOB,
     cacheDir: opts.cacheDir ?? null,
     denseLimit: opts.denseLimit,
     idColumn: opts.idColumn,
@@ -116,7 +122,7 @@ export function initialState(opts: SiftOptions): SiftState {
     cacheParams: { k: params.k, hydrogens: params.hydrogens, version: VERSION },
     cache: new Map(),
     cacheProblem: null,
-    prepared: new Map(),
+    computed: new Map(),
     lowest: null,
     active: [],
     items: [],
