@@ -8,6 +8,8 @@ import { siftFiles } from '../landscape/sift-files.js';
 import { writeFilesAtomically, removePendingFiles } from '../io/outputs.js';
 import { parseEnergyAmount, parseEnergyUnit } from '../io/energies.js';
 import { makeProgress } from '../progress.js';
+import { BLOCKS_PER_JOB } from '../landscape/stages/periodic-sets.js';
+import { integer, seconds } from './option-values.js';
 import type { HydrogenPolicy } from '../landscape/schema.js';
 
 export const DEFAULT_OUT = 'sift-out';
@@ -32,6 +34,9 @@ interface SiftCliOptions {
   title?: string;
   json?: boolean;
   quiet?: boolean;
+  queue?: string;
+  queuePatience: string;
+  jobSize?: string;
 }
 
 export function registerSift(program: Command): void {
@@ -55,6 +60,9 @@ export function registerSift(program: Command): void {
     .option('--threads <n>', 'worker threads (default: available cores)')
     .option('--cache <dir>', `folder of the invariants and comparisons cache (default: <out>/${CACHE_FOLDER})`)
     .option('--no-cache', 'neither read nor write the invariants cache')
+    .option('--queue <url>', 'run the heavy jobs on a Redis job queue served by `polysift worker` processes, e.g. redis://HOST:6379')
+    .option('--queue-patience <s>', 'with --queue: keep trying to reach Redis this long before giving up', '30')
+    .option('--job-size <blocks>', `structures per periodic-set and invariants job (default ${BLOCKS_PER_JOB})`)
     .option('--title <text>', 'title of report.html')
     .option('--json', 'print a JSON summary on stdout')
     .option('--quiet', 'no progress on stderr')
@@ -81,7 +89,9 @@ export function registerSift(program: Command): void {
         threads: o.threads === undefined ? undefined : integer(o.threads, '--threads', 1),
         cacheDir: o.cache === false ? null : typeof o.cache === 'string' ? o.cache : join(o.out, CACHE_FOLDER),
         progress: makeProgress({ quiet: o.quiet }),
+        blocksPerJob: o.jobSize === undefined ? undefined : integer(o.jobSize, '--job-size', 1),
       };
+      const patienceSeconds = seconds(o.queuePatience, '--queue-patience');
       // Ctrl-C: files are staged under temporary names and renamed together, so only temporaries can be left.
       const onInterrupt = () => {
         removePendingFiles();
@@ -91,6 +101,12 @@ export function registerSift(program: Command): void {
       };
       process.on('SIGINT', onInterrupt);
       process.on('SIGTERM', onInterrupt);
+      // The queue code (bullmq, ioredis) is loaded only when a queue is asked for.
+      if (o.queue !== undefined) {
+        const { openQueueExecutor } = await import('../queue/queue-executor.js');
+        const note = o.quiet ? undefined : (line: string) => process.stderr.write(`polysift: ${line}\n`);
+        options.executor = await openQueueExecutor(o.queue, { patienceSeconds, note });
+      }
       try {
         const run = await sift(options);
         for (const m of run.messages) if (!o.quiet) process.stderr.write(`polysift: ${m}\n`);
@@ -102,6 +118,7 @@ export function registerSift(program: Command): void {
       } finally {
         process.off('SIGINT', onInterrupt);
         process.off('SIGTERM', onInterrupt);
+        await options.executor?.close();
       }
     });
 }
@@ -136,12 +153,6 @@ function summary(run: SiftRun, out: string, files: string[]) {
     timingsSeconds: l.run.timingsSeconds,
     messages: run.messages,
   };
-}
-
-function integer(text: string, name: string, min: number): number {
-  const v = Number(text);
-  if (!/^\s*\d+\s*$/.test(text) || v < min) throw new Error(`${name} must be a whole number >= ${min}, not '${text}'`);
-  return v;
 }
 
 function decimal(text: string, name: string): number {

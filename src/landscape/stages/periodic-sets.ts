@@ -70,7 +70,12 @@ export async function runBlockJobs(
   try {
     await s.executor.map<BlocksInput, BlocksOutput>('blocks', inputs, { onResult: take });
   } catch (err) {
-    if (s.cacheDir && s.computed.size > 0) saveInvariantsCache(s, []);
+    let saved = 0;
+    for (const r of s.computed.values()) if (!('error' in r)) saved++;
+    if (s.cacheDir && saved > 0) {
+      saveInvariantsCache(s, []);
+      if (err instanceof Error) err.message += `; the invariants of ${saved} structure(s) computed so far are saved in the cache, so the same command run again resumes from there`;
+    }
     throw err;
   }
 }
