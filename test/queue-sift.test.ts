@@ -9,14 +9,20 @@ import { join } from 'node:path';
 import { generateLandscape } from '../src/demo/landscape.js';
 import { sift, type SiftOptions } from '../src/landscape/sift.js';
 import { openQueueExecutor } from '../src/queue/queue-executor.js';
+import { Queue } from 'bullmq';
+import { Redis } from 'ioredis';
+import { decodePayload } from '../src/parallel/codec.js';
+import { jobId, keys, QUEUE_NAME, type JobData } from '../src/queue/protocol.js';
+import { VERSION } from '../src/version.js';
 import { startRedis, startWorker, type RedisServer, type WorkerProcess } from './helpers/redis.js';
 import { outputsOf } from './helpers/sift-outputs.js';
 
 const dir = mkdtempSync(join(tmpdir(), 'polysift-queue-'));
 /**
- * A generated landscape with a block whose periodic set fails (atom site loop without rows): it must stay a rejected
- * row. With `window`, that block has the lowest energy of all, so the periodic-set jobs cannot tell which structures
- * the window keeps and the invariants stage sends a second round of jobs.
+ * A generated landscape plus a block of one hydrogen atom. With `window`, hydrogens are dropped, so that block reads
+ * as a record but has no periodic set (a rejected row whose reason comes back from the job), and it has the lowest
+ * energy of all: the periodic-set jobs cannot tell which structures the window keeps, and the invariants stage
+ * sends a second round of jobs.
  */
 function landscapeFiles(seed: number, name: string, window: boolean): SiftOptions {
   const g = generateLandscape({ seed, packings: 10, copiesPerPacking: 8, closePairs: 2, idPrefix: `${name}-` });
@@ -24,11 +30,11 @@ function landscapeFiles(seed: number, name: string, window: boolean): SiftOption
   const energies = join(dir, `${name}.csv`);
   writeFileSync(
     cif,
-    `${g.cif}\ndata_${name}_no_sites\n_cell_length_a 5\n_cell_length_b 6\n_cell_length_c 7\n_cell_angle_alpha 90\n_cell_angle_beta 90\n_cell_angle_gamma 90\n` +
-      `loop_\n_atom_site_label\n_atom_site_type_symbol\n_atom_site_fract_x\n_atom_site_fract_y\n_atom_site_fract_z\n`,
+    `${g.cif}\ndata_${name}_only_h\n_cell_length_a 5\n_cell_length_b 6\n_cell_length_c 7\n_cell_angle_alpha 90\n_cell_angle_beta 90\n_cell_angle_gamma 90\n` +
+      `loop_\n_atom_site_label\n_atom_site_type_symbol\n_atom_site_fract_x\n_atom_site_fract_y\n_atom_site_fract_z\nH1 H 0.1 0.2 0.3\n`,
   );
-  writeFileSync(energies, `${g.energiesCsv.trimEnd()}\n${name}_no_sites,-200\n`);
-  return { inputs: [cif], energiesFile: energies, energyWindow: window ? 4 : null, threads: 1 };
+  writeFileSync(energies, `${g.energiesCsv.trimEnd()}\n${name}_only_h,${window ? -200 : -50}\n`);
+  return { inputs: [cif], energiesFile: energies, energyWindow: window ? 4 : null, hydrogens: window ? 'drop' : 'keep', threads: 1 };
 }
 
 let redis: RedisServer;
@@ -67,8 +73,6 @@ describe('sift on the job queue', () => {
     expect(new Set(ids).size).toBe(12);
     const busy = workers.filter((w) => / done in /.test(w.log())).length;
     expect(busy).toBeGreaterThanOrEqual(2);
-    const rows = outputsOf(local)['structures.csv'].split('\n');
-    expect(rows.filter((r) => r.startsWith('a_no_sites,') && r.includes(',rejected,'))).toHaveLength(1);
   });
 
   it('keeps two sifts on one queue apart, with an energy window and two rounds of jobs', async () => {
@@ -76,6 +80,8 @@ describe('sift on the job queue', () => {
     const b = landscapeFiles(33, 'c', false);
     const [la, lb] = [await sift(a), await sift(b)];
     expect(la.landscape.counts.outsideWindow).toBeGreaterThan(0);
+    const onlyH = la.landscape.structures.find((r) => r.id === 'b_only_h')!;
+    expect([onlyH.status, onlyH.reason]).toEqual(['rejected', 'every atom site is hydrogen, so nothing is left with --hydrogens drop; use --hydrogens keep']);
     const [ea, eb] = [await openQueueExecutor(redis.url), await openQueueExecutor(redis.url)];
     expect(ea.siftId).not.toBe(eb.siftId);
     try {
@@ -98,5 +104,30 @@ describe('sift on the job queue', () => {
     } finally {
       await executor.close();
     }
+  });
+
+  it('refuses a job from a sift of another polysift version, saying which versions differ', async () => {
+    const conn = new Redis(redis.url, { maxRetriesPerRequest: null });
+    const queue = new Queue<JobData>(QUEUE_NAME, { connection: conn });
+    try {
+      const sift = 'feedc0de00000000';
+      await conn.set(keys.alive(sift), 'x', 'PX', 60_000);
+      await queue.add('blocks', { sift, round: 1, index: 0, task: 'blocks', version: '0.0.0-other', input: '{}' }, { jobId: jobId(sift, 1, 0, 0) });
+      let text: string | null = null;
+      for (let t = 0; t < 400 && text === null; t++) {
+        text = await conn.hget(keys.results(sift, 1), '0');
+        if (text === null) await new Promise((r) => setTimeout(r, 50));
+      }
+      expect(decodePayload(text!)).toEqual({ error: `the worker runs polysift ${VERSION} but the sift runs 0.0.0-other; run one version on every machine` });
+    } finally {
+      await queue.close();
+      await conn.quit();
+    }
+  });
+
+  it('stops a worker with exit code 0 after --stop-when-idle seconds without a job', async () => {
+    const w = startWorker(redis.url, ['--threads', '1', '--stop-when-idle', '1']);
+    expect(await w.exited).toBe(0);
+    expect(w.log().trimEnd().split('\n').slice(-1)).toEqual(['polysift worker: no job for a while: stopping']);
   });
 });
