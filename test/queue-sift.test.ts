@@ -54,6 +54,9 @@ afterAll(async () => {
 
 const doneLines = () => workers.flatMap((w) => w.log().split('\n').filter((l) => / done in /.test(l)));
 
+// Several processes (Redis, workers, the sift) share a machine that may be busy: generous limits.
+const TIMEOUT_MS = 240_000;
+
 describe('sift on the job queue', () => {
   it('gives byte-identical outputs with three workers, each job done once', async () => {
     const opts = landscapeFiles(31, 'a', false);
@@ -73,7 +76,7 @@ describe('sift on the job queue', () => {
     expect(new Set(ids).size).toBe(12);
     const busy = workers.filter((w) => / done in /.test(w.log())).length;
     expect(busy).toBeGreaterThanOrEqual(2);
-  });
+  }, TIMEOUT_MS);
 
   it('keeps two sifts on one queue apart, with an energy window and two rounds of jobs', async () => {
     const a = landscapeFiles(32, 'b', true);
@@ -95,7 +98,7 @@ describe('sift on the job queue', () => {
     } finally {
       await Promise.all([ea.close(), eb.close()]);
     }
-  });
+  }, TIMEOUT_MS);
 
   it('refuses a job naming a task it does not know, and the sift says so', async () => {
     const executor = await openQueueExecutor(redis.url);
@@ -104,7 +107,7 @@ describe('sift on the job queue', () => {
     } finally {
       await executor.close();
     }
-  });
+  }, TIMEOUT_MS);
 
   it('refuses a job from a sift of another polysift version, saying which versions differ', async () => {
     const conn = new Redis(redis.url, { maxRetriesPerRequest: null });
@@ -123,11 +126,11 @@ describe('sift on the job queue', () => {
       await queue.close();
       await conn.quit();
     }
-  });
+  }, TIMEOUT_MS);
 
   it('stops a worker with exit code 0 after --stop-when-idle seconds without a job', async () => {
     const w = startWorker(redis.url, ['--threads', '1', '--stop-when-idle', '1']);
     expect(await w.exited).toBe(0);
     expect(w.log().trimEnd().split('\n').slice(-1)).toEqual(['polysift worker: no job for a while: stopping']);
-  });
+  }, TIMEOUT_MS);
 });

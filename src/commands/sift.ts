@@ -62,7 +62,7 @@ export function registerSift(program: Command): void {
     .option('--no-cache', 'neither read nor write the invariants cache')
     .option('--queue <url>', 'run the heavy jobs on a Redis job queue served by `polysift worker` processes, e.g. redis://HOST:6379')
     .option('--queue-patience <s>', 'with --queue: keep trying to reach Redis this long before giving up', '30')
-    .option('--job-size <blocks>', `structures per periodic-set and invariants job (default ${BLOCKS_PER_JOB})`)
+    .option('--job-size <blocks>', `structures per periodic-set and invariants job (default ${BLOCKS_PER_JOB}; fewer in small runs, so there are at least 16 jobs)`)
     .option('--title <text>', 'title of report.html')
     .option('--json', 'print a JSON summary on stdout')
     .option('--quiet', 'no progress on stderr')

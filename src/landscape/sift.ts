@@ -10,7 +10,7 @@ import { makeProgress } from '../progress.js';
 import type { SiftOptions, SiftState } from './stages/state.js';
 import { readStage } from './stages/read.js';
 import { energiesStage } from './stages/energies.js';
-import { BLOCKS_PER_JOB, periodicSetsStage } from './stages/periodic-sets.js';
+import { periodicSetsStage } from './stages/periodic-sets.js';
 import { localExecutor } from '../parallel/executor.js';
 import { windowStage } from './stages/window.js';
 import { invariantsStage } from './stages/invariants.js';
@@ -109,7 +109,7 @@ export function initialState(opts: SiftOptions): SiftState {
     params,
     threads,
     executor: opts.executor ?? localExecutor(threads),
-    blocksPerJob: opts.blocksPerJob ?? BLOCKS_PER_JOB,
+    blocksPerJob: opts.blocksPerJob ?? null,
     cacheDir: opts.cacheDir ?? null,
     denseLimit: opts.denseLimit,
     idColumn: opts.idColumn,

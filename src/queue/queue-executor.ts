@@ -21,6 +21,8 @@ const MIN_IN_FLIGHT = 16;
 const POLL_MS = 50;
 /** After this long with no result (ms), look for failed or vanished jobs. */
 const CHECK_AFTER_MS = 5_000;
+/** A worker entry not refreshed for this long (ms) is removed from the workers hash. */
+const STALE_WORKER_MS = 3600_000;
 /** Say once that no worker serves the queue when none has been seen for this long (ms). */
 const NO_WORKER_NOTE_MS = 10_000;
 
@@ -169,14 +171,18 @@ class QueueExecutor implements Executor {
     const all = await this.conn.redis.hgetall(keys.workers);
     let threads = 0;
     const now = Date.now();
-    for (const text of Object.values(all)) {
+    const gone: string[] = [];
+    for (const [id, text] of Object.entries(all)) {
       try {
         const w = JSON.parse(text) as { threads: number; seenMs: number };
         if (now - w.seenMs <= 3 * WORKER_REFRESH_MS) threads += w.threads;
+        else if (now - w.seenMs > STALE_WORKER_MS) gone.push(id);
       } catch {
         // An entry this version cannot read is not counted.
       }
     }
+    // Workers that were killed never said goodbye: forget them after an hour.
+    if (gone.length > 0) await this.conn.redis.hdel(keys.workers, ...gone);
     return threads;
   }
 

@@ -11,8 +11,12 @@ import { loadCache, type CacheEntry } from '../cache.js';
 import { saveInvariantsCache } from './invariants.js';
 import { reject, type SiftState, type Work } from './state.js';
 
-/** Blocks per job: enough work (about 0.1 s) that a queue job's round trip costs little beside it. */
+/**
+ * Blocks per job: enough work (a quarter to half a second) that a queue job's round trip costs little beside it.
+ * Smaller runs are cut into at least MIN_JOBS jobs so that every thread or worker gets some.
+ */
 export const BLOCKS_PER_JOB = 250;
+const MIN_JOBS = 16;
 
 export async function periodicSetsStage(s: SiftState): Promise<void> {
   const loaded = s.cacheDir ? loadCache(s.cacheDir, s.cacheParams) : { entries: new Map<string, CacheEntry>(), problem: null };
@@ -47,8 +51,9 @@ export async function runBlockJobs(
   withInvariants: (w: Work) => boolean,
   onSet: (w: Work, set: BlocksOutput['sets'][number]) => void,
 ): Promise<void> {
+  const size = s.blocksPerJob ?? Math.min(BLOCKS_PER_JOB, Math.max(1, Math.ceil(blocks.length / MIN_JOBS)));
   const ranges: Array<[number, number]> = [];
-  for (let a = 0; a < blocks.length; a += s.blocksPerJob) ranges.push([a, Math.min(blocks.length, a + s.blocksPerJob)]);
+  for (let a = 0; a < blocks.length; a += size) ranges.push([a, Math.min(blocks.length, a + size)]);
   const inputs: BlocksInput[] = ranges.map(([a, b]) => ({
     blocks: blocks.slice(a, b).map((w): BlockText => ({ file: w.row.file, line: w.row.line, text: w.text, invariants: withInvariants(w) })),
     k: s.params.k,

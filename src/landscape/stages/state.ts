@@ -35,7 +35,7 @@ export interface SiftOptions {
   denseLimit?: number;
   /** Where the heavy jobs run; default: local worker threads (`threads` of them). The caller closes it. */
   executor?: Executor;
-  /** Blocks per periodic-set and invariants job (default BLOCKS_PER_JOB). */
+  /** Blocks per periodic-set and invariants job (default BLOCKS_PER_JOB, less for small runs). */
   blocksPerJob?: number;
 }
 
@@ -72,7 +72,8 @@ export interface SiftState {
   params: SiftParameters;
   threads: number;
   executor: Executor;
-  blocksPerJob: number;
+  /** Blocks per job as asked for; null for the default. */
+  blocksPerJob: number | null;
   cacheDir: string | null;
   denseLimit: number | undefined;
   idColumn: string | undefined;
