@@ -496,6 +496,7 @@
     var names = {
       k: 'PDD depth k', hydrogens: 'Hydrogens', toleranceAngstrom: 'Duplicate tolerance (Å)', minFamilySize: 'Minimum family size',
       minSamples: 'Minimum samples', energyWindow: 'Energy window (' + unit + ')', energyUnit: 'Energy unit',
+      energyBasis: 'Energies given per (a cell: divided by each structure\'s Z)',
       neighbours: 'Neighbours per structure', inputs: 'Inputs', energiesFile: 'Energies file', energyItem: 'Energy data item',
     };
     Object.keys(pr).forEach(function (k) {

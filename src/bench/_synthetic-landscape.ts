@@ -221,7 +221,7 @@ export function syntheticLandscape(opts: SyntheticOptions): Landscape {
     tool: { name: 'polysift', version: '0.1.0' },
     run: { createdAt: '2026-01-01T00:00:00.000Z', timingsSeconds: { read: 1.25, invariants: 10.5, neighbours: 4.75, families: 0.5 } },
     parameters: {
-      k, hydrogens: 'keep', toleranceAngstrom: 0.02, minFamilySize: 5, minSamples: 5, energyWindow: 20, energyUnit: 'kJ/mol',
+      k, hydrogens: 'keep', toleranceAngstrom: 0.02, minFamilySize: 5, minSamples: 5, energyWindow: 20, energyUnit: 'kJ/mol', energyBasis: 'molecule',
       neighbours: nbK, inputs: ['runs/'], energiesFile: 'runs/energies.csv', energyItem: null,
     },
     counts: { input: total, kept: nKept, duplicate: nDup, rejected: nRej, outsideWindow: nOut },

@@ -38,7 +38,7 @@ export async function run(): Promise<void> {
     );
     const refs: ReferenceInvariants[] = a.slice(0, 20).map((p, i) => {
       const q = noisy(r, p);
-      return { id: `ref-${i}`, source: `ref.cif#ref-${i}`, pdd: asPdd(q), amd: amdOf(q, K), densityGPerCm3: null, spaceGroup: null, notes: [] };
+      return { id: `ref-${i}`, source: `ref.cif#ref-${i}`, pdd: asPdd(q), amd: amdOf(q, K), densityGPerCm3: null, spaceGroup: null, volumePerAtomA3: null, notes: [] };
     });
     t = performance.now();
     await locateReferences(lb, 'B', refs);
@@ -82,7 +82,7 @@ function landscape(pdds: RawPdd[], r: () => number): Landscape {
   return {
     format: 'polysift-landscape', formatVersion: 1, tool: { name: 'polysift', version: 'bench' },
     run: { createdAt: '', timingsSeconds: {} },
-    parameters: { k: K, hydrogens: 'keep', toleranceAngstrom: 0.05, minFamilySize: 5, minSamples: 5, energyWindow: null, energyUnit: 'kJ/mol', neighbours: 5, inputs: [], energiesFile: null, energyItem: null },
+    parameters: { k: K, hydrogens: 'keep', toleranceAngstrom: 0.05, minFamilySize: 5, minSamples: 5, energyWindow: null, energyUnit: 'kJ/mol', energyBasis: 'molecule', neighbours: 5, inputs: [], energiesFile: null, energyItem: null },
     counts: { input: pdds.length, kept: pdds.length, duplicate: 0, rejected: 0, outsideWindow: 0 },
     lowestEnergy: low, structures, kept: structures.map((s) => s.index), edges: [], families: [], embedding: null,
     invariants: { k: K, hydrogens: 'keep', kept: pdds.map((p, i) => ({ index: i, amd: amdOf(p, K), pddWeights: p.weights, pddRows: p.rows })) },

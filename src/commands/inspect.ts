@@ -11,6 +11,7 @@ import { toPeriodicSet } from '../geometry/periodic-set.js';
 import { pdd } from '../invariants/pdd.js';
 import { amd } from '../invariants/amd.js';
 import { settingLabel } from '../geometry/space-group-table.js';
+import { addHydrogens, addPddDepth, parseHydrogens, parseWhole } from './options.js';
 
 /** Default hydrogen handling: kept, as in `sift` (predicted structures place hydrogens reliably); drop them for X-ray structures. */
 export const DEFAULT_HYDROGENS: HydrogenPolicy = 'keep';
@@ -22,8 +23,6 @@ export interface InspectOptions {
   k?: number;
 }
 
-/** Default PDD depth for `inspect --json` (the project-wide default k). */
-export const DEFAULT_INSPECT_K = 100;
 
 /** One structure as `inspect --json` reports it. */
 export interface InspectEntry {
@@ -187,42 +186,37 @@ function formatSummary(report: InspectReport): string {
 
 /** The -k value: a whole number of neighbours, at least 1. */
 export function parseDepth(value: string): number {
-  const k = Number(value);
-  if (!/^\s*\d+\s*$/.test(value) || !Number.isInteger(k) || k < 1) throw new Error(`-k must be a whole number of neighbours, at least 1, not '${value}'`);
-  return k;
+  return parseWhole(value, '-k', 1);
 }
 
-export function parseHydrogens(value: string): HydrogenPolicy {
-  if (value === 'keep' || value === 'drop') return value;
-  throw new Error(`--hydrogens must be keep or drop, not '${value}'`);
-}
+export { parseHydrogens };
 
 export function registerInspect(program: Command): void {
-  program
+  const cmd = program
     .command('inspect')
     .description('show what polysift reads from each structure: cell, symmetry, atoms, density, Z, Z\', molecules, notes')
     .argument('<inputs...>', 'CIF files (.cif, .cif.gz, multi-block) or folders searched for them')
-    .option('--json', 'print one JSON document instead of text')
-    .option('--hydrogens <keep|drop>', 'keep or drop hydrogen (and deuterium) atoms in the periodic set', DEFAULT_HYDROGENS)
-    .option('--energy-item <name>', 'CIF data item that holds each structure\'s energy')
-    .option('-k <n>', 'PDD depth (neighbours per row) for the PDD and AMD in the --json output', String(DEFAULT_INSPECT_K))
-    .action(async (inputs: string[], o: { json?: boolean; hydrogens: string; energyItem?: string; k: string }) => {
-      const opts: InspectOptions = { hydrogens: parseHydrogens(o.hydrogens), energyItem: o.energyItem ?? null };
-      if (o.json) opts.k = parseDepth(o.k);
-      let report: InspectReport;
-      if (o.json) {
-        report = await inspectInputs(inputs, opts);
-        process.stdout.write(`${JSON.stringify(report, null, 2)}\n`);
-      } else {
-        report = await inspectInputs(inputs, opts, (item) => {
-          process.stdout.write('entry' in item ? formatEntryText(item.entry) : formatRejectedText(item.rejected));
-        });
-        process.stdout.write(formatSummary(report));
-      }
-      if (report.structures.length === 0) {
-        throw new Error(`no structure could be used from ${inputs.join(', ')} (${report.rejected.length} block(s) rejected, reasons above)`);
-      }
-    });
+    .option('--energy-item <name>', 'CIF data item holding each structure\'s energy');
+  addPddDepth(cmd, 'neighbours per PDD row (k) for the PDD and AMD in the --json output');
+  addHydrogens(cmd, DEFAULT_HYDROGENS);
+  cmd.option('--json', 'print the result as JSON on stdout');
+  cmd.action(async (inputs: string[], o: { json?: boolean; hydrogens: string; energyItem?: string; pddDepth: string }) => {
+    const opts: InspectOptions = { hydrogens: parseHydrogens(o.hydrogens), energyItem: o.energyItem ?? null };
+    if (o.json) opts.k = parseDepth(o.pddDepth);
+    let report: InspectReport;
+    if (o.json) {
+      report = await inspectInputs(inputs, opts);
+      process.stdout.write(`${JSON.stringify(report, null, 2)}\n`);
+    } else {
+      report = await inspectInputs(inputs, opts, (item) => {
+        process.stdout.write('entry' in item ? formatEntryText(item.entry) : formatRejectedText(item.rejected));
+      });
+      process.stdout.write(formatSummary(report));
+    }
+    if (report.structures.length === 0) {
+      throw new Error(`no structure could be used from ${inputs.join(', ')} (${report.rejected.length} block(s) rejected, reasons above)`);
+    }
+  });
 }
 
 // ---- helpers ----

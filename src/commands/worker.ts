@@ -1,9 +1,9 @@
 // `polysift worker --queue URL`: serve the heavy jobs of sifts run with the same --queue, on this machine's cores.
 // A thin shell over serveQueue (src/queue/queue-worker.ts), loaded only when this command runs.
 import type { Command } from 'commander';
-import { availableParallelism } from 'node:os';
 import { writeSync } from 'node:fs';
-import { integer, seconds } from './option-values.js';
+import { defaultThreads } from '../parallel/pool.js';
+import { addQuiet, addThreads, parseSeconds, parseThreads } from './options.js';
 
 interface WorkerCliOptions {
   queue: string;
@@ -15,39 +15,41 @@ interface WorkerCliOptions {
 }
 
 export function registerWorker(program: Command): void {
-  program
+  const cmd = program
     .command('worker')
     .description('Run the jobs of sifts started with --queue (periodic sets, invariants) on this machine, until stopped.')
-    .requiredOption('--queue <url>', 'Redis server of the job queue, e.g. redis://HOST:6379')
-    .option('--threads <n>', 'jobs run at once, one per worker thread (default: available cores)')
+    .requiredOption('--queue <url>', 'address of the Redis server holding the job queue, e.g. redis://HOST:6379');
+  // One job runs on each worker thread.
+  addThreads(cmd);
+  cmd
     .option('--stall-seconds <s>', 'a job whose worker goes silent this long is handed to another worker', '30')
     .option('--queue-patience <s>', 'keep trying to reach Redis this long before giving up', '30')
-    .option('--stop-when-idle <s>', 'stop (exit 0) after this many seconds without a job, e.g. at the end of a batch job')
-    .option('--quiet', 'no lines on stderr')
-    .action(async (o: WorkerCliOptions) => {
-      const threads = o.threads === undefined ? Math.max(1, availableParallelism()) : integer(o.threads, '--threads', 1);
-      const { serveQueue } = await import('../queue/queue-worker.js');
-      const log = o.quiet ? undefined : (line: string) => writeSync(2, `polysift worker: ${line}\n`);
-      const running = await serveQueue(o.queue, {
-        threads,
-        stallSeconds: seconds(o.stallSeconds, '--stall-seconds'),
-        patienceSeconds: seconds(o.queuePatience, '--queue-patience'),
-        stopWhenIdleSeconds: o.stopWhenIdle === undefined ? null : seconds(o.stopWhenIdle, '--stop-when-idle'),
-        log,
-      });
-      // First signal: finish the running jobs, then stop. Second: stop now (the jobs go to other workers).
-      let signals = 0;
-      const onSignal = () => {
-        signals++;
-        void running.stop(signals > 1);
-      };
-      process.on('SIGINT', onSignal);
-      process.on('SIGTERM', onSignal);
-      try {
-        await running.finished;
-      } finally {
-        process.off('SIGINT', onSignal);
-        process.off('SIGTERM', onSignal);
-      }
+    .option('--stop-when-idle <s>', 'stop (exit 0) after this many seconds without a job, e.g. at the end of a batch job');
+  addQuiet(cmd);
+  cmd.action(async (o: WorkerCliOptions) => {
+    const threads = parseThreads(o.threads) ?? defaultThreads();
+    const { serveQueue } = await import('../queue/queue-worker.js');
+    const log = o.quiet ? undefined : (line: string) => writeSync(2, `polysift worker: ${line}\n`);
+    const running = await serveQueue(o.queue, {
+      threads,
+      stallSeconds: parseSeconds(o.stallSeconds, '--stall-seconds'),
+      patienceSeconds: parseSeconds(o.queuePatience, '--queue-patience'),
+      stopWhenIdleSeconds: o.stopWhenIdle === undefined ? null : parseSeconds(o.stopWhenIdle, '--stop-when-idle'),
+      log,
     });
+    // First signal: finish the running jobs, then stop. Second: stop now (the jobs go to other workers).
+    let signals = 0;
+    const onSignal = () => {
+      signals++;
+      void running.stop(signals > 1);
+    };
+    process.on('SIGINT', onSignal);
+    process.on('SIGTERM', onSignal);
+    try {
+      await running.finished;
+    } finally {
+      process.off('SIGINT', onSignal);
+      process.off('SIGTERM', onSignal);
+    }
+  });
 }

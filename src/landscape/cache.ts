@@ -14,6 +14,9 @@ import { writeFilesAtomically } from '../io/outputs.js';
 
 const MAGIC = 'PSIC1\n';
 
+/** Folder of the cache inside a sift output folder, where `sift` and `locate` put it by default. */
+export const CACHE_FOLDER = '.polysift-cache';
+
 export interface CacheEntry {
   pdd: Pdd;
   /** Motif points used for the invariants (after the hydrogen policy). */

@@ -51,6 +51,9 @@ export function validateLandscape(data: unknown, where: string): Landscape {
   if (p.hydrogens !== 'keep' && p.hydrogens !== 'drop') fail('"parameters.hydrogens"', 'must be "keep" or "drop"');
   if (!isFiniteNumber(p.toleranceAngstrom) || (p.toleranceAngstrom as number) < 0) fail('"parameters.toleranceAngstrom"', 'must be a non-negative number');
   if (!UNITS.has(p.energyUnit as string)) fail('"parameters.energyUnit"', 'must be one of kJ/mol, kcal/mol, eV');
+  // Landscapes written before the energy basis existed had energies per molecule.
+  if (p.energyBasis === undefined) p.energyBasis = 'molecule';
+  else if (p.energyBasis !== 'molecule' && p.energyBasis !== 'cell') fail('"parameters.energyBasis"', 'must be "molecule" or "cell"');
 
   const rows = data.structures;
   if (!Array.isArray(rows)) return fail('"structures"', 'is missing or not a list');

@@ -9,6 +9,8 @@ import { amd } from '../invariants/amd.js';
 import type { ReferenceInvariants } from './locate.js';
 import type { HydrogenPolicy } from './schema.js';
 import type { CrystalRecord } from '../types.js';
+import { cellVolume } from '../geometry/cell.js';
+import { volumePerAtom } from './scale-free.js';
 
 export interface UnusableReference {
   source: string;
@@ -38,7 +40,7 @@ export async function readReferences(
   return { references, unusable };
 }
 
-/** Invariants of one reference record with the landscape's k and hydrogen policy. */
+/** Invariants of one reference record with the landscape's k and the comparison's hydrogen policy. */
 export function referenceInvariants(record: CrystalRecord, k: number, hydrogens: HydrogenPolicy): ReferenceInvariants {
   const { set, notes } = toPeriodicSet(record, { hydrogens });
   const p = pdd(set, k);
@@ -49,6 +51,7 @@ export function referenceInvariants(record: CrystalRecord, k: number, hydrogens:
     amd: Array.from(amd(p)),
     densityGPerCm3: densityOf(record),
     spaceGroup: record.spaceGroup,
+    volumePerAtomA3: volumePerAtom(cellVolume(record.cell), set.motif.length / 3),
     notes: [...record.notes, ...notes],
   };
 }

@@ -7,6 +7,9 @@ export type EnergyUnit = 'kJ/mol' | 'kcal/mol' | 'eV';
 
 export type HydrogenPolicy = 'keep' | 'drop';
 
+/** What the energies given to sift were per: a molecule, or a cell (divided by each structure's Z when read). */
+export type EnergyBasis = 'molecule' | 'cell';
+
 export interface SiftParameters {
   /** PDD depth (neighbours per row). */
   k: number;
@@ -19,8 +22,10 @@ export interface SiftParameters {
   minSamples: number;
   /** Energy window above the lowest energy, in `energyUnit`; null for no window. */
   energyWindow: number | null;
-  /** Unit of every energy in this file. */
+  /** Unit of every energy in this file; every energy here is per molecule (after dividing per-cell energies by Z). */
   energyUnit: EnergyUnit;
+  /** What the energies given were per; 'cell' energies were divided by each structure's Z (a note on each row says which Z). */
+  energyBasis: EnergyBasis;
   /** Number of nearest kept neighbours stored per kept structure in `edges`. */
   neighbours: number;
   /** The inputs as given on the command line. */

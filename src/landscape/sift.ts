@@ -10,6 +10,7 @@ import { makeProgress } from '../progress.js';
 import type { SiftOptions, SiftState } from './stages/state.js';
 import { readStage } from './stages/read.js';
 import { energiesStage } from './stages/energies.js';
+import { energyBasisStage } from './stages/energy-basis.js';
 import { periodicSetsStage } from './stages/periodic-sets.js';
 import { localExecutor } from '../parallel/executor.js';
 import { windowStage } from './stages/window.js';
@@ -44,6 +45,7 @@ export const SIFT_STAGES: ReadonlyArray<readonly [string, (s: SiftState) => Prom
   ['read', readStage],
   ['energies', energiesStage],
   ['periodic sets', periodicSetsStage],
+  ['energy basis', energyBasisStage],
   ['window', windowStage],
   ['invariants', invariantsStage],
   ['duplicates', duplicatesStage],
@@ -96,6 +98,7 @@ export function initialState(opts: SiftOptions): SiftState {
     minSamples: opts.minSamples ?? opts.minFamilySize ?? DEFAULT_MIN_FAMILY_SIZE,
     energyWindow: opts.energyWindow ?? null,
     energyUnit: opts.energyUnit ?? 'kJ/mol',
+    energyBasis: opts.energyBasis ?? 'molecule',
     neighbours: opts.neighbours ?? DEFAULT_NEIGHBOURS,
     inputs: opts.inputs.slice(),
     energiesFile: opts.energiesFile ?? null,
@@ -150,5 +153,6 @@ function checkParameters(p: SiftParameters): void {
   if (!Number.isInteger(p.minSamples) || p.minSamples < 1) throw new Error(`the minimum samples must be an integer >= 1, not ${p.minSamples}`);
   if (p.energyWindow !== null && !(p.energyWindow >= 0)) throw new Error(`the energy window must be >= 0, not ${p.energyWindow}`);
   if (!Number.isInteger(p.neighbours) || p.neighbours < 1) throw new Error(`the neighbour count must be an integer >= 1, not ${p.neighbours}`);
+  if (p.energyBasis !== 'molecule' && p.energyBasis !== 'cell') throw new Error(`the energy basis must be molecule or cell, not ${String(p.energyBasis)}`);
   if (p.inputs.length === 0) throw new Error('no inputs: give CIF files or folders');
 }

@@ -93,7 +93,9 @@ export async function runBlockJobs(
  */
 function mayBeInWindow(s: SiftState): (w: Work) => boolean {
   const window = s.params.energyWindow;
-  if (window === null) return () => true;
+  // Energies per cell become energies per molecule only once Z is known (stage "energy basis"), so then the window
+  // cannot be judged yet and every block gets its invariants.
+  if (window === null || s.params.energyBasis === 'cell') return () => true;
   let lowest: number | null = null;
   for (const w of s.work) if (w.record && w.row.energy !== null && (lowest === null || w.row.energy < lowest)) lowest = w.row.energy;
   if (lowest === null) return () => true;

@@ -5,7 +5,7 @@
 import type { CrystalFacts, CrystalRecord, Pdd } from '../../types.js';
 import type { Invariants } from '../../invariants/batch.js';
 import type { Executor } from '../../parallel/executor.js';
-import type { EnergyUnit, Embedding, HydrogenPolicy, SiftParameters, StructureRow } from '../schema.js';
+import type { EnergyBasis, EnergyUnit, Embedding, HydrogenPolicy, SiftParameters, StructureRow } from '../schema.js';
 import type { EnergyAssignment, EnergyTable } from '../../io/energies.js';
 import type { CacheEntry, CacheParams } from '../cache.js';
 import type { Comparisons } from '../compare-cache.js';
@@ -18,6 +18,8 @@ export interface SiftOptions {
   idColumn?: string;
   energyColumn?: string;
   energyUnit?: EnergyUnit;
+  /** What the energies are per (default 'molecule'); 'cell' energies are divided by each structure's Z. */
+  energyBasis?: EnergyBasis;
   energyItem?: string | null;
   k?: number;
   hydrogens?: HydrogenPolicy;
