@@ -8,8 +8,8 @@ import { siftFiles } from '../landscape/sift-files.js';
 import { writeFilesAtomically, removePendingFiles } from '../io/outputs.js';
 import { parseEnergyAmount, parseEnergyUnit } from '../io/energies.js';
 import { makeProgress } from '../progress.js';
-import { addHiddenAlias, addHydrogens, addOutputModes, addPddDepth, addThreads, addTitle, addTolerance, parseDecimal, parseHydrogens, parseSymmetryTolerance, parseThreads, parseWhole, addSymmetryTolerance } from './options.js';
-
+import { BLOCKS_PER_JOB } from '../landscape/stages/periodic-sets.js';
+import { addHiddenAlias, addHydrogens, addOutputModes, addPddDepth, addSymmetryTolerance, addThreads, addTitle, addTolerance, parseDecimal, parseHydrogens, parseSeconds, parseSymmetryTolerance, parseThreads, parseWhole } from './options.js';
 import { CACHE_FOLDER } from '../landscape/cache.js';
 import type { EnergyUnit } from '../landscape/schema.js';
 import { DEFAULT_ENERGY_MISMATCH_KJ_PER_MOL, DEFAULT_FLAT_DENSITY_G_PER_CM3, DEFAULT_FLAT_ENERGY_KJ_PER_MOL, FLAG_CODES } from '../landscape/flags.js';
@@ -44,6 +44,9 @@ interface SiftCliOptions {
   title?: string;
   json?: boolean;
   quiet?: boolean;
+  queue?: string;
+  queuePatience: string;
+  jobSize?: string;
 }
 
 export function registerSift(program: Command): void {
@@ -74,7 +77,10 @@ export function registerSift(program: Command): void {
   cmd
     .option('--neighbours <n>', 'nearest kept neighbours recorded per kept structure', String(DEFAULT_NEIGHBOURS))
     .option('--cache <dir>', `folder of the invariants and comparisons cache (default: <out>/${CACHE_FOLDER})`)
-    .option('--no-cache', 'neither read nor write the invariants cache');
+    .option('--no-cache', 'neither read nor write the invariants cache')
+    .option('--queue <url>', 'run the heavy jobs on a Redis job queue served by `polysift worker` processes, e.g. redis://HOST:6379')
+    .option('--queue-patience <s>', 'with --queue: keep trying to reach Redis this long before giving up', '30')
+    .option('--job-size <blocks>', `structures per periodic-set and invariants job (default ${BLOCKS_PER_JOB}; fewer in small runs, so there are at least 16 jobs)`);
   addThreads(cmd);
   addTitle(cmd);
   addOutputModes(cmd, 'a summary');
@@ -109,7 +115,9 @@ export function registerSift(program: Command): void {
       threads: parseThreads(o.threads),
       cacheDir: o.cache === false ? null : typeof o.cache === 'string' ? o.cache : join(o.out, CACHE_FOLDER),
       progress: makeProgress({ quiet: o.quiet }),
+      blocksPerJob: o.jobSize === undefined ? undefined : parseWhole(o.jobSize, '--job-size', 1),
     };
+    const patienceSeconds = parseSeconds(o.queuePatience, '--queue-patience');
     // Ctrl-C: files are staged under temporary names and renamed together, so only temporaries can be left.
     const onInterrupt = () => {
       removePendingFiles();
@@ -119,6 +127,12 @@ export function registerSift(program: Command): void {
     };
     process.on('SIGINT', onInterrupt);
     process.on('SIGTERM', onInterrupt);
+    // The queue code (bullmq, ioredis) is loaded only when a queue is asked for.
+    if (o.queue !== undefined) {
+      const { openQueueExecutor } = await import('../queue/queue-executor.js');
+      const note = o.quiet ? undefined : (line: string) => process.stderr.write(`polysift: ${line}\n`);
+      options.executor = await openQueueExecutor(o.queue, { patienceSeconds, note });
+    }
     try {
       const run = await sift(options);
       for (const m of run.messages) if (!o.quiet) process.stderr.write(`polysift: ${m}\n`);
@@ -130,6 +144,7 @@ export function registerSift(program: Command): void {
     } finally {
       process.off('SIGINT', onInterrupt);
       process.off('SIGTERM', onInterrupt);
+      await options.executor?.close();
     }
   });
 }

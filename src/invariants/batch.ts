@@ -153,11 +153,7 @@ export function packSets(sets: PeriodicPointSet[], k: number, collapseTolerance 
 /** Worker entry: invariants of every set of a packed chunk. A failing set is reported, not thrown. */
 export function invariantsOfChunk(chunk: PackedSets): PackedInvariants {
   const { k, count } = chunk;
-  const pdds: Pdd[] = [];
-  const elements: Array<RowElements | null> = [];
-  const errors: string[] = [];
-  const amds = new Float64Array(count * k);
-  let totalRows = 0;
+  const out: Array<Invariants | { error: string }> = [];
   for (let i = 0; i < count; i++) {
     const dim = chunk.dims[i];
     const set: PeriodicPointSet = {
@@ -168,37 +164,51 @@ export function invariantsOfChunk(chunk: PackedSets): PackedInvariants {
       asym: chunk.asym.subarray(chunk.asymStart[i], chunk.asymStart[i + 1]),
       multiplicity: chunk.multiplicity.subarray(chunk.asymStart[i], chunk.asymStart[i + 1]),
     };
-    try {
-      const opts = { collapseTolerance: chunk.collapseTolerance };
-      let p: Pdd;
-      if (set.atomicNumbers.length > 0) {
-        const withElements = pddWithElements(set, k, opts);
-        p = withElements.pdd;
-        elements.push(withElements.elements);
-      } else {
-        p = pdd(set, k, opts);
-        elements.push(null);
-      }
-      pdds.push(p);
-      amds.set(amd(p), i * k);
-      totalRows += p.weights.length;
-      errors.push('');
-    } catch (err) {
-      pdds.push({ k, rows: new Float64Array(0), weights: new Float64Array(0) });
-      if (elements.length < pdds.length) elements.push(null);
-      errors.push(err instanceof Error ? err.message : String(err));
-    }
+    out.push(invariantsOrError(set, k, chunk.collapseTolerance));
   }
+  return packInvariants(k, out);
+}
+
+/** PDD and AMD of one set, or why they could not be computed. */
+export function invariantsOrError(set: PeriodicPointSet, k: number, collapseTolerance = DEFAULT_COLLAPSE_TOLERANCE_ANGSTROM): Invariants | { error: string } {
+  try {
+    // Sets carrying atomic numbers also give the elements at their rows' centres (the element-aware check).
+    if (set.atomicNumbers.length > 0) {
+      const w = pddWithElements(set, k, { collapseTolerance });
+      return { pdd: w.pdd, amd: amd(w.pdd), elements: w.elements };
+    }
+    const p = pdd(set, k, { collapseTolerance });
+    return { pdd: p, amd: amd(p) };
+  } catch (err) {
+    return { error: err instanceof Error ? err.message : String(err) };
+  }
+}
+
+/** Pack per-set invariants (or errors) into one message: a few flat arrays instead of two per set. */
+export function packInvariants(k: number, results: ReadonlyArray<Invariants | { error: string }>): PackedInvariants {
+  const count = results.length;
   const rowStart = new Int32Array(count + 1);
-  const rows = new Float64Array(totalRows * k);
-  const weights = new Float64Array(totalRows);
   for (let i = 0; i < count; i++) {
-    const p = pdds[i];
-    rows.set(p.rows, rowStart[i] * k);
-    weights.set(p.weights, rowStart[i]);
-    rowStart[i + 1] = rowStart[i] + p.weights.length;
+    const r = results[i];
+    rowStart[i + 1] = rowStart[i] + ('error' in r ? 0 : r.pdd.weights.length);
+  }
+  const rows = new Float64Array(rowStart[count] * k);
+  const weights = new Float64Array(rowStart[count]);
+  const amds = new Float64Array(count * k);
+  const errors: string[] = [];
+  for (let i = 0; i < count; i++) {
+    const r = results[i];
+    if ('error' in r) {
+      errors.push(r.error);
+      continue;
+    }
+    errors.push('');
+    rows.set(r.pdd.rows, rowStart[i] * k);
+    weights.set(r.pdd.weights, rowStart[i]);
+    amds.set(r.amd, i * k);
   }
   // Elements: per set with them, rows+1 part offsets (relative to the set's first part), then the parts.
+  const elements = results.map((r) => ('error' in r ? null : (r.elements ?? null)));
   const elementRowStart = new Int32Array(count + 1);
   let parts = 0;
   for (let i = 0; i < count; i++) {

@@ -41,7 +41,7 @@ export const NOTE_KINDS: readonly NoteKind[] = [
   { code: 'special-positions', pattern: /site\(s\) on special positions/ },
   { code: 'sites-merged', pattern: /(coincide with earlier sites|is a symmetry copy of site|share one position)/ },
   { code: 'hydrogens-dropped', pattern: /^hydrogens dropped/ },
-  // Crystal facts (src/geometry/facts.ts, molecules.ts, src/landscape/prepare.ts).
+  // Crystal facts (src/geometry/facts.ts, molecules.ts, src/landscape/blocks-job.ts).
   { code: 'no-radius', pattern: /^no covalent radius/ },
   { code: 'extended', pattern: /^(bonds extend through|\d+ bonded component)/ },
   { code: 'overlap', pattern: /pair\(s\) of atoms closer than/ },

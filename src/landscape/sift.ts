@@ -13,6 +13,7 @@ import { readStage } from './stages/read.js';
 import { energiesStage } from './stages/energies.js';
 import { energyBasisStage } from './stages/energy-basis.js';
 import { periodicSetsStage } from './stages/periodic-sets.js';
+import { localExecutor } from '../parallel/executor.js';
 import { windowStage } from './stages/window.js';
 import { invariantsStage } from './stages/invariants.js';
 import { duplicatesStage } from './stages/duplicates.js';
@@ -119,9 +120,14 @@ export function initialState(opts: SiftOptions): SiftState {
     energyItem: opts.energyItem ?? null,
   };
   checkParameters(params);
+  if (opts.blocksPerJob !== undefined && !(Number.isInteger(opts.blocksPerJob) && opts.blocksPerJob >= 1))
+    throw new Error(`the blocks per job must be a whole number >= 1, not ${opts.blocksPerJob}`);
+  const threads = opts.threads ?? defaultThreads();
   return {
     params,
-    threads: opts.threads ?? defaultThreads(),
+    threads,
+    executor: opts.executor ?? localExecutor(threads),
+    blocksPerJob: opts.blocksPerJob ?? null,
     cacheDir: opts.cacheDir ?? null,
     denseLimit: opts.denseLimit,
     idColumn: opts.idColumn,
@@ -135,7 +141,7 @@ export function initialState(opts: SiftOptions): SiftState {
     cache: new Map(),
     cacheProblem: null,
     cacheFactsChanged: false,
-    prepared: new Map(),
+    computed: new Map(),
     lowest: null,
     active: [],
     items: [],

@@ -1,8 +1,10 @@
 // The one data structure the sift stages pass along (src/landscape/sift.ts lists the stages). Each stage reads
 // what earlier stages left here and adds its own results; no stage reaches back into another's internals. The
-// heavy parts of a stage (periodic sets, invariants, EMD searches) run in worker threads; the state itself stays
-// on the main thread.
-import type { CrystalFacts, CrystalRecord, Pdd, PeriodicPointSet } from '../../types.js';
+// heavy parts of a stage (periodic sets, invariants, EMD searches) run as jobs on the state's executor (local
+// worker threads, or a Redis queue: src/parallel/executor.ts); the state itself stays on the main thread.
+import type { CrystalFacts, CrystalRecord, Pdd } from '../../types.js';
+import type { Invariants } from '../../invariants/batch.js';
+import type { Executor } from '../../parallel/executor.js';
 import type { EnergyBasis, EnergyUnit, Embedding, FlagCounts, HydrogenPolicy, SiftParameters, StructureRow, ToleranceChoice } from '../schema.js';
 import type { EnergyAssignment, EnergyTable } from '../../io/energies.js';
 import type { CacheEntry, CacheParams } from '../cache.js';
@@ -44,6 +46,10 @@ export interface SiftOptions {
   progress?: Progress;
   /** Kept-structure count up to which the full EMD matrix is used (default DENSE_LIMIT; for tests and benchmarks). */
   denseLimit?: number;
+  /** Where the heavy jobs run; default: local worker threads (`threads` of them). The caller closes it. */
+  executor?: Executor;
+  /** Blocks per periodic-set and invariants job (default BLOCKS_PER_JOB, less for small runs). */
+  blocksPerJob?: number;
 }
 
 /** One input block on its way through the stages. */
@@ -80,6 +86,9 @@ export interface KeptNeighbours {
 export interface SiftState {
   params: SiftParameters;
   threads: number;
+  executor: Executor;
+  /** Blocks per job as asked for; null for the default. */
+  blocksPerJob: number | null;
   cacheDir: string | null;
   denseLimit: number | undefined;
   idColumn: string | undefined;
@@ -93,13 +102,14 @@ export interface SiftState {
   // energies
   energyTable: EnergyTable | null;
   energyAssignment: EnergyAssignment | null;
-  // periodic sets: the invariants cache as loaded, and the sets built for blocks it did not hold.
+  // periodic sets: the invariants cache as loaded, and the invariants computed with the periodic sets of blocks it
+  // did not hold (or why they failed), for the invariants stage to take.
   cacheParams: CacheParams;
   cache: Map<string, CacheEntry>;
   cacheProblem: string | null;
   /** Cached entries whose facts were recomputed (another symmetry tolerance): the cache is written again. */
   cacheFactsChanged: boolean;
-  prepared: Map<Work, PeriodicPointSet>;
+  computed: Map<Work, Invariants | { error: string }>;
   // window: the lowest energy among usable structures; the structures inside the window.
   lowest: number | null;
   active: Work[];
