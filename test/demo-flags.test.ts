@@ -49,10 +49,15 @@ describe('flags and auto tolerance on the demo search', async () => {
       expect(flat).toHaveLength(3);
       for (const r of flat) {
         expect(r.energy!.toFixed(4)).toBe('-40.0933');
-        expect(r.spaceGroup).toMatch(/^P 1 21 1$|^P21$/);
+        // Written in P21; the group reported is the one detected within 0.06 Å (issue 11). One of the three points of
+        // this flat minimum lies within 0.015 Å of Cmc21, a supergroup of P21: spglib (symprec 0.06, Debian
+        // python3-spglib) names the same groups for these three blocks (P21, P21, Cmc21), checked by hand once.
+        expect(r.symmetry!.declared).toMatch(/^P 1 21 1$|^P21$/);
+        expect(['P21', 'Cmc21']).toContain(r.spaceGroup);
         expect(r.flatPartnerDistance!).toBeGreaterThan(l.parameters.toleranceAngstrom);
         expect(r.flatPartnerDistance!).toBeLessThan(0.12);
       }
+      expect(flat.map((r) => r.spaceGroup).sort()).toEqual(['Cmc21', 'P21', 'P21']);
       // All three pairs, whatever the tolerance (0.044, 0.051 and 0.093 Å apart).
       expect(l.flagCounts.flatMinimumPairs).toBe(3);
       expect(l.flagCounts.energyMismatch).toBe(0);
