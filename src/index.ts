@@ -11,6 +11,11 @@ export { parseEnergyCsv, assignEnergies, convertEnergy } from './io/energies.js'
 export { cellToBasis, cellVolume } from './geometry/cell.js';
 export { parseSymopXyz, opsFromSymbol, closeGroup } from './geometry/symmetry.js';
 export { opsFromHall } from './geometry/hall.js';
+export {
+  SPACE_GROUP_SETTINGS, OTHER_SETTINGS, settingByHall, settingByOperations, defaultSetting, groupSymbol, settingsOfGroup, settingLabel,
+  type SpaceGroupSetting,
+} from './geometry/space-group-table.js';
+export { settingFromSymbol, settingFromNumber, type ResolvedSetting, type SettingHints } from './geometry/space-group-symbol.js';
 export { toPeriodicSet } from './geometry/periodic-set.js';
 export { crystalFacts } from './geometry/facts.js';
 export { reduceBasis } from './geometry/reduce.js';
@@ -31,12 +36,16 @@ export { adjustedRandIndex, spearman } from './cluster/stats.js';
 
 // Pipelines (src/landscape)
 export { sift, SIFT_STAGES } from './landscape/sift.js';
+export { localExecutor } from './parallel/executor.js';
+export { openQueue, serveQueueJobs } from './queue/lazy.js';
 export { siftFiles } from './landscape/sift-files.js';
 export { collapseDuplicates } from './landscape/collapse.js';
 export { convergenceCurve } from './landscape/convergence.js';
 export { loadLandscape } from './landscape/load.js';
 export { diffLandscapes } from './landscape/diff.js';
 export { locateReferences } from './landscape/locate.js';
+export { keptWithPolicy } from './landscape/kept-comparison.js';
+export { decideFound, DEFAULT_FOUND_CRITERION } from './landscape/found-criterion.js';
 
 // Reports (src/report)
 export { renderSiftReport } from './report/sift-report.js';

@@ -70,4 +70,24 @@ describe('the demo report in a browser', () => {
     expect(after[0]).toBe(land.structures[top]!.id);
     expect(w.consoleErrors).toEqual([]);
   });
+
+  it('shows the flat minimum of the demo in the summary, the table and the panel, and the auto tolerance on the histogram', async () => {
+    const flat = land.structures.filter((r) => r.flags.includes('flat-minimum'));
+    expect(flat).toHaveLength(3);
+    expect(await w.page.textContent('#flags-table')).toMatch(/flat-minimum3 \(3 pairs\)/);
+    expect(await w.page.textContent('#run-line')).toContain('3 flat minimum');
+    await w.page.fill('#table-filter', 'flat-minimum');
+    await w.page.waitForFunction(() => document.querySelectorAll('#kept-table tbody tr').length === 3, null, { timeout: 15_000 });
+    const ids = await w.page.locator('#kept-table tbody tr td:first-child').allTextContents();
+    expect(ids.sort()).toEqual(flat.map((r) => r.id).sort());
+    await w.page.evaluate((i) => (window as unknown as { polysiftReport: { select: (i: number) => void } }).polysiftReport.select(i), flat[0]!.index);
+    await w.page.waitForFunction((want) => document.getElementById('panel-id')?.textContent === want, flat[0]!.id, { timeout: 15_000 });
+    const facts = await w.page.textContent('#panel-facts');
+    expect(facts).toContain('flat-minimum with');
+    for (const partner of flat[0]!.flatPartners) expect(facts).toContain(partner);
+    expect(land.parameters.toleranceMode).toBe('auto');
+    expect(await w.page.textContent('#nn-note')).toMatch(/Auto tolerance: the shaded band is the gap found between/);
+    await w.page.fill('#table-filter', '');
+    expect(w.consoleErrors).toEqual([]);
+  });
 });

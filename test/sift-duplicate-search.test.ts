@@ -89,6 +89,11 @@ describe('energy-ordered duplicate search', () => {
             for (let i = 0; i < pdds.length; i++) expect(classOf[got.keptOf[i]]).toBe(classOf[i]);
             expect(Array.from(got.otherClass)).toEqual(Array.from(ref.other));
             for (let i = 0; i < pdds.length; i++) if (ref.other[i] >= 0) expect(got.otherClassDistance[i]).toBe(ref.d[i * pdds.length + ref.other[i]]);
+            // Every pair of different classes within the tolerance (what the other-chemistry flag counts).
+            const n = pdds.length;
+            const want: string[] = [];
+            for (let i = 0; i < n; i++) for (let j = i + 1; j < n; j++) if (classOf[i] !== classOf[j] && ref.d[i * n + j] <= tol) want.push(`${i},${j},${ref.d[i * n + j]}`);
+            expect(Array.from(got.otherPairs.i, (i, t) => `${i},${got.otherPairs.j[t]},${got.otherPairs.d[t]}`).sort()).toEqual(want.sort());
             expect(Array.from(ref.other).filter((x) => x >= 0).length).toBeGreaterThan(10);
           } else expect(Array.from(got.otherClass).every((x) => x === -1)).toBe(true);
         } finally {

@@ -50,16 +50,16 @@ describe('sift re-runs', () => {
     expect(c.landscape.parameters.toleranceAngstrom).toBe(0.08);
     // Every EMD the first run solved is in the comparisons cache; here the kept set is unchanged too, so its
     // neighbours and map come from the cache (4 kept structures are too few for families of 5, so no matrix is needed).
-    expect(c.cache.reused).toEqual(['pairs', 'kept neighbours', 'metric map']);
+    expect(c.cache.reused).toEqual(['pairs', 'element distances', 'kept neighbours', 'metric map']);
     expect(c.landscape.counts.kept).toBe(a.landscape.counts.kept);
     const exactSolved = (r: typeof a) => Object.entries(r.counters).reduce((n, [name, v]) => (name.includes('exact EMDs') ? n + v : n), 0);
     expect(exactSolved(a)).toBeGreaterThan(0);
     // Same tolerance again, other family options: the matrix is read from the pairs already solved, none is solved.
     const d = await sift({ ...base, threads: 2, cacheDir, toleranceAngstrom: 0.08, minFamilySize: 3 });
-    expect(d.cache.reused).toEqual(['pairs', 'kept neighbours', 'metric map']);
+    expect(d.cache.reused).toEqual(['pairs', 'element distances', 'kept neighbours', 'metric map']);
     expect(exactSolved(d)).toBe(0);
     const e = await sift({ ...base, threads: 2, cacheDir, toleranceAngstrom: 0.06, minFamilySize: 3 });
-    expect(e.cache.reused).toEqual(['pairs', 'kept neighbours', 'families', 'metric map']);
+    expect(e.cache.reused).toEqual(['pairs', 'element distances', 'kept neighbours', 'families', 'metric map']);
     expect(exactSolved(e)).toBe(0);
     expect(e.landscape.structures.map((r) => r.family)).toEqual(d.landscape.structures.map((r) => r.family));
     // Cached invariants are the very numbers computed the first time.
@@ -75,7 +75,7 @@ describe('sift re-runs', () => {
     const before = new Map(readdirSync(out).filter((f) => !f.startsWith('.')).map((f) => [f, readFileSync(join(out, f), 'utf8')]));
     // Without the cache the run takes a few seconds; interrupt it once it reports its second stage.
     // Node itself with the TypeScript loader (not the tsx launcher), so the signal reaches the sift process directly.
-    const child = spawn(process.execPath, ['--import', 'tsx', cli, 'sift', cif, '--energies', energies, '--out', out, '--no-cache', '--duplicate-tolerance', '0.03', '--threads', '1'], {
+    const child = spawn(process.execPath, ['--import', 'tsx', cli, 'sift', cif, '--energies', energies, '--out', out, '--no-cache', '--tolerance', '0.03', '--threads', '1'], {
       stdio: ['ignore', 'pipe', 'pipe'],
     });
     let stderr = '';

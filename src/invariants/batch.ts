@@ -2,8 +2,8 @@
 // Sets travel to the workers in chunks packed into a few flat typed arrays, and the PDDs come back the
 // same way, so that one message carries hundreds of structures and structured cloning stays cheap.
 import type { Pdd, PeriodicPointSet } from '../types.js';
-import { defaultThreads, mapInWorkers, type PoolOptions, type WorkerPool } from '../parallel/pool.js';
-import { DEFAULT_COLLAPSE_TOLERANCE_ANGSTROM, pdd } from './pdd.js';
+import { defaultThreads, mapInWorkers, type PoolOptions } from '../parallel/pool.js';
+import { DEFAULT_COLLAPSE_TOLERANCE_ANGSTROM, pdd, pddWithElements, type RowElements } from './pdd.js';
 import { amd } from './amd.js';
 
 /** A chunk of periodic sets in flat arrays (structured-cloneable). */
@@ -21,6 +21,10 @@ export interface PackedSets {
   asymStart: Int32Array;
   asym: Int32Array;
   multiplicity: Int32Array;
+  /** Atomic numbers per motif point (same offsets as `motif` divided by the dimension), or empty when a set has none. */
+  atomicNumbers: Uint8Array;
+  /** count+1 offsets into `atomicNumbers` (a set without atomic numbers has an empty range). */
+  atomStart: Int32Array;
 }
 
 /** The invariants of a chunk in flat arrays; a set that failed has no rows and its message in `errors`. */
@@ -36,11 +40,21 @@ export interface PackedInvariants {
   amd: Float64Array;
   /** '' for every set that worked, else why it failed. */
   errors: string[];
+  /**
+   * Elements at the rows' centres (pdd.ts RowElements), packed: count+1 offsets into `partStart`, where a set
+   * with atomic numbers has its rows+1 part offsets (counted from its own first part) and a set without has none.
+   */
+  elementRowStart: Int32Array;
+  partStart: Int32Array;
+  partZ: Uint8Array;
+  partWeight: Float64Array;
 }
 
 export interface Invariants {
   pdd: Pdd;
   amd: Float64Array;
+  /** Elements at the centres of the PDD rows, when the set carries atomic numbers. */
+  elements?: RowElements;
 }
 
 export interface InvariantsOptions {
@@ -51,8 +65,6 @@ export interface InvariantsOptions {
   collapseTolerance?: number;
   /** Sets per message to a worker; by default about 16 chunks per thread, at most 500 sets each. */
   chunkSize?: number;
-  /** Worker threads already open (see WorkerPool); default: threads started for this call. */
-  pool?: WorkerPool;
 }
 
 /** One or more sets could not be handled; `failures` lists them by position in the input. */
@@ -98,89 +110,11 @@ export async function computeInvariantsSettled(
   for (let start = 0; start < n; start += chunkSize) chunks.push(packSets(sets.slice(start, start + chunkSize), k, tol));
   const pool: PoolOptions = {
     threads,
-    pool: opts.pool,
     onProgress: opts.onProgress ? (done, total) => opts.onProgress?.(done === total ? n : Math.min(n, done * chunkSize), n) : undefined,
   };
   const packed = await mapInWorkers<PackedSets, PackedInvariants>(import.meta.url, 'invariantsOfChunk', chunks, pool);
   const out: Array<Invariants | { error: string }> = [];
   for (const p of packed) out.push(...unpackInvariants(p));
-  return out;
-}
-
-/**
- * Where `computeInvariantsInto` writes: one store of rows, weights and AMDs for many structures (in
- * SharedArrayBuffers when worker threads write into it). Set i gets rows rowAt[i] .. rowAt[i] + asym count - 1
- * (rows it does not fill keep weight 0: a PDD merges equal rows, so it may use fewer) and its AMD at amdAt[i] * k.
- */
-export interface InvariantsTarget {
-  k: number;
-  rows: Float64Array;
-  weights: Float64Array;
-  amd: Float64Array;
-  rowAt: Int32Array;
-  amdAt: Int32Array;
-}
-
-interface IntoChunk {
-  sets: PackedSets;
-  target: InvariantsTarget;
-  /** Index of the chunk's first set in the target's rowAt/amdAt. */
-  first: number;
-}
-
-/**
- * PDD and AMD of every set written straight into `target` by the worker threads (no copy of the results passes
- * through messages). Returns, per set, the number of PDD rows written, or the reason it failed.
- */
-export async function computeInvariantsInto(
-  sets: PeriodicPointSet[],
-  target: InvariantsTarget,
-  opts: InvariantsOptions = {},
-): Promise<Array<number | { error: string }>> {
-  const k = target.k;
-  if (!(Number.isInteger(k) && k >= 1)) throw new Error(`the PDD depth k must be a positive integer, not ${k}`);
-  const n = sets.length;
-  if (n === 0) return [];
-  const threads = Math.max(1, Math.floor(opts.pool?.threads ?? opts.threads ?? defaultThreads()));
-  const chunkSize = Math.max(1, opts.chunkSize ?? Math.min(500, Math.ceil(n / (16 * threads))));
-  const tol = opts.collapseTolerance ?? DEFAULT_COLLAPSE_TOLERANCE_ANGSTROM;
-  const chunks: IntoChunk[] = [];
-  for (let start = 0; start < n; start += chunkSize) chunks.push({ sets: packSets(sets.slice(start, start + chunkSize), k, tol), target, first: start });
-  const pool: PoolOptions = {
-    threads,
-    pool: opts.pool,
-    onProgress: opts.onProgress ? (done, total) => opts.onProgress?.(done === total ? n : Math.min(n, done * chunkSize), n) : undefined,
-  };
-  const parts = await mapInWorkers<IntoChunk, Array<number | { error: string }>>(import.meta.url, 'invariantsIntoChunk', chunks, pool);
-  return parts.flat();
-}
-
-/** Worker entry of computeInvariantsInto. */
-export function invariantsIntoChunk(chunk: IntoChunk): Array<number | { error: string }> {
-  const { sets, target, first } = chunk;
-  const k = sets.k;
-  const out: Array<number | { error: string }> = [];
-  for (let i = 0; i < sets.count; i++) {
-    const dim = sets.dims[i];
-    const set: PeriodicPointSet = {
-      dim,
-      basis: sets.basis.subarray(9 * i, 9 * i + dim * dim),
-      motif: sets.motif.subarray(sets.motifStart[i], sets.motifStart[i + 1]),
-      atomicNumbers: new Uint8Array(0),
-      asym: sets.asym.subarray(sets.asymStart[i], sets.asymStart[i + 1]),
-      multiplicity: sets.multiplicity.subarray(sets.asymStart[i], sets.asymStart[i + 1]),
-    };
-    try {
-      const p = pdd(set, k, { collapseTolerance: sets.collapseTolerance });
-      const at = target.rowAt[first + i];
-      target.rows.set(p.rows, at * k);
-      target.weights.set(p.weights, at);
-      target.amd.set(amd(p), target.amdAt[first + i] * k);
-      out.push(p.weights.length);
-    } catch (err) {
-      out.push({ error: err instanceof Error ? err.message : String(err) });
-    }
-  }
   return out;
 }
 
@@ -198,55 +132,103 @@ export function packSets(sets: PeriodicPointSet[], k: number, collapseTolerance 
   const motif = new Float64Array(motifStart[count]);
   const asym = new Int32Array(asymStart[count]);
   const multiplicity = new Int32Array(asymStart[count]);
+  const atomStart = new Int32Array(count + 1);
+  for (let i = 0; i < count; i++) {
+    const m = sets[i].motif.length / sets[i].dim;
+    atomStart[i + 1] = atomStart[i] + (sets[i].atomicNumbers.length === m ? m : 0);
+  }
+  const atomicNumbers = new Uint8Array(atomStart[count]);
   for (let i = 0; i < count; i++) {
     const s = sets[i];
+    if (atomStart[i + 1] > atomStart[i]) atomicNumbers.set(s.atomicNumbers, atomStart[i]);
     dims[i] = s.dim;
     basis.set(s.basis.subarray(0, Math.min(9, s.basis.length)), 9 * i);
     motif.set(s.motif, motifStart[i]);
     asym.set(s.asym, asymStart[i]);
     multiplicity.set(s.multiplicity.subarray(0, s.asym.length), asymStart[i]);
   }
-  return { k, collapseTolerance, count, dims, basis, motifStart, motif, asymStart, asym, multiplicity };
+  return { k, collapseTolerance, count, dims, basis, motifStart, motif, asymStart, asym, multiplicity, atomicNumbers, atomStart };
 }
 
 /** Worker entry: invariants of every set of a packed chunk. A failing set is reported, not thrown. */
 export function invariantsOfChunk(chunk: PackedSets): PackedInvariants {
   const { k, count } = chunk;
-  const pdds: Pdd[] = [];
-  const errors: string[] = [];
-  const amds = new Float64Array(count * k);
-  let totalRows = 0;
+  const out: Array<Invariants | { error: string }> = [];
   for (let i = 0; i < count; i++) {
     const dim = chunk.dims[i];
     const set: PeriodicPointSet = {
       dim,
       basis: chunk.basis.subarray(9 * i, 9 * i + dim * dim),
       motif: chunk.motif.subarray(chunk.motifStart[i], chunk.motifStart[i + 1]),
-      atomicNumbers: new Uint8Array(0),
+      atomicNumbers: chunk.atomicNumbers.subarray(chunk.atomStart[i], chunk.atomStart[i + 1]),
       asym: chunk.asym.subarray(chunk.asymStart[i], chunk.asymStart[i + 1]),
       multiplicity: chunk.multiplicity.subarray(chunk.asymStart[i], chunk.asymStart[i + 1]),
     };
-    try {
-      const p = pdd(set, k, { collapseTolerance: chunk.collapseTolerance });
-      pdds.push(p);
-      amds.set(amd(p), i * k);
-      totalRows += p.weights.length;
-      errors.push('');
-    } catch (err) {
-      pdds.push({ k, rows: new Float64Array(0), weights: new Float64Array(0) });
-      errors.push(err instanceof Error ? err.message : String(err));
+    out.push(invariantsOrError(set, k, chunk.collapseTolerance));
+  }
+  return packInvariants(k, out);
+}
+
+/** PDD and AMD of one set, or why they could not be computed. */
+export function invariantsOrError(set: PeriodicPointSet, k: number, collapseTolerance = DEFAULT_COLLAPSE_TOLERANCE_ANGSTROM): Invariants | { error: string } {
+  try {
+    // Sets carrying atomic numbers also give the elements at their rows' centres (the element-aware check).
+    if (set.atomicNumbers.length > 0) {
+      const w = pddWithElements(set, k, { collapseTolerance });
+      return { pdd: w.pdd, amd: amd(w.pdd), elements: w.elements };
     }
+    const p = pdd(set, k, { collapseTolerance });
+    return { pdd: p, amd: amd(p) };
+  } catch (err) {
+    return { error: err instanceof Error ? err.message : String(err) };
   }
+}
+
+/** Pack per-set invariants (or errors) into one message: a few flat arrays instead of two per set. */
+export function packInvariants(k: number, results: ReadonlyArray<Invariants | { error: string }>): PackedInvariants {
+  const count = results.length;
   const rowStart = new Int32Array(count + 1);
-  const rows = new Float64Array(totalRows * k);
-  const weights = new Float64Array(totalRows);
   for (let i = 0; i < count; i++) {
-    const p = pdds[i];
-    rows.set(p.rows, rowStart[i] * k);
-    weights.set(p.weights, rowStart[i]);
-    rowStart[i + 1] = rowStart[i] + p.weights.length;
+    const r = results[i];
+    rowStart[i + 1] = rowStart[i] + ('error' in r ? 0 : r.pdd.weights.length);
   }
-  return { k, count, rowStart, rows, weights, amd: amds, errors };
+  const rows = new Float64Array(rowStart[count] * k);
+  const weights = new Float64Array(rowStart[count]);
+  const amds = new Float64Array(count * k);
+  const errors: string[] = [];
+  for (let i = 0; i < count; i++) {
+    const r = results[i];
+    if ('error' in r) {
+      errors.push(r.error);
+      continue;
+    }
+    errors.push('');
+    rows.set(r.pdd.rows, rowStart[i] * k);
+    weights.set(r.pdd.weights, rowStart[i]);
+    amds.set(r.amd, i * k);
+  }
+  // Elements: per set with them, rows+1 part offsets (relative to the set's first part), then the parts.
+  const elements = results.map((r) => ('error' in r ? null : (r.elements ?? null)));
+  const elementRowStart = new Int32Array(count + 1);
+  let parts = 0;
+  for (let i = 0; i < count; i++) {
+    const e = elements[i];
+    elementRowStart[i + 1] = elementRowStart[i] + (e ? e.start.length : 0);
+    if (e) parts += e.z.length;
+  }
+  const partStart = new Int32Array(elementRowStart[count]);
+  const partZ = new Uint8Array(parts);
+  const partWeight = new Float64Array(parts);
+  let at = 0;
+  for (let i = 0; i < count; i++) {
+    const e = elements[i];
+    if (!e) continue;
+    partStart.set(e.start, elementRowStart[i]);
+    partZ.set(e.z, at);
+    partWeight.set(e.weight, at);
+    at += e.z.length;
+  }
+  return { k, count, rowStart, rows, weights, amd: amds, errors, elementRowStart, partStart, partZ, partWeight };
 }
 
 /**
@@ -256,17 +238,29 @@ export function invariantsOfChunk(chunk: PackedSets): PackedInvariants {
 export function unpackInvariants(p: PackedInvariants): Array<Invariants | { error: string }> {
   const out: Array<Invariants | { error: string }> = [];
   const k = p.k;
+  let part = 0;
   for (let i = 0; i < p.count; i++) {
+    const e0 = p.elementRowStart[i];
+    const e1 = p.elementRowStart[i + 1];
+    let elements: RowElements | undefined;
+    if (e1 > e0) {
+      const start = p.partStart.slice(e0, e1);
+      const parts = start[start.length - 1];
+      elements = { start, z: p.partZ.slice(part, part + parts), weight: p.partWeight.slice(part, part + parts) };
+      part += parts;
+    }
     if (p.errors[i] !== '') {
       out.push({ error: p.errors[i] });
       continue;
     }
     const a = p.rowStart[i];
     const b = p.rowStart[i + 1];
-    out.push({
+    const inv: Invariants = {
       pdd: { k, rows: p.rows.slice(a * k, b * k), weights: p.weights.slice(a, b) },
       amd: p.amd.slice(i * k, (i + 1) * k),
-    });
+    };
+    if (elements) inv.elements = elements;
+    out.push(inv);
   }
   return out;
 }

@@ -14,7 +14,11 @@
 // the pass solves the first unsettled structures' EMDs itself, in order, instead.
 //
 // With composition classes (equal class = may be duplicates), a structure only joins a kept structure of its own
-// class; the nearest structure of another class within the tolerance (any status) is reported beside.
+// class; every pair of different classes within the tolerance is solved and reported beside (the flags stage
+// names each structure's nearest one).
+//
+// Also here: every pair within a radius (`closePairs`), for what needs them all (the tolerance chosen from the
+// run's own gap, a collapse whose element check refused a merge).
 import { chunkRanges, type WorkerPool } from '../parallel/pool.js';
 import { candidatesChunk, closestChunk, type CandidateLists, type CandidatesTask, type ClosestResult, type ClosestTask } from '../metric/candidates.js';
 import type { PackedSet, SortedIndex } from '../metric/packed.js';
@@ -45,7 +49,11 @@ export interface DuplicateResult {
   /** Per item: the nearest item of another class within the tolerance (-1 if none), and its EMD. */
   otherClass: Int32Array;
   otherClassDistance: Float64Array;
+  /** Every pair of items of different classes within the tolerance (smaller index first), with its EMD. */
+  otherPairs: { i: Int32Array; j: Int32Array; d: Float64Array };
+  /** EMDs solved by the search itself, and by the pass over pairs of different classes. */
   emdEvaluations: number;
+  otherClassEmdEvaluations: number;
   rounds: number;
 }
 
@@ -222,6 +230,10 @@ export async function findDuplicates(q: DuplicateSearch): Promise<DuplicateResul
   // The nearest structure of another class within the tolerance, for every structure (one parallel pass).
   const otherClass = new Int32Array(n).fill(-1);
   const otherClassDistance = new Float64Array(n).fill(NaN);
+  let otherClassEmdEvaluations = 0;
+  const oi: number[] = [];
+  const oj: number[] = [];
+  const od: number[] = [];
   if (classOf) {
     const qs: number[] = [];
     const st: number[] = [0];
@@ -245,6 +257,7 @@ export async function findDuplicates(q: DuplicateSearch): Promise<DuplicateResul
       bound: Float64Array.from(bound.slice(st[a], st[b])),
       best: new Float64Array(b - a).fill(Infinity),
       limitAngstrom: tol,
+      all: true,
     }));
     const results = await pool.map<ClosestTask, ClosestResult>(URL_, 'closestChunk', jobs);
     results.forEach((res, j) => {
@@ -257,7 +270,8 @@ export async function findDuplicates(q: DuplicateSearch): Promise<DuplicateResul
           const t = res.other[e];
           const d = res.distance[e];
           store.set(s, t, d);
-          emdEvaluations++;
+          otherClassEmdEvaluations++;
+          if (s < t && d <= tol) (oi.push(s), oj.push(t), od.push(d));
           if (d < bd || (d === bd && t < bt)) {
             bd = d;
             bt = t;
@@ -270,7 +284,82 @@ export async function findDuplicates(q: DuplicateSearch): Promise<DuplicateResul
       }
     });
   }
-  return { keptOf, distanceToKept, kept, otherClass, otherClassDistance, emdEvaluations, rounds };
+  const otherPairs = { i: Int32Array.from(oi), j: Int32Array.from(oj), d: Float64Array.from(od) };
+  return { keptOf, distanceToKept, kept, otherClass, otherClassDistance, otherPairs, emdEvaluations, otherClassEmdEvaluations, rounds };
+}
+
+/**
+ * Every pair of items whose EMD is at most `radiusAngstrom`, each once (smaller index first, sorted), exactly:
+ * candidates by the AMD bound, then the exact EMD of each (from `store` when known; what is solved is added to it).
+ */
+export async function closePairs(
+  set: PackedSet,
+  index: SortedIndex,
+  radiusAngstrom: number,
+  store: PairStore,
+  pool: WorkerPool,
+): Promise<{ i: Int32Array; j: Int32Array; d: Float64Array; emdEvaluations: number }> {
+  const n = set.count;
+  // Each pair listed once, by its larger index (candidates of an item are the items of lower rank).
+  const rank = Int32Array.from({ length: n }, (_, i) => i);
+  const ranges = chunkRanges(n, Math.ceil(n / QUERIES_PER_JOB));
+  const tasks: CandidatesTask[] = ranges.map(([start, end]) => ({ set, index, rank, classOf: null, start, end, limitAngstrom: radiusAngstrom }));
+  const lists = gatherLists(n, await pool.map<CandidatesTask, CandidateLists>(URL_, 'candidatesChunk', tasks));
+  const pairs: Array<[number, number, number]> = [];
+  const qs: number[] = [];
+  const st: number[] = [0];
+  const cand: number[] = [];
+  const bound: number[] = [];
+  for (let s = 0; s < n; s++) {
+    const before = cand.length;
+    for (let e = lists.sameStart[s]; e < lists.sameStart[s + 1]; e++) {
+      const t = lists.same[e];
+      const d = store.get(s, t);
+      if (d >= 0) {
+        if (d <= radiusAngstrom) pairs.push([Math.min(s, t), Math.max(s, t), d]);
+        continue;
+      }
+      cand.push(t);
+      bound.push(lists.sameBound[e]);
+    }
+    if (cand.length > before) {
+      qs.push(s);
+      st.push(cand.length);
+    }
+  }
+  let emdEvaluations = 0;
+  if (qs.length > 0) {
+    const jobs: ClosestTask[] = splitRequests(st, REQUESTS_PER_JOB).map(([a, b]) => ({
+      set,
+      queries: Int32Array.from(qs.slice(a, b)),
+      start: Int32Array.from(st.slice(a, b + 1), (x) => x - st[a]),
+      cand: Int32Array.from(cand.slice(st[a], st[b])),
+      bound: Float64Array.from(bound.slice(st[a], st[b])),
+      best: new Float64Array(b - a).fill(Infinity),
+      limitAngstrom: radiusAngstrom,
+      all: true,
+    }));
+    const results = await pool.map<ClosestTask, ClosestResult>(URL_, 'closestChunk', jobs);
+    results.forEach((res, j) => {
+      const js = jobs[j].queries;
+      for (let r = 0; r < js.length; r++)
+        for (let e = res.start[r]; e < res.start[r + 1]; e++) {
+          const s = js[r];
+          const t = res.other[e];
+          const d = res.distance[e];
+          store.set(s, t, d);
+          emdEvaluations++;
+          if (d <= radiusAngstrom) pairs.push([Math.min(s, t), Math.max(s, t), d]);
+        }
+    });
+  }
+  pairs.sort((x, y) => x[0] - y[0] || x[1] - y[1]);
+  return {
+    i: Int32Array.from(pairs, (p) => p[0]),
+    j: Int32Array.from(pairs, (p) => p[1]),
+    d: Float64Array.from(pairs, (p) => p[2]),
+    emdEvaluations,
+  };
 }
 
 /** Per-item candidate lists from the jobs' chunks (which come in sorted-key order). */

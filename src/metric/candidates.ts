@@ -107,6 +107,8 @@ export interface ClosestTask {
   /** Per query: the smallest EMD already known among its candidates (Infinity if none). */
   best: Float64Array;
   limitAngstrom: number;
+  /** Solve every candidate whose bound is within the limit, not only those that may still be the nearest. */
+  all?: boolean;
 }
 
 /** EMDs solved, per query: pairs (queries[r], other[e]) for e in start[r] .. start[r+1]-1. */
@@ -118,7 +120,8 @@ export interface ClosestResult {
 
 /**
  * For each query, exact EMDs to its candidates in the given order until the next bound exceeds the smaller of the
- * limit and the best distance found (widened for rounding, so an equal distance is never skipped).
+ * limit and the best distance found (widened for rounding, so an equal distance is never skipped); with `all`,
+ * until it exceeds the limit.
  */
 export function closestChunk(task: ClosestTask): ClosestResult {
   const { set, queries, start, cand, bound, limitAngstrom } = task;
@@ -127,14 +130,14 @@ export function closestChunk(task: ClosestTask): ClosestResult {
   const distance: number[] = [];
   for (let r = 0; r < queries.length; r++) {
     const s = queries[r];
-    let best = task.best[r];
+    let best = task.all ? Infinity : task.best[r];
     for (let e = start[r]; e < start[r + 1]; e++) {
       if (bound[e] > widen(Math.min(limitAngstrom, best))) break;
       const t = cand[e];
       const d = emdItems(set, s, set, t, set.columns);
       other.push(t);
       distance.push(d);
-      if (d < best) best = d;
+      if (d < best && !task.all) best = d;
     }
     outStart[r + 1] = other.length;
   }

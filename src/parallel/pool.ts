@@ -7,12 +7,14 @@ import { createRequire } from 'node:module';
 import { dirname, join } from 'node:path';
 import { describeLargeViews } from './large-views.js';
 
-export interface PoolOptions {
+export interface PoolOptions<O = unknown> {
   /** Number of worker threads; 1 runs everything on the calling thread. Default: available cores. */
   threads?: number;
   /** Called after each input finishes, with the count done so far. */
   onProgress?: (done: number, total: number) => void;
-  /** An open pool to run on (its thread count wins); default: a pool started for this call and closed after it. */
+  /** Called with each result as soon as it is in (results may arrive out of input order). */
+  onResult?: (index: number, result: O) => void;
+  /** An open pool to run on (its thread count wins); default: threads started for this call and stopped after it. */
   pool?: WorkerPool;
 }
 
@@ -30,127 +32,181 @@ export async function mapInWorkers<I, O>(
   moduleUrl: string,
   fnName: string,
   inputs: readonly I[],
-  options: PoolOptions = {},
+  options: PoolOptions<O> = {},
 ): Promise<O[]> {
-  if (options.pool) return options.pool.map<I, O>(moduleUrl, fnName, inputs, options.onProgress);
-  const pool = new WorkerPool(Math.max(1, Math.min(options.threads ?? defaultThreads(), inputs.length)));
+  if (options.pool) return options.pool.map<I, O>(moduleUrl, fnName, inputs, options.onProgress, options.onResult);
+  const threads = Math.max(1, Math.min(options.threads ?? defaultThreads(), inputs.length));
+  const results = new Array<O>(inputs.length);
+  if (inputs.length === 0) return results;
+  let done = 0;
+  const finish = (i: number, out: O) => {
+    results[i] = out;
+    done++;
+    options.onResult?.(i, out);
+    options.onProgress?.(done, inputs.length);
+  };
+  if (threads === 1) {
+    const fn = await loadExport<I, O>(moduleUrl, fnName);
+    for (let i = 0; i < inputs.length; i++) finish(i, await fn(inputs[i]));
+    return results;
+  }
+  const pool = startThreadPool(threads);
   try {
-    return await pool.map<I, O>(moduleUrl, fnName, inputs, options.onProgress);
+    // The pool runs the inputs in order, one per free thread; the first failure ends the call.
+    await Promise.all(inputs.map((input, i) => pool.run<I, O>(moduleUrl, fnName, input).then((out) => finish(i, out))));
   } finally {
     await pool.close();
   }
+  return results;
 }
 
-interface Job {
+/** Import `fnName` from `moduleUrl` on the calling thread. */
+export async function loadExport<I, O>(moduleUrl: string, fnName: string): Promise<(input: I) => O | Promise<O>> {
+  const mod = (await import(moduleUrl)) as Record<string, (input: I) => O | Promise<O>>;
+  const fn = mod[fnName];
+  if (typeof fn !== 'function') throw new Error(`${moduleUrl} has no export named ${fnName}`);
+  return fn;
+}
+
+/** Long-lived worker threads that run one call at a time each, in the order the calls were made. */
+export interface ThreadPool {
+  readonly threads: number;
+  /** Run `moduleUrl`'s export `fnName` on `input` in the next free thread. */
+  run<I, O>(moduleUrl: string, fnName: string, input: I): Promise<O>;
+  /** Stop every thread; calls still waiting or running are rejected. */
+  close(): Promise<void>;
+}
+
+interface PoolCall {
   moduleUrl: string;
   fnName: string;
   input: unknown;
-  done: (result: unknown) => void;
-  fail: (err: Error) => void;
+  resolve: (out: unknown) => void;
+  reject: (err: Error) => void;
 }
 
 /**
- * Worker threads kept for many calls (a run of sift starts them once). Work from several `map` calls at once is
- * queued and served in order by whichever thread is free. With one thread everything runs on the calling thread.
+ * Start `threads` worker threads that stay up between calls (the queue worker runs one job after another on them,
+ * so its own event loop stays free to keep the queue's job locks alive). A thread that dies fails its call and is
+ * replaced by a fresh one.
+ */
+export function startThreadPool(threads: number): ThreadPool {
+  const waiting: PoolCall[] = [];
+  const idle: Worker[] = [];
+  const busy = new Map<Worker, PoolCall>();
+  let closed = false;
+  let nextId = 0;
+
+  const dispatch = () => {
+    while (!closed && waiting.length > 0) {
+      let w = idle.pop();
+      if (!w) {
+        if (busy.size + idle.length >= threads) return;
+        w = spawn();
+      }
+      const call = waiting.shift()!;
+      busy.set(w, call);
+      w.postMessage({ id: nextId++, moduleUrl: call.moduleUrl, fnName: call.fnName, input: describeLargeViews(call.input) });
+    }
+  };
+  const release = (w: Worker, fail: Error | null, result?: unknown) => {
+    const call = busy.get(w);
+    busy.delete(w);
+    if (call) {
+      if (fail) call.reject(fail);
+      else call.resolve(result);
+    }
+  };
+  const spawn = (): Worker => {
+    const w = startWorker();
+    w.on('message', (msg: { id: number; result?: unknown; error?: string }) => {
+      release(w, msg.error !== undefined ? new Error(msg.error) : null, msg.result);
+      if (!closed) {
+        idle.push(w);
+        dispatch();
+      }
+    });
+    const lost = (err: Error) => {
+      if (closed) return;
+      const at = idle.indexOf(w);
+      if (at >= 0) idle.splice(at, 1);
+      if (!busy.has(w)) return;
+      release(w, err);
+      void w.terminate();
+      dispatch();
+    };
+    w.on('error', lost);
+    w.on('exit', (code) => lost(new Error(`a worker thread stopped (exit code ${code})`)));
+    return w;
+  };
+
+  return {
+    threads,
+    run<I, O>(moduleUrl: string, fnName: string, input: I): Promise<O> {
+      if (closed) return Promise.reject(new Error('the thread pool is closed'));
+      return new Promise<O>((resolve, reject) => {
+        waiting.push({ moduleUrl, fnName, input, resolve: resolve as (out: unknown) => void, reject });
+        dispatch();
+      });
+    },
+    async close() {
+      if (closed) return;
+      closed = true;
+      const err = new Error('the thread pool was closed before the call finished');
+      for (const call of waiting.splice(0)) call.reject(err);
+      const all = [...idle.splice(0), ...busy.keys()];
+      for (const call of busy.values()) call.reject(err);
+      busy.clear();
+      await Promise.all(all.map((w) => w.terminate()));
+    },
+  };
+}
+
+/**
+ * Worker threads kept for a whole run (sift starts them at first use and stops them at the end), so that each
+ * stage's jobs do not pay for starting threads and importing modules again. Several `map` calls at once share the
+ * threads, in the order they were made. With one thread everything runs on the calling thread.
  */
 export class WorkerPool {
   readonly threads: number;
-  private workers: Worker[] = [];
-  private idle: Worker[] = [];
-  private queue: Job[] = [];
-  private running = new Map<Worker, Job>();
-  private broken: Error | null = null;
+  private pool: ThreadPool | null = null;
 
   constructor(threads: number) {
     this.threads = Math.max(1, Math.floor(threads));
   }
 
-  async map<I, O>(moduleUrl: string, fnName: string, inputs: readonly I[], onProgress?: (done: number, total: number) => void): Promise<O[]> {
+  async map<I, O>(
+    moduleUrl: string,
+    fnName: string,
+    inputs: readonly I[],
+    onProgress?: (done: number, total: number) => void,
+    onResult?: (index: number, result: O) => void,
+  ): Promise<O[]> {
     const results = new Array<O>(inputs.length);
+    let done = 0;
+    const finish = (i: number, out: O) => {
+      results[i] = out;
+      done++;
+      onResult?.(i, out);
+      onProgress?.(done, inputs.length);
+    };
     if (inputs.length === 0) return results;
     if (this.threads === 1) {
-      const mod = (await import(moduleUrl)) as Record<string, (input: I) => O | Promise<O>>;
-      const fn = mod[fnName];
-      if (typeof fn !== 'function') throw new Error(`${moduleUrl} has no export named ${fnName}`);
-      for (let i = 0; i < inputs.length; i++) {
-        results[i] = await fn(inputs[i]);
-        onProgress?.(i + 1, inputs.length);
-      }
+      const fn = await loadExport<I, O>(moduleUrl, fnName);
+      for (let i = 0; i < inputs.length; i++) finish(i, await fn(inputs[i]));
       return results;
     }
-    if (this.broken) throw this.broken;
-    let done = 0;
-    await new Promise<void>((resolve, reject) => {
-      let failed = false;
-      inputs.forEach((input, id) => {
-        this.queue.push({
-          moduleUrl,
-          fnName,
-          input,
-          done: (result) => {
-            if (failed) return;
-            results[id] = result as O;
-            done++;
-            onProgress?.(done, inputs.length);
-            if (done === inputs.length) resolve();
-          },
-          fail: (err) => {
-            if (failed) return;
-            failed = true;
-            reject(err);
-          },
-        });
-      });
-      this.start(Math.min(this.threads, this.workers.length + this.queue.length));
-      this.feed();
-    });
+    this.pool ??= startThreadPool(this.threads);
+    const pool = this.pool;
+    await Promise.all(inputs.map((input, i) => pool.run<I, O>(moduleUrl, fnName, input).then((out) => finish(i, out))));
     return results;
   }
 
-  /** Stop every thread; queued work fails. */
+  /** Stop every thread; calls still waiting or running are rejected. The pool starts threads again if used after. */
   async close(): Promise<void> {
-    const err = new Error('the worker pool was closed');
-    for (const job of this.queue) job.fail(err);
-    this.queue = [];
-    await Promise.all(this.workers.map((w) => w.terminate()));
-    this.workers = [];
-    this.idle = [];
-  }
-
-  private start(count: number): void {
-    while (this.workers.length < count) {
-      const w = startWorker();
-      this.workers.push(w);
-      this.idle.push(w);
-      w.on('message', (msg: { result?: unknown; error?: string }) => {
-        const job = this.running.get(w);
-        this.running.delete(w);
-        this.idle.push(w);
-        if (job) {
-          if (msg.error !== undefined) job.fail(new Error(msg.error));
-          else job.done(msg.result);
-        }
-        this.feed();
-      });
-      w.on('error', (err) => {
-        // A thread that died takes its job down with it; the pool refuses further work.
-        this.broken = err instanceof Error ? err : new Error(String(err));
-        const job = this.running.get(w);
-        this.running.delete(w);
-        job?.fail(this.broken);
-        for (const j of this.queue) j.fail(this.broken);
-        this.queue = [];
-      });
-    }
-  }
-
-  private feed(): void {
-    while (this.idle.length > 0 && this.queue.length > 0) {
-      const w = this.idle.pop()!;
-      const job = this.queue.shift()!;
-      this.running.set(w, job);
-      w.postMessage({ moduleUrl: job.moduleUrl, fnName: job.fnName, input: describeLargeViews(job.input) });
-    }
+    const pool = this.pool;
+    this.pool = null;
+    await pool?.close();
   }
 }
 

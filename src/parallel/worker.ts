@@ -5,7 +5,7 @@ import { restoreLargeViews } from './large-views.js';
 type Fn = (input: unknown) => unknown;
 const modules = new Map<string, Record<string, Fn>>();
 
-parentPort!.on('message', async (msg: { moduleUrl: string; fnName: string; input: unknown }) => {
+parentPort!.on('message', async (msg: { id: number; moduleUrl: string; fnName: string; input: unknown }) => {
   try {
     let mod = modules.get(msg.moduleUrl);
     if (!mod) {
@@ -15,8 +15,8 @@ parentPort!.on('message', async (msg: { moduleUrl: string; fnName: string; input
     const fn = mod[msg.fnName];
     if (typeof fn !== 'function') throw new Error(`${msg.moduleUrl} has no export named ${msg.fnName}`);
     const result = await fn(restoreLargeViews(msg.input));
-    parentPort!.postMessage({ result });
+    parentPort!.postMessage({ id: msg.id, result });
   } catch (err) {
-    parentPort!.postMessage({ error: err instanceof Error ? `${err.message}\n${err.stack ?? ''}` : String(err) });
+    parentPort!.postMessage({ id: msg.id, error: err instanceof Error ? `${err.message}\n${err.stack ?? ''}` : String(err) });
   }
 });

@@ -5,6 +5,9 @@
 import type { ConvergenceCurve, Embedding, Landscape, SiftParameters, Status } from '../landscape/schema.js';
 import { colourClasses, FAMILY_COLOURS, stepColourscale, UNASSIGNED_COLOUR, VIRIDIS_STOPS } from './colours.js';
 import { logHistogram, type LogHistogram } from './log-histogram.js';
+import { symbolSpellings } from '../geometry/symbol-spellings.js';
+import { formatWrittenIn } from '../landscape/written-in.js';
+import { FLAG_MEANINGS } from '../landscape/flags.js';
 
 /** Number of colour classes the neighbourhood lines are binned into (one plot trace each). */
 export const EDGE_CLASSES = 8;
@@ -26,6 +29,14 @@ export interface StructureColumns {
   density: Array<number | null>;
   atoms: Array<number | null>;
   spaceGroup: Array<string | null>;
+  /** International Tables number of `spaceGroup` (null when unknown). */
+  sgNumber: Array<number | null>;
+  /** 1 when the group was detected in the atoms, 0 when the declared one is reported, null for rejected blocks. */
+  sgDetected: Array<number | null>;
+  /** The group the file declares (one spelling per setting). */
+  sgDeclared: Array<string | null>;
+  /** Kept structures: the declared groups of the members, 'P1 x 7; P21/c x 2'; '' for the others. */
+  writtenIn: string[];
   z: Array<number | null>;
   zPrime: Array<number | null>;
   /** Index into `SiftPageData.formulas` (the structure's formulas joined with ", "). */
@@ -38,6 +49,14 @@ export interface StructureColumns {
   nnDistance: Array<number | null>;
   members: number[];
   notes: string[][];
+  /** Index into `SiftPageData.flagSets` (the row's flag codes joined with a space; '' for none). */
+  flags: number[];
+  /** Index into `SiftPageData.formulas` of the compared composition ('' when unknown). */
+  composition: number[];
+  otherChemistryIndex: Array<number | null>;
+  otherChemistryDistance: Array<number | null>;
+  energyOffset: Array<number | null>;
+  flatPartnerIndices: Array<number[] | null>;
 }
 
 export interface EdgeClasses {
@@ -60,6 +79,13 @@ export interface SiftPageData {
   statusCodes: readonly Status[];
   files: string[];
   formulas: string[];
+  /** Distinct flag sets of the rows (joined codes), '' first. */
+  flagSets: string[];
+  /** Flag code -> what it means (src/landscape/flags.ts), and the run's counts. */
+  flagMeanings: Record<string, string>;
+  flagCounts: Landscape['flagCounts'];
+  /** How the duplicate tolerance was chosen (null when given). */
+  toleranceChoice: Landscape['toleranceChoice'];
   s: StructureColumns;
   kept: number[];
   /** Flat [i, j, EMD Å] triplets. */
@@ -77,6 +103,15 @@ export interface SiftPageData {
   amdStepAngstrom: number;
   nnHistogram: LogHistogram;
   convergence: ConvergenceCurve | null;
+  /** Per space-group number (all 230): its common spellings (lower case, ' | ' between), for the table filter. */
+  groupSpellings: Array<[number, string]>;
+}
+
+let spellingsOfAll: Array<[number, string]> | null = null;
+/** The spellings of the 230 groups (about 20 kB), built once. */
+function allSpellings(): Array<[number, string]> {
+  if (spellingsOfAll === null) spellingsOfAll = Array.from({ length: 230 }, (_, i) => [i + 1, symbolSpellings(i + 1).join(' | ')]);
+  return spellingsOfAll;
 }
 
 /** Reshape a landscape for the page. Throws with a clear message when the landscape is inconsistent. */
@@ -89,9 +124,12 @@ export function buildSiftPageData(landscape: Landscape, title: string): SiftPage
   const formulaIds = new Map<string, number>();
   const s: StructureColumns = {
     id: [], file: [], block: [], line: [], status: [], reason: [], energy: [], energyRel: [], density: [],
-    atoms: [], spaceGroup: [], z: [], zPrime: [], formula: [], keptIndex: [], distanceToKept: [], family: [],
+    atoms: [], spaceGroup: [], sgNumber: [], sgDetected: [], sgDeclared: [], writtenIn: [], z: [], zPrime: [], formula: [], keptIndex: [], distanceToKept: [], family: [],
     nearestIndex: [], nearestDistance: [], nnDistance: [], members: [], notes: [],
+    flags: [], composition: [], otherChemistryIndex: [], otherChemistryDistance: [], energyOffset: [], flatPartnerIndices: [],
   };
+  const flagSets: string[] = [''];
+  const flagSetIds = new Map<string, number>([['', 0]]);
   for (let i = 0; i < n; i++) {
     const r = rows[i]!;
     if (r.index !== i) throw new Error(`landscape: structures[${i}] has index ${r.index}; structures must be in input order`);
@@ -108,6 +146,11 @@ export function buildSiftPageData(landscape: Landscape, title: string): SiftPage
     s.density.push(sig(r.densityGPerCm3));
     s.atoms.push(r.atoms);
     s.spaceGroup.push(r.spaceGroup);
+    const sym = r.symmetry ?? null;
+    s.sgNumber.push(sym?.number ?? null);
+    s.sgDetected.push(sym === null ? null : sym.source === 'detected' ? 1 : 0);
+    s.sgDeclared.push(sym?.declared ?? null);
+    s.writtenIn.push(formatWrittenIn(r.writtenIn ?? []));
     s.z.push(r.z);
     s.zPrime.push(r.zPrime);
     s.formula.push(intern((r.formulas ?? []).join(', '), formulas, formulaIds));
@@ -119,6 +162,12 @@ export function buildSiftPageData(landscape: Landscape, title: string): SiftPage
     s.nnDistance.push(sig(r.nnDistance));
     s.members.push(r.members);
     s.notes.push(r.notes ?? []);
+    s.flags.push(intern((r.flags ?? []).join(' '), flagSets, flagSetIds));
+    s.composition.push(intern(r.composition ?? '', formulas, formulaIds));
+    s.otherChemistryIndex.push(r.otherChemistryIndex ?? null);
+    s.otherChemistryDistance.push(sig(r.otherChemistryDistance));
+    s.energyOffset.push(sig(r.energyOffset));
+    s.flatPartnerIndices.push(r.flatPartnerIndices && r.flatPartnerIndices.length > 0 ? r.flatPartnerIndices : null);
   }
   for (const k of landscape.kept) {
     if (!(k >= 0 && k < n) || rows[k]!.status !== 'kept') throw new Error(`landscape: kept entry ${k} is not a kept structure`);
@@ -156,8 +205,13 @@ export function buildSiftPageData(landscape: Landscape, title: string): SiftPage
     counts: landscape.counts,
     lowestEnergy: landscape.lowestEnergy,
     statusCodes: STATUS_CODES,
+    groupSpellings: allSpellings(),
     files,
     formulas,
+    flagSets,
+    flagMeanings: FLAG_MEANINGS,
+    flagCounts: landscape.flagCounts ?? { otherChemistryPairs: 0, otherChemistry: 0, energyMismatch: 0, flatMinimumPairs: 0, flatMinimum: 0 },
+    toleranceChoice: landscape.toleranceChoice ?? null,
     s,
     kept: landscape.kept,
     edges,

@@ -1,92 +1,102 @@
-// Stage "invariants": PDD and AMD of every structure in the window, from the cache or computed across worker
-// threads, written straight into one store that the comparison stages share (each structure's PDD and AMD are
-// views of it, never copies). A structure whose invariants cannot be computed is rejected with the reason; the
-// others go on. The cache keeps what this run used (and older entries of other blocks, up to the size of this run
-// again).
+// Stage "invariants": PDD and AMD of every structure in the window, from the cache, from the periodic-set jobs
+// (which compute them for every block the window cannot leave out), or, for the few the window let in late, by
+// another round of those jobs. A structure whose invariants cannot be computed is rejected with the reason; the
+// others go on. The cache keeps what this run used (and older entries of other blocks, up to the size of this
+// run again).
 import { join } from 'node:path';
-import { computeInvariantsInto, type InvariantsTarget } from '../../invariants/batch.js';
-import { cacheFileName, saveCache, type CacheEntry } from '../cache.js';
-import { buildIndex, packStore } from '../../metric/packed.js';
 import { amd as computeAmd } from '../../invariants/amd.js';
+import { cacheFileName, saveCache, type CacheEntry } from '../cache.js';
+import { buildIndex, packItems } from '../../metric/packed.js';
+import { runBlockJobs } from './periodic-sets.js';
 import { reject, type SiftState, type Work } from './state.js';
 
 export async function invariantsStage(s: SiftState): Promise<void> {
-  const k = s.params.k;
-  const shared = s.threads > 1;
-  // One slot per structure: its cached PDD's rows, or as many rows as its asymmetric unit has points (a PDD has
-  // at most that many; rows it leaves unused keep weight 0 and carry nothing).
-  const slots = new Int32Array(s.active.length + 1);
-  const toCompute: number[] = [];
-  s.active.forEach((w, i) => {
+  const late: Work[] = [];
+  for (const w of s.active) {
     const hit = s.cache.get(w.key);
-    if (!hit) toCompute.push(i);
-    slots[i + 1] = slots[i] + (hit ? hit.pdd.weights.length : s.prepared.get(w)!.asym.length);
-  });
-  const total = slots[s.active.length];
-  const target: InvariantsTarget = {
-    k,
-    rows: shared ? new Float64Array(new SharedArrayBuffer(Math.max(1, total * k) * 8), 0, total * k) : new Float64Array(total * k),
-    weights: shared ? new Float64Array(new SharedArrayBuffer(Math.max(1, total) * 8), 0, total) : new Float64Array(total),
-    amd: new Float64Array(shared ? new SharedArrayBuffer(Math.max(1, s.active.length * k) * 8) : new ArrayBuffer(s.active.length * k * 8)),
-    rowAt: Int32Array.from(toCompute, (i) => slots[i]),
-    amdAt: Int32Array.from(toCompute),
-  };
-  const counts = new Int32Array(s.active.length);
-  s.active.forEach((w, i) => {
-    const hit = s.cache.get(w.key);
-    if (!hit) return;
-    target.rows.set(hit.pdd.rows, slots[i] * k);
-    target.weights.set(hit.pdd.weights, slots[i]);
-    target.amd.set(computeAmd(hit.pdd), i * k);
-    counts[i] = hit.pdd.weights.length;
-    s.cacheHits++;
-  });
-  s.cacheMisses = toCompute.length;
-  if (toCompute.length > 0) {
-    s.progress.stage('computing invariants', toCompute.length);
-    const sets = toCompute.map((i) => s.prepared.get(s.active[i])!);
-    const results = await computeInvariantsInto(sets, target, { threads: s.threads, pool: s.pool, onProgress: (d: number) => s.progress.tick(d) });
-    results.forEach((r, j) => {
-      const i = toCompute[j];
-      const w = s.active[i];
-      if (typeof r !== 'number') reject(w, `invariants could not be computed: ${r.error}`);
-      else counts[i] = r;
-    });
+    if (hit) {
+      w.pdd = hit.pdd;
+      w.elements = hit.elements;
+      s.cacheHits++;
+    } else if (!s.computed.has(w)) late.push(w);
+  }
+  if (late.length > 0) {
+    s.progress.stage('computing invariants', late.length);
+    await runBlockJobs(s, late, () => true, () => {});
     s.progress.done();
   }
-  // Views of the store (the AMD as the invariants give it: weighted column means).
-  s.active.forEach((w, i) => {
-    if (w.row.status === 'rejected') return;
-    const a = slots[i];
-    w.pdd = { k, rows: target.rows.subarray(a * k, (a + counts[i]) * k), weights: target.weights.subarray(a, a + counts[i]) };
-    w.amd = target.amd.subarray(i * k, (i + 1) * k);
-  });
-  for (const i of toCompute) {
-    const w = s.active[i];
-    if (w.row.status === 'rejected') continue;
-    s.cache.set(w.key, { pdd: w.pdd!, atoms: w.row.atoms ?? 0, facts: w.facts, notes: w.setNotes });
+  let computed = 0;
+  for (const w of s.active) {
+    const r = s.computed.get(w);
+    if (!r) continue;
+    computed++;
+    if ('error' in r) reject(w, `invariants could not be computed: ${r.error}`);
+    else {
+      w.pdd = r.pdd;
+      w.amd = r.amd;
+      w.elements = r.elements ?? null;
+      if (!w.elements) throw new Error(`internal: no elements for the rows of ${w.row.id}`);
+    }
   }
+  s.cacheMisses = computed;
   s.items = s.active.filter((w) => w.row.status !== 'rejected');
-  // The periodic sets are not needed after this stage.
-  s.prepared.clear();
-  // Every compared structure packed once for the comparison stages: the store itself, item p = items[p] (a slot of
-  // a rejected structure between two items is rows of weight 0 at the end of the one before).
-  const position = new Map<Work, number>();
-  s.active.forEach((w, i) => position.set(w, i));
-  const rowStart = new Int32Array(s.items.length + 1);
-  s.items.forEach((w, p) => (rowStart[p] = slots[position.get(w)!]));
-  rowStart[s.items.length] = s.items.length > 0 ? slots[position.get(s.items[s.items.length - 1])! + 1] : 0;
-  s.set = packStore(target.rows, target.weights, rowStart, k, shared);
+  for (const w of s.items) if (!w.amd) w.amd = computeAmd(w.pdd!);
+  if (s.cacheDir && (computed > 0 || s.cacheFactsChanged)) saveInvariantsCache(s, s.items);
+  else if (s.cacheDir) s.cacheFile = join(s.cacheDir, cacheFileName(s.cacheParams));
+  // Invariants of structures outside the window are not needed after this stage.
+  s.computed.clear();
+  packCompared(s);
+}
+
+/**
+ * Every compared structure packed once for the comparison stages (item p of `s.set` is items[p]), in shared memory
+ * when worker threads read it, with the AMD index the searches sweep. Each structure's PDD and AMD then become
+ * views of that store, and the cache's copies are let go, so a large run holds its PDDs once.
+ */
+function packCompared(s: SiftState): void {
+  const shared = s.threads > 1;
+  s.set = packItems(s.items.map((w) => ({ pdd: w.pdd! })), shared);
+  const set = s.set;
+  const k = set.k;
+  s.items.forEach((w, p) => {
+    w.pdd = { k, rows: set.rows.subarray(set.rowStart[p] * k, set.rowStart[p + 1] * k), weights: set.weights.subarray(set.rowStart[p], set.rowStart[p + 1]) };
+    w.amd = set.amd.subarray(p * k, (p + 1) * k);
+  });
+  s.cache.clear();
+  s.index = buildIndex(set, shared);
   const rowCounts = s.items.map((w) => w.pdd!.weights.length).sort((x, y) => x - y);
   if (rowCounts.length > 0) {
     s.counters['PDD rows: median'] = rowCounts[rowCounts.length >> 1];
     s.counters['PDD rows: largest'] = rowCounts[rowCounts.length - 1];
   }
-  s.index = buildIndex(s.set, shared);
-  if (s.cacheDir && toCompute.length > 0) {
-    const keep = new Map<string, CacheEntry>();
-    for (const w of s.items) keep.set(w.key, s.cache.get(w.key)!);
-    for (const [key, e] of s.cache) if (keep.size < 2 * s.items.length && !keep.has(key)) keep.set(key, e);
-    s.cacheFile = saveCache(s.cacheDir, s.cacheParams, keep);
-  } else if (s.cacheDir) s.cacheFile = join(s.cacheDir, cacheFileName(s.cacheParams));
+}
+
+/**
+ * Save the cache: first the entries of `first` (this run's compared structures), then every invariant computed
+ * in this run, then older entries, up to twice as many entries as this run has blocks. Also called with what is done when a run
+ * fails part way (a queue gone away), so that a re-run resumes from there.
+ */
+export function saveInvariantsCache(s: SiftState, first: Work[]): void {
+  const keep = new Map<string, CacheEntry>();
+  const limit = 2 * s.work.length;
+  const entryOf = (w: Work): CacheEntry | undefined => {
+    const r = s.computed.get(w);
+    if (r && !('error' in r) && r.elements) {
+      return {
+        pdd: r.pdd, atoms: w.row.atoms ?? 0, facts: w.facts, notes: w.setNotes, composition: w.row.composition ?? '', elements: r.elements,
+        symmetryToleranceAngstrom: s.params.symmetryToleranceAngstrom,
+      };
+    }
+    return s.cache.get(w.key);
+  };
+  for (const w of first) {
+    const e = entryOf(w);
+    if (e) keep.set(w.key, e);
+  }
+  for (const w of s.computed.keys()) {
+    const e = keep.has(w.key) ? undefined : entryOf(w);
+    if (e) keep.set(w.key, e);
+  }
+  for (const [key, e] of s.cache) if (keep.size < limit && !keep.has(key)) keep.set(key, e);
+  s.cacheFile = saveCache(s.cacheDir!, s.cacheParams, keep);
 }

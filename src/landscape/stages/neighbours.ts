@@ -24,7 +24,7 @@ export async function neighboursStage(s: SiftState): Promise<void> {
   const { items, keptLocal, params } = s;
   const set = s.set!;
   const index = s.index!;
-  const found = s.duplicates!;
+  const found = s.collapsed!;
   s.progress.stage('nearest neighbours', items.length);
   const nKept = keptLocal.length;
   const kept = Int32Array.from(keptLocal);
