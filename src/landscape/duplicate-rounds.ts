@@ -248,41 +248,30 @@ export async function findDuplicates(q: DuplicateSearch): Promise<DuplicateResul
       }
       st.push(cand.length);
     }
-    const jobRanges = splitRequests(st, REQUESTS_PER_JOB);
-    const jobs: ClosestTask[] = jobRanges.map(([a, b]) => ({
-      set,
-      queries: Int32Array.from(qs.slice(a, b)),
-      start: Int32Array.from(st.slice(a, b + 1), (x) => x - st[a]),
-      cand: Int32Array.from(cand.slice(st[a], st[b])),
-      bound: Float64Array.from(bound.slice(st[a], st[b])),
-      best: new Float64Array(b - a).fill(Infinity),
-      limitAngstrom: tol,
-      all: true,
-    }));
-    const results = await pool.map<ClosestTask, ClosestResult>(URL_, 'closestChunk', jobs);
-    results.forEach((res, j) => {
-      const js = jobs[j].queries;
-      for (let r = 0; r < js.length; r++) {
-        const s = js[r];
-        let bd = Infinity;
-        let bt = -1;
-        for (let e = res.start[r]; e < res.start[r + 1]; e++) {
-          const t = res.other[e];
-          const d = res.distance[e];
-          store.set(s, t, d);
-          otherClassEmdEvaluations++;
-          if (s < t && d <= tol) (oi.push(s), oj.push(t), od.push(d));
-          if (d < bd || (d === bd && t < bt)) {
-            bd = d;
-            bt = t;
-          }
-        }
-        if (bt >= 0 && bd <= tol) {
-          otherClass[s] = bt;
-          otherClassDistance[s] = bd;
-        }
+    // Each query's nearest other-class structure: its solved pairs come in query order.
+    let at = -1;
+    let bd = Infinity;
+    let bt = -1;
+    const close = () => {
+      if (at >= 0 && bt >= 0 && bd <= tol) {
+        otherClass[at] = bt;
+        otherClassDistance[at] = bd;
+      }
+    };
+    otherClassEmdEvaluations = await solveAllWithin(set, qs, st, cand, bound, tol, store, pool, (q, t, d) => {
+      if (q !== at) {
+        close();
+        at = q;
+        bd = Infinity;
+        bt = -1;
+      }
+      if (q < t && d <= tol) (oi.push(q), oj.push(t), od.push(d));
+      if (d < bd || (d === bd && t < bt)) {
+        bd = d;
+        bt = t;
       }
     });
+    close();
   }
   const otherPairs = { i: Int32Array.from(oi), j: Int32Array.from(oj), d: Float64Array.from(od) };
   return { keptOf, distanceToKept, kept, otherClass, otherClassDistance, otherPairs, emdEvaluations, otherClassEmdEvaluations, rounds };
@@ -327,32 +316,9 @@ export async function closePairs(
       st.push(cand.length);
     }
   }
-  let emdEvaluations = 0;
-  if (qs.length > 0) {
-    const jobs: ClosestTask[] = splitRequests(st, REQUESTS_PER_JOB).map(([a, b]) => ({
-      set,
-      queries: Int32Array.from(qs.slice(a, b)),
-      start: Int32Array.from(st.slice(a, b + 1), (x) => x - st[a]),
-      cand: Int32Array.from(cand.slice(st[a], st[b])),
-      bound: Float64Array.from(bound.slice(st[a], st[b])),
-      best: new Float64Array(b - a).fill(Infinity),
-      limitAngstrom: radiusAngstrom,
-      all: true,
-    }));
-    const results = await pool.map<ClosestTask, ClosestResult>(URL_, 'closestChunk', jobs);
-    results.forEach((res, j) => {
-      const js = jobs[j].queries;
-      for (let r = 0; r < js.length; r++)
-        for (let e = res.start[r]; e < res.start[r + 1]; e++) {
-          const s = js[r];
-          const t = res.other[e];
-          const d = res.distance[e];
-          store.set(s, t, d);
-          emdEvaluations++;
-          if (d <= radiusAngstrom) pairs.push([Math.min(s, t), Math.max(s, t), d]);
-        }
-    });
-  }
+  const emdEvaluations = await solveAllWithin(set, qs, st, cand, bound, radiusAngstrom, store, pool, (q, t, d) => {
+    if (d <= radiusAngstrom) pairs.push([Math.min(q, t), Math.max(q, t), d]);
+  });
   pairs.sort((x, y) => x[0] - y[0] || x[1] - y[1]);
   return {
     i: Int32Array.from(pairs, (p) => p[0]),
@@ -360,6 +326,46 @@ export async function closePairs(
     d: Float64Array.from(pairs, (p) => p[2]),
     emdEvaluations,
   };
+}
+
+/**
+ * Exact EMDs of query qs[r] to every candidate cand[st[r] .. st[r+1]) whose bound is within `limit` (in parallel
+ * jobs), into `store` and handed to `onPair` query by query in the given query order. Returns how many were solved.
+ */
+async function solveAllWithin(
+  set: PackedSet,
+  qs: number[],
+  st: number[],
+  cand: number[],
+  bound: number[],
+  limit: number,
+  store: PairStore,
+  pool: WorkerPool,
+  onPair: (query: number, other: number, d: number) => void,
+): Promise<number> {
+  if (qs.length === 0) return 0;
+  const jobs: ClosestTask[] = splitRequests(st, REQUESTS_PER_JOB).map(([a, b]) => ({
+    set,
+    queries: Int32Array.from(qs.slice(a, b)),
+    start: Int32Array.from(st.slice(a, b + 1), (x) => x - st[a]),
+    cand: Int32Array.from(cand.slice(st[a], st[b])),
+    bound: Float64Array.from(bound.slice(st[a], st[b])),
+    best: new Float64Array(b - a).fill(Infinity),
+    limitAngstrom: limit,
+    all: true,
+  }));
+  const results = await pool.map<ClosestTask, ClosestResult>(URL_, 'closestChunk', jobs);
+  let solved = 0;
+  results.forEach((res, j) => {
+    const js = jobs[j].queries;
+    for (let r = 0; r < js.length; r++)
+      for (let e = res.start[r]; e < res.start[r + 1]; e++) {
+        store.set(js[r], res.other[e], res.distance[e]);
+        solved++;
+        onPair(js[r], res.other[e], res.distance[e]);
+      }
+  });
+  return solved;
 }
 
 /** Per-item candidate lists from the jobs' chunks (which come in sorted-key order). */
