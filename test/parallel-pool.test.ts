@@ -1,7 +1,8 @@
 import { describe, expect, it } from 'vitest';
-import { chunkRanges, mapInWorkers, startThreadPool } from '../src/parallel/pool.js';
+import { chunkRanges, mapInWorkers, startThreadPool, WorkerPool } from '../src/parallel/pool.js';
 
 const job = new URL('./fixtures/square.ts', import.meta.url).href;
+const viewJob = new URL('./fixtures/view-sum.ts', import.meta.url).href;
 
 describe('worker pool', () => {
   it('returns results in input order across two threads', async () => {
@@ -16,6 +17,35 @@ describe('worker pool', () => {
   it('passes a worker error to the caller', async () => {
     await expect(mapInWorkers<number, number>(job, 'square', [1, -1, 2], { threads: 2 })).rejects.toThrow(/negative input/);
   });
+  it('serves several calls at once and many calls in turn from one open pool, in input order', async () => {
+    const pool = new WorkerPool(2);
+    try {
+      const a = Array.from({ length: 23 }, (_, i) => i);
+      const b = Array.from({ length: 17 }, (_, i) => 100 + i);
+      const [ra, rb] = await Promise.all([pool.map<number, number>(job, 'square', a), pool.map<number, number>(job, 'square', b)]);
+      expect(ra).toEqual(a.map((x) => x * x));
+      expect(rb).toEqual(b.map((x) => x * x));
+      for (let round = 0; round < 3; round++) expect(await mapInWorkers<number, number>(job, 'square', [round, 7], { pool })).toEqual([round * round, 49]);
+      await expect(pool.map<number, number>(job, 'square', [2, -3])).rejects.toThrow(/negative input/);
+      // An error in one call leaves the pool usable.
+      expect(await pool.map<number, number>(job, 'square', [5])).toEqual([25]);
+    } finally {
+      await pool.close();
+    }
+  });
+  it('hands a worker typed arrays that lie beyond 4 GiB of shared memory whole (large-views.ts)', async () => {
+    // Node 20 cannot send such a view as it is (the message never arrives); the pool sends a description instead.
+    const sab = new SharedArrayBuffer(2 ** 32 + 64);
+    const view = new Float64Array(sab, 2 ** 32 + 8, 5);
+    view.set([1, 2, 3, 4, 5.5]);
+    const pool = new WorkerPool(2);
+    try {
+      const [facts] = await pool.map<{ view: Float64Array }, { length: number; byteOffset: number; sum: number }>(viewJob, 'viewFacts', [{ view }]);
+      expect(facts).toEqual({ length: 5, byteOffset: 2 ** 32 + 8, sum: 15.5 });
+    } finally {
+      await pool.close();
+    }
+  }, 60_000);
   it('hands each result over as it arrives, with its input position', async () => {
     const seen: Array<[number, number]> = [];
     await mapInWorkers<number, number>(job, 'square', [5, 6, 7], { threads: 2, onResult: (i, r) => seen.push([i, r]) });

@@ -48,15 +48,19 @@ describe('sift re-runs', () => {
     const c = await sift({ ...base, threads: 2, cacheDir, toleranceAngstrom: 0.08 });
     expect(c.cache).toMatchObject({ hits: gen.ids.length, misses: 0 });
     expect(c.landscape.parameters.toleranceAngstrom).toBe(0.08);
-    // The first run searched pairs within twice its tolerance (0.04 Å by default), so 0.08 Å needs no new search;
-    // here the kept set is unchanged too, so its neighbours and map come from the cache (4 kept structures are too few
-    // for families of 5, so no matrix is needed).
+    // Every EMD the first run solved is in the comparisons cache; here the kept set is unchanged too, so its
+    // neighbours and map come from the cache (4 kept structures are too few for families of 5, so no matrix is needed).
     expect(c.cache.reused).toEqual(['pairs', 'element distances', 'kept neighbours', 'metric map']);
     expect(c.landscape.counts.kept).toBe(a.landscape.counts.kept);
+    const exactSolved = (r: typeof a) => Object.entries(r.counters).reduce((n, [name, v]) => (name.includes('exact EMDs') ? n + v : n), 0);
+    expect(exactSolved(a)).toBeGreaterThan(0);
+    // Same tolerance again, other family options: the matrix is read from the pairs already solved, none is solved.
     const d = await sift({ ...base, threads: 2, cacheDir, toleranceAngstrom: 0.08, minFamilySize: 3 });
-    expect(d.cache.reused).toEqual(['pairs', 'element distances', 'kept neighbours', 'distance matrix', 'metric map']);
+    expect(d.cache.reused).toEqual(['pairs', 'element distances', 'kept neighbours', 'metric map']);
+    expect(exactSolved(d)).toBe(0);
     const e = await sift({ ...base, threads: 2, cacheDir, toleranceAngstrom: 0.06, minFamilySize: 3 });
     expect(e.cache.reused).toEqual(['pairs', 'element distances', 'kept neighbours', 'families', 'metric map']);
+    expect(exactSolved(e)).toBe(0);
     expect(e.landscape.structures.map((r) => r.family)).toEqual(d.landscape.structures.map((r) => r.family));
     // Cached invariants are the very numbers computed the first time.
     const ka = a.landscape.invariants.kept[0];

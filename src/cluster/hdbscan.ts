@@ -65,6 +65,13 @@ export interface LazyHdbscanOptions extends HdbscanOptions {
    * either point's k-th neighbour, which rules out most pairs before any bound is computed.
    */
   neighbours?: KnownNeighbours;
+  /**
+   * A dearer bracket of a distance, lower <= distance(i, j) <= upper (for PDDs, the merged-row EMD), asked before
+   * `distance` for a pair that the cheap floors did not rule out: when upper is at most the two core distances the
+   * mutual reachability is their maximum exactly, and when lower is at least the best value found the pair cannot
+   * improve it; only otherwise is `distance` called. Writes the bracket into `out`.
+   */
+  bracket?: (i: number, j: number, out: { lower: number; upper: number }) => void;
 }
 
 export interface LazyHdbscanResult extends HdbscanResult {
@@ -120,7 +127,7 @@ export function hdbscanLazy(
   }
   if (n < 2) return { ...trivialResult(n), distanceEvaluations: 0 };
   const counter = { evaluations: 0 };
-  const mst = primLazy(n, distance, lowerBound, coreDistances, graph ?? null, counter);
+  const mst = primLazy(n, distance, lowerBound, coreDistances, graph ?? null, counter, opts.bracket ?? null);
   return { ...labelsFromSpanningTree(mst, n, opts.minClusterSize), distanceEvaluations: counter.evaluations };
 }
 
@@ -202,7 +209,9 @@ function primLazy(
   core: Float64Array,
   graph: KnownNeighbours | null,
   counter: { evaluations: number },
+  bracket: ((i: number, j: number, out: { lower: number; upper: number }) => void) | null,
 ): SpanningTree {
+  const range = { lower: 0, upper: Infinity };
   const tree = allocTree(n);
   const inTree = new Uint8Array(n);
   // best[j]: smallest mutual reachability from j to the tree among the pairs looked at so far (exact
@@ -296,6 +305,16 @@ function primLazy(
       const q = ranked[t];
       if (candFloor[q] >= best[j]) break;
       const c = candFrom[q];
+      if (bracket) {
+        bracket(c, j, range);
+        const coreMax = core[c] > core[j] ? core[c] : core[j];
+        if (range.upper <= coreMax) {
+          // mutual reachability = max(core_c, core_j, d) with d <= coreMax: exactly coreMax
+          if (coreMax < best[j]) best[j] = coreMax;
+          continue;
+        }
+        if ((range.lower > coreMax ? range.lower : coreMax) >= best[j]) continue;
+      }
       const d = distance(c, j);
       counter.evaluations++;
       if (!(d >= 0)) throw new Error(`hdbscanLazy: distance(${c}, ${j}) is ${d}; distances must be >= 0`);

@@ -25,7 +25,7 @@ export const ALL_GROUPS: GeneratedGroup[] = ['P21/c', 'P-1', 'P212121', 'C2/c', 
 
 
 /** Ways a copy is written. */
-export type CopyKind = 'standard' | 'symbol-only' | 'other-cell' | 'other-setting' | 'p1' | 'p1-supercell';
+export type CopyKind = 'standard' | 'symbol-only' | 'other-cell' | 'other-setting' | 'p1' | 'p1-supercell' | 'relaxed-supercell';
 
 export interface GeneratorOptions {
   seed: number;
@@ -54,6 +54,17 @@ export interface GeneratorOptions {
   idPrefix?: string;
   /** Monte Carlo moves per packing. Default 400. */
   squeezeMoves?: number;
+  /**
+   * How the copies of each packing are written, in turn (copy c of a packing is written as copyKinds[c mod length]).
+   * Default: standard, other-cell, p1, symbol-only, p1-supercell, other-setting.
+   */
+  copyKinds?: CopyKind[];
+  /**
+   * The invented energy model: energy = -70 - slope * (density - 1.4) + uniform(-scatter, scatter) kJ/mol, so
+   * that denser packings tend to be lower. Defaults: slope 40 kJ/mol per g/cm3, scatter 4 kJ/mol.
+   */
+  energySlopeKjPerMolPerGPerCm3?: number;
+  energyScatterKjPerMol?: number;
   /**
    * Flat minima: this many base packings get two more packings each, the molecule turned by `flatTurnDeg`
    * (default 1) about a random axis in the same cell, with exactly the base packing's energy, as an optimiser
@@ -107,7 +118,9 @@ export function generateLandscape(options: GeneratorOptions): GeneratedLandscape
     const group = groups[i % groups.length];
     const packing = squeezeUntilUsable(group, mol, rng, options.squeezeMoves ?? 400);
     // An invented energy model: denser packings tend to be lower, with a spread of a few kJ/mol.
-    const energy = -70 - 40 * (packing.densityGPerCm3 - 1.4) + rng.uniform(-4, 4);
+    const slope = options.energySlopeKjPerMolPerGPerCm3 ?? 40;
+    const scatter = options.energyScatterKjPerMol ?? 4;
+    const energy = -70 - slope * (packing.densityGPerCm3 - 1.4) + rng.uniform(-scatter, scatter);
     packings.push({ group, densityGPerCm3: packing.densityGPerCm3, energyKjPerMol: energy, partnerOf: -1, packing });
   }
   // Close partners: a base packing too tightly packed to turn its molecule is passed over for the next one.
@@ -177,11 +190,11 @@ export function generateLandscape(options: GeneratorOptions): GeneratedLandscape
     flatGroups,
     energyFaults: [],
   };
-  const kinds: CopyKind[] = ['standard', 'other-cell', 'p1', 'symbol-only', 'p1-supercell', 'other-setting'];
+  const kinds: CopyKind[] = options.copyKinds ?? ['standard', 'other-cell', 'p1', 'symbol-only', 'p1-supercell', 'other-setting'];
   copies.forEach((cp, n) => {
     const gp = packings[cp.packing];
     let kind = kinds[cp.copy % kinds.length];
-    if (kind === 'p1-supercell' && options.supercells === false) kind = 'p1';
+    if ((kind === 'p1-supercell' || kind === 'relaxed-supercell') && options.supercells === false) kind = 'p1';
     const id = `${prefix}-${String(n + 1).padStart(width, '0')}`;
     const energy = gp.energyKjPerMol + rng.normal(options.energyNoiseKjPerMol ?? 0.02);
     const { expressed, symbol, itNumber, listOps } = writeCopy(gp, mol, kind, rng, options);
@@ -304,6 +317,14 @@ function writeCopy(
       e = changeBasis(e, randomUnimodular(rng, e.basis));
       e = wrapMolecules(shiftOrigin(e, twelfthShift(rng)));
       return { expressed: e, symbol: null, itNumber: it, listOps: true };
+    }
+    case 'relaxed-supercell': {
+      // Found by a run in a doubled cell: the optimiser moved every atom of the supercell independently, so no
+      // two rows of its PDD coincide.
+      e = changeBasis(expandToP1(e), randomUnimodular(rng, e.basis));
+      e = shuffleAtoms(jitterAtoms(doubleCell(e, rng.int(3)), rng, sigma), rng);
+      e = wrapMolecules(shiftOrigin(e, [rng.next(), rng.next(), rng.next()]));
+      return { expressed: e, symbol: 'P 1', itNumber: 1, listOps: false };
     }
     case 'p1':
     case 'p1-supercell': {

@@ -55,6 +55,15 @@ export function contactRatio(basis: Mat3, ops: readonly Op[], frac: Float64Array
   }
   let best = Infinity;
   const b = basis;
+  // Distance between lattice planes along each axis: a point whose fractional coordinate along axis r differs
+  // by e lies at least |e| * spacing[r] away, which rules out most images without computing them.
+  const spacing = planeSpacings(b);
+  let maxRadius = 0;
+  for (let i = 0; i < n; i++) if (radius[i] > maxRadius) maxRadius = radius[i];
+  // A fractional offset beyond this cannot give a contact along that axis (with room for rounding).
+  const reach0 = (CONTACT_FACTOR * 2 * maxRadius * (1 + 1e-6)) / spacing[0];
+  const reach1 = (CONTACT_FACTOR * 2 * maxRadius * (1 + 1e-6)) / spacing[1];
+  const reach2 = (CONTACT_FACTOR * 2 * maxRadius * (1 + 1e-6)) / spacing[2];
   for (let i = 0; i < n; i++) {
     for (let j = i; j < n; j++) {
       const d0 = f[3 * j] - f[3 * i];
@@ -81,6 +90,100 @@ export function contactRatio(basis: Mat3, ops: readonly Op[], frac: Float64Array
     }
   }
   return best;
+}
+
+/**
+ * Whether no contact is too short: the same decision as `contactRatio(...) >= 1`, made faster for the Monte Carlo
+ * moves that ask it thousands of times per packing. The 27 lattice images are added in Cartesian form, squared
+ * distances are compared with the squared allowed contact, and only a pair within a relative 1e-9 of the limit
+ * (where rounding could differ) is settled by `contactRatio`'s own arithmetic. Returns at the first short contact.
+ */
+export function contactsClear(basis: Mat3, ops: readonly Op[], frac: Float64Array, elements: readonly string[]): boolean {
+  const nMol = elements.length;
+  const n = ops.length * nMol;
+  const f = new Float64Array(3 * n);
+  const radius = new Float64Array(n);
+  const molOf = new Int32Array(n);
+  for (let g = 0; g < ops.length; g++) {
+    const { rot, trans } = ops[g];
+    for (let i = 0; i < nMol; i++) {
+      const x = frac[3 * i];
+      const y = frac[3 * i + 1];
+      const zf = frac[3 * i + 2];
+      const o = g * nMol + i;
+      for (let r = 0; r < 3; r++) f[3 * o + r] = rot[3 * r] * x + rot[3 * r + 1] * y + rot[3 * r + 2] * zf + trans[r];
+      radius[o] = VDW_RADIUS[elements[i]];
+      molOf[o] = g;
+    }
+  }
+  const b = basis;
+  // Cartesian offsets of the 27 images a, b, c in {-1, 0, 1}, in the loop order of contactRatio.
+  const image = new Float64Array(81);
+  for (let a = -1, t = 0; a <= 1; a++)
+    for (let bb = -1; bb <= 1; bb++)
+      for (let c = -1; c <= 1; c++, t++) {
+        image[3 * t] = a * b[0] + bb * b[3] + c * b[6];
+        image[3 * t + 1] = a * b[1] + bb * b[4] + c * b[7];
+        image[3 * t + 2] = a * b[2] + bb * b[5] + c * b[8];
+      }
+  // Distance between lattice planes along each axis: a point whose fractional coordinate along axis r differs
+  // by e lies at least |e| * spacing[r] away, which rules out most images without computing them.
+  const spacing = planeSpacings(b);
+  let maxRadius = 0;
+  for (let i = 0; i < n; i++) if (radius[i] > maxRadius) maxRadius = radius[i];
+  // A fractional offset beyond this cannot give a contact along that axis (with room for rounding).
+  const reach0 = (CONTACT_FACTOR * 2 * maxRadius * (1 + 1e-6)) / spacing[0];
+  const reach1 = (CONTACT_FACTOR * 2 * maxRadius * (1 + 1e-6)) / spacing[1];
+  const reach2 = (CONTACT_FACTOR * 2 * maxRadius * (1 + 1e-6)) / spacing[2];
+  for (let i = 0; i < n; i++) {
+    for (let j = i; j < n; j++) {
+      const d0 = f[3 * j] - f[3 * i];
+      const d1 = f[3 * j + 1] - f[3 * i + 1];
+      const d2 = f[3 * j + 2] - f[3 * i + 2];
+      const r0 = Math.round(d0);
+      const r1 = Math.round(d1);
+      const r2 = Math.round(d2);
+      const e0 = d0 - r0;
+      const e1 = d1 - r1;
+      const e2 = d2 - r2;
+      const cx = e0 * b[0] + e1 * b[3] + e2 * b[6];
+      const cy = e0 * b[1] + e1 * b[4] + e2 * b[7];
+      const cz = e0 * b[2] + e1 * b[5] + e2 * b[8];
+      const allowed = CONTACT_FACTOR * (radius[i] + radius[j]);
+      const hi = allowed * allowed * (1 + 1e-9);
+      const lo = allowed * allowed * (1 - 1e-9);
+      // Within one molecule the pair itself (no lattice shift, image a, b, c = r0, r1, r2) is not a contact.
+      const self = molOf[i] === molOf[j] && Math.abs(r0) <= 1 && Math.abs(r1) <= 1 && Math.abs(r2) <= 1 ? 9 * (r0 + 1) + 3 * (r1 + 1) + r2 + 1 : -1;
+      for (let t = 0; t < 27; t++) {
+        if (t === self) continue;
+        const a = ((t / 9) | 0) - 1;
+        const bb = (((t / 3) | 0) % 3) - 1;
+        const c = (t % 3) - 1;
+        if (Math.abs(e0 + a) > reach0 || Math.abs(e1 + bb) > reach1 || Math.abs(e2 + c) > reach2) continue;
+        const x = cx + image[3 * t];
+        const y = cy + image[3 * t + 1];
+        const z = cz + image[3 * t + 2];
+        const d2sq = x * x + y * y + z * z;
+        if (d2sq >= hi) continue;
+        if (d2sq < lo) return false;
+        // At the limit within rounding: decide by the full computation.
+        return contactRatio(basis, ops, frac, elements) >= 1;
+      }
+    }
+  }
+  return true;
+}
+
+/** Distances between neighbouring lattice planes parallel to (b, c), (c, a) and (a, b): volume / face area. */
+function planeSpacings(b: Mat3): [number, number, number] {
+  const v = Math.abs(det(b));
+  const area = (p: number, q: number) => {
+    const x = b[3 * p + 1] * b[3 * q + 2] - b[3 * p + 2] * b[3 * q + 1];
+    const y = b[3 * p + 2] * b[3 * q] - b[3 * p] * b[3 * q + 2];
+    const z = b[3 * p] * b[3 * q + 1] - b[3 * p + 1] * b[3 * q];
+    return Math.sqrt(x * x + y * y + z * z);
+  };
+  return [v / area(1, 2), v / area(2, 0), v / area(0, 1)];
 }
 
 /** Fractional coordinates of the molecule rotated by `orient` with its centroid at `centre` (fractional). */
@@ -143,7 +246,7 @@ export function squeeze(draw: PackingDraw, mol: MoleculeTemplate, rng: Rng, move
   let centre = draw.centre.slice() as Vec3;
   const ok = (c: Packing['cell'], o: Mat3, ctr: Vec3) => {
     const basis = basisFromCell(...c);
-    return contactRatio(basis, ops, placeMolecule(mol, o, ctr, basis), mol.elements) >= 1;
+    return contactsClear(basis, ops, placeMolecule(mol, o, ctr, basis), mol.elements);
   };
   if (!ok(cell, orient, centre)) return null;
   const monoclinic = GROUPS[draw.group].system === 'monoclinic';
@@ -239,7 +342,7 @@ export function closePartner(base: Packing, mol: MoleculeTemplate, rng: Rng, ang
     cell[j] /= 1 + stretch;
     const basis = basisFromCell(...cell);
     const frac = placeMolecule(relative, turn, centreFrac, basis);
-    if (contactRatio(basis, ops, frac, mol.elements) < 1) continue;
+    if (!contactsClear(basis, ops, frac, mol.elements)) continue;
     const p: Packing = { group: base.group, cell, frac, densityGPerCm3: 0 };
     p.densityGPerCm3 = packingDensity(p, mol);
     return p;

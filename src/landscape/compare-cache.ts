@@ -1,5 +1,6 @@
-// Cache of comparison results between runs on the same structures, beside the invariants cache: the pairs within
-// a radius (reused for any smaller tolerance), and for an unchanged set of kept structures its neighbour graph,
+// Cache of comparison results between runs on the same structures, beside the invariants cache: every exact EMD the
+// run solved (the pair store, reused by any later run on the same structures whatever its options), and for an
+// unchanged set of kept structures its neighbour graph,
 // its EMD matrix or lazy HDBSCAN labels, and its metric map. A re-run with another tolerance or other family
 // options then needs few or no new EMDs. Entries are keyed by SHA-256 hashes of the structures' block keys in
 // order, so any change of the compared set or of the kept set makes them miss. JSON keeps every float64 exactly.
@@ -13,7 +14,6 @@ import { writeFilesAtomically } from '../io/outputs.js';
 
 export interface CachedPairs {
   itemsKey: string;
-  radiusAngstrom: number;
   i: number[];
   j: number[];
   d: number[];

@@ -1,17 +1,27 @@
 // Earth mover's distance between two PDDs (Rubner, Tomasi & Guibas, "The Earth Mover's Distance as a Metric
 // for Image Retrieval", IJCV 2000): rows are weighted points, the ground distance between two rows is their
 // L-infinity distance, and the distance is the cost of the cheapest transport of one weight distribution onto
-// the other. The transportation problem is solved exactly by a primal network simplex on the bipartite graph
-// rows(a) -> rows(b), kept on strongly feasible spanning trees so that degenerate pivots cannot cycle
-// (Cunningham, "A network simplex method", Math. Programming 1976; Ahuja, Magnanti & Orlin, "Network Flows",
-// 1993, sections 11.5-11.6). The first basis comes from the matrix-minimum rule (cheapest cells first).
+// the other, solved exactly. Two solvers, one answer:
+// - copies of one crystal (the same atoms' rows, up to noise, on both sides) are solved group by group
+//   (emd-split.ts), a few small problems and a certificate of optimality;
+// - every other pair by the network simplex on the whole problem (transport.ts), whose lazy ground distances start
+//   from lower bounds given by the row groups of both PDDs (row-groups.ts): for rows i in group p and j in group q,
+//   cost(i, j) >= |leader_p - leader_q|_inf - radius_p - radius_q.
+// Every pair is solved in one fixed orientation and along one fixed path, so emd(a, b) === emd(b, a) bit for bit,
+// identical PDDs give exactly 0, and the same pair gives the same number wherever it is asked (a search, a matrix,
+// a standalone call).
 //
 // Also here: the AMD distance, the L-infinity distance between AMD vectors, which never exceeds the EMD
-// ("Average minimum distances of periodic point sets", MATCH Commun. Math. Comput. Chem. 2022).
+// ("Average minimum distances of periodic point sets", MATCH Commun. Math. Comput. Chem. 2022), and the
+// row-minimum lower bound.
 import type { Pdd } from '../types.js';
+import { checkPdd } from './check.js';
+import { packItems, type PackedSet } from './packed.js';
+import { splitEmd } from './emd-split.js';
+import { lastSolve, solveTransport, Workspace } from './transport.js';
 
-/** Weights at or above this (negative) value are rounding residue and count as 0; below it they are an error. */
-export const NEGATIVE_WEIGHT_TOLERANCE = -1e-9;
+export { checkPdd, NEGATIVE_WEIGHT_TOLERANCE } from './check.js';
+export { lastSolve } from './transport.js';
 
 /**
  * EMD in Å between two PDDs with the L-infinity ground distance between rows.
@@ -22,7 +32,8 @@ export function emd(a: Pdd, b: Pdd): number {
   checkPdd(a, 'first');
   checkPdd(b, 'second');
   if (a.k !== b.k) throw new Error(`EMD needs PDDs of the same depth k, got k = ${a.k} and k = ${b.k}`);
-  return emdPacked(a.rows, a.weights, 0, a.weights.length, b.rows, b.weights, 0, b.weights.length, a.k);
+  const set = packItems([{ pdd: a }, { pdd: b }], false);
+  return emdItems(set, 0, set, 1, set.columns);
 }
 
 /**
@@ -38,205 +49,68 @@ export function amdDistance(a: Float64Array, b: Float64Array): number {
   return max;
 }
 
-/** Throw a clear message when a PDD cannot be compared (shape, non-finite values, negative or zero total weight). */
-export function checkPdd(p: Pdd, which = 'a'): void {
-  const n = p.weights.length;
-  if (!Number.isInteger(p.k) || p.k < 1) throw new Error(`the ${which} PDD has depth k = ${p.k}; k must be a positive integer`);
-  if (n < 1) throw new Error(`the ${which} PDD has no rows`);
-  if (p.rows.length !== n * p.k) {
-    throw new Error(`the ${which} PDD has ${p.rows.length} row values for ${n} weights at k = ${p.k} (expected ${n * p.k})`);
-  }
-  let total = 0;
-  for (let i = 0; i < n; i++) {
-    const w = p.weights[i];
-    if (!Number.isFinite(w)) throw new Error(`the ${which} PDD has a non-finite weight in row ${i}`);
-    if (w < NEGATIVE_WEIGHT_TOLERANCE) throw new Error(`the ${which} PDD has a negative weight ${w} in row ${i}`);
-    if (w > 0) total += w;
-  }
-  if (!(total > 0)) throw new Error(`the ${which} PDD has no positive weight`);
-  for (let t = 0; t < p.rows.length; t++) {
-    if (!Number.isFinite(p.rows[t])) throw new Error(`the ${which} PDD has a non-finite distance in row ${Math.floor(t / p.k)}`);
-  }
-}
 
-/**
- * EMD between PDD A (rows aFirst..aFirst+aCount-1 of `aRows`/`aWeights`) and PDD B, both of depth k.
- * Row r of A is aRows[(aFirst + r) * k .. + k). Inputs are assumed checked (see `checkPdd`).
- * This is the single code path used by `emd` and by the neighbour search, so both give identical numbers.
- */
-export function emdPacked(
-  aRows: Float64Array,
-  aWeights: Float64Array,
-  aFirst: number,
-  aCount: number,
-  bRows: Float64Array,
-  bWeights: Float64Array,
-  bFirst: number,
-  bCount: number,
-  k: number,
-): number {
-  // Solve in a canonical order so that the result does not depend on the argument order.
-  const c = comparePacked(aRows, aWeights, aFirst, aCount, bRows, bWeights, bFirst, bCount, k);
-  if (c === 0) return 0;
-  if (c > 0) return solve(bRows, bWeights, bFirst, bCount, aRows, aWeights, aFirst, aCount, k);
-  return solve(aRows, aWeights, aFirst, aCount, bRows, bWeights, bFirst, bCount, k);
-}
+/** Cells from which on the ground distances start from the row groups' bounds (below it the groups do not pay). */
+const FLOOR_CELLS = 256;
+/** Columns read (in the set's order) of each pair of leaders for those bounds. */
+const FLOOR_COLUMNS = 64;
 
-/** Columns of every cell's ground distance read up front (the rest only when pricing needs them). */
-const FIRST_COLUMNS = 4;
-/** Columns read at least each time the first basis needs a better bound of a cell. */
-const BASIS_STEP_COLUMNS = 8;
-/** Below this many cells every ground distance is computed in full at once (laziness does not pay off). */
-const EAGER_CELLS = 256;
-
-/**
- * Read more columns of cell c's ground distance (rows at aRows[ao..] and bRows[bo..]): at least `least` of them,
- * then stop as soon as the running maximum reaches `limit`, or at column k, where the cost is exact. Updates
- * cost[c] (the maximum so far) and known[c] (columns read), and returns the new cost[c].
- */
-function readColumns(
-  aRows: Float64Array,
-  ao: number,
-  bRows: Float64Array,
-  bo: number,
-  cost: Float64Array,
-  known: Int32Array,
-  c: number,
-  k: number,
-  limit: number,
-  least: number,
-): number {
-  let max = cost[c];
-  let t = known[c];
-  const leastEnd = t + least;
-  for (; t < k; t++) {
-    const d = Math.abs(aRows[ao + t] - bRows[bo + t]);
-    if (d > max) {
-      max = d;
-      if (max >= limit && t + 1 >= leastEnd) {
-        t++;
-        break;
-      }
-    }
-  }
-  cost[c] = max;
-  known[c] = t;
-  return max;
-}
-
-/** Statistics of the last solve on this thread (for benchmarks and tests of the pivoting). */
-export const lastSolve = { pivots: 0, degeneratePivots: 0, rows: 0, cols: 0 };
-
-// ---- scratch buffers, grown to the largest problem seen and reused (nothing allocated per solve) ----
-// They live in one object and every function copies the arrays it uses into local constants: reads of
-// module-level `let` bindings in hot loops are much slower in V8.
-class Workspace {
-  capRows = 0;
-  capCols = 0;
-  capNodes = 0;
-  supply = new Float64Array(0);
-  demand = new Float64Array(0);
-  rowOf = new Int32Array(0);
-  colOf = new Int32Array(0);
-  cost = new Float64Array(0);
-  known = new Int32Array(0);
-  order = new Int32Array(0);
-  arcTail = new Int32Array(0);
-  arcHead = new Int32Array(0);
-  arcFlow = new Float64Array(0);
-  arcCost = new Float64Array(0);
-  parent = new Int32Array(0);
-  parentArc = new Int32Array(0);
-  depth = new Int32Array(0);
-  potential = new Float64Array(0);
-  adjStart = new Int32Array(0);
-  adjFill = new Int32Array(0);
-  adjArc = new Int32Array(0);
-  queue = new Int32Array(0);
-  rowHeap = new Int32Array(0);
-  rowSize = new Int32Array(0);
-  unionParent = new Int32Array(0);
-  componentArc = new Int32Array(0);
-  firstChild = new Int32Array(0);
-  nextSibling = new Int32Array(0);
-  prevSibling = new Int32Array(0);
-  /** Set by `pivot`: the lower end of the leaving arc, and whether it hangs below the entering arc's row end. */
-  leaveChild = -1;
-  leaveOnRowSide = true;
-
-  ensure(m: number, n: number): void {
-    if (m > this.capRows || n > this.capCols) {
-      this.capRows = Math.max(m, this.capRows);
-      this.capCols = Math.max(n, this.capCols);
-      this.supply = new Float64Array(this.capRows);
-      this.rowOf = new Int32Array(this.capRows);
-      this.demand = new Float64Array(this.capCols);
-      this.colOf = new Int32Array(this.capCols);
-      this.rowHeap = new Int32Array(this.capRows);
-      this.rowSize = new Int32Array(this.capRows);
-      this.cost = new Float64Array(this.capRows * this.capCols);
-      this.known = new Int32Array(this.capRows * this.capCols);
-      this.order = new Int32Array(this.capRows * this.capCols);
-    }
-    const nodes = m + n + 1;
-    if (nodes > this.capNodes) {
-      this.capNodes = nodes;
-      this.arcTail = new Int32Array(nodes);
-      this.arcHead = new Int32Array(nodes);
-      this.arcFlow = new Float64Array(nodes);
-      this.arcCost = new Float64Array(nodes);
-      this.parent = new Int32Array(nodes);
-      this.parentArc = new Int32Array(nodes);
-      this.depth = new Int32Array(nodes);
-      this.potential = new Float64Array(nodes);
-      this.adjStart = new Int32Array(nodes + 1);
-      this.adjFill = new Int32Array(nodes + 1);
-      this.adjArc = new Int32Array(2 * nodes);
-      this.queue = new Int32Array(nodes);
-      this.unionParent = new Int32Array(nodes);
-      this.componentArc = new Int32Array(nodes);
-      this.firstChild = new Int32Array(nodes);
-      this.nextSibling = new Int32Array(nodes);
-      this.prevSibling = new Int32Array(nodes);
-    }
-  }
-}
+/** Blocks of cells (group p x group q) whose merged reduced cost exceeds 2(radius_p + radius_q) + this (Å) start
+ * outside the problem the simplex works on (they are priced at the end and join if they would improve it). */
+const SLACK_ANGSTROM = 0.005;
 
 const ws = new Workspace();
+const mergedWs = new Workspace();
+// What the floor callback needs about the pair being solved (set just before the solve).
+let floorA: PackedSet;
+let floorB: PackedSet;
+let floorItemA = 0;
+let floorItemB = 0;
+let floorCols: Int32Array;
+let groupBound = new Float64Array(0);
 
 /**
- * Transportation problem A -> B. Rows of A with positive weight become supply nodes 0..m-1, rows of B demand
- * nodes m..m+n-1, and an artificial root R = m+n closes the spanning tree. Every arc row -> column exists with
- * cost = L-infinity distance between the rows; artificial arcs node -> R start at zero flow and can never gain
- * flow (any cycle through R passes one of them backwards), so the optimum found is that of the real problem.
+ * EMD between item a of `sa` and item b of `sb` (packed sets of one depth k), reading columns in the order `cols`
+ * (a permutation of 0..k-1; the result does not depend on it). The single path every caller takes.
  */
-function solve(
-  aRows: Float64Array,
-  aWeights: Float64Array,
-  aFirst: number,
-  aCount: number,
-  bRows: Float64Array,
-  bWeights: Float64Array,
-  bFirst: number,
-  bCount: number,
-  k: number,
-): number {
+export function emdItems(sa: PackedSet, a: number, sb: PackedSet, b: number, cols: Int32Array): number {
+  const k = sa.k;
+  const aFirst = sa.rowStart[a];
+  const aCount = sa.rowStart[a + 1] - aFirst;
+  const bFirst = sb.rowStart[b];
+  const bCount = sb.rowStart[b + 1] - bFirst;
+  // Solve in a canonical order so that the result does not depend on the argument order.
+  const c = comparePacked(sa.rows, sa.weights, aFirst, aCount, sb.rows, sb.weights, bFirst, bCount, k);
+  if (c === 0) return 0;
+  return c > 0 ? solveOriented(sb, b, sa, a, cols) : solveOriented(sa, a, sb, b, cols);
+}
+
+function solveOriented(sa: PackedSet, a: number, sb: PackedSet, b: number, cols: Int32Array): number {
+  lastSolve.split = false;
+  const split = splitEmd(sa, a, sb, b, cols);
+  if (split === split) return split;
+  lastSolve.split = false;
+  const k = sa.k;
+  const aFirst = sa.rowStart[a];
+  const aCount = sa.rowStart[a + 1] - aFirst;
+  const bFirst = sb.rowStart[b];
+  const bCount = sb.rowStart[b + 1] - bFirst;
   ws.ensure(aCount, bCount);
-  const { supply, demand, rowOf, colOf, cost, order, arcTail, arcHead, arcFlow, arcCost, potential, unionParent, componentArc } = ws;
+  const { supply, demand, rowOf, colOf } = ws;
   // Keep the rows that carry mass; renormalise each side to total 1 (negative rounding residue counts as 0).
   let totalA = 0;
   for (let r = 0; r < aCount; r++) {
-    const w = aWeights[aFirst + r];
+    const w = sa.weights[aFirst + r];
     if (w > 0) totalA += w;
   }
   let totalB = 0;
   for (let r = 0; r < bCount; r++) {
-    const w = bWeights[bFirst + r];
+    const w = sb.weights[bFirst + r];
     if (w > 0) totalB += w;
   }
   let m = 0;
   for (let r = 0; r < aCount; r++) {
-    const w = aWeights[aFirst + r];
+    const w = sa.weights[aFirst + r];
     if (w > 0) {
       supply[m] = w / totalA;
       rowOf[m++] = aFirst + r;
@@ -244,416 +118,104 @@ function solve(
   }
   let n = 0;
   for (let r = 0; r < bCount; r++) {
-    const w = bWeights[bFirst + r];
+    const w = sb.weights[bFirst + r];
     if (w > 0) {
       demand[n] = w / totalB;
       colOf[n++] = bFirst + r;
     }
   }
-  lastSolve.pivots = 0;
-  lastSolve.degeneratePivots = 0;
-  lastSolve.rows = m;
-  lastSolve.cols = n;
-
-  // One row on either side: the only feasible transport sends everything to (or from) it.
-  if (m === 1 || n === 1) {
-    let sum = 0;
-    for (let i = 0; i < m; i++) {
-      const ao = rowOf[i] * k;
-      for (let j = 0; j < n; j++) {
-        const bo = colOf[j] * k;
-        let max = 0;
-        for (let t = 0; t < k; t++) {
-          const d = Math.abs(aRows[ao + t] - bRows[bo + t]);
-          if (d > max) max = d;
-        }
-        sum += (m === 1 ? demand[j] : supply[i]) * max;
-      }
-    }
-    return sum;
+  const na = sa.groupStart[a + 1] - sa.groupStart[a];
+  const nb = sb.groupStart[b + 1] - sb.groupStart[b];
+  const useFloor = m * n >= FLOOR_CELLS && 4 * na * nb <= m * n;
+  if (useFloor) {
+    floorA = sa;
+    floorB = sb;
+    floorItemA = a;
+    floorItemB = b;
+    floorCols = cols;
   }
+  const restrict = useFloor && na > 1 && nb > 1 && markLikelyCells(sa, a, sb, b, cols, m, n);
+  return solveTransport(ws, sa.rows, sb.rows, m, n, k, cols, useFloor ? groupFloor : null, restrict);
+}
 
-  // Ground distances (L-infinity between rows) are computed lazily: cost[c] holds the maximum of |a_t - b_t| over
-  // the first known[c] columns, a lower bound of the cell's cost that is exact once known[c] = k. Most cells are
-  // never needed exactly: pricing only has to show that a cell's cost is not below v_j - u_i, and a few columns
-  // usually show that. Every cell that enters the basis is made exact first, so the result is that of the full
-  // matrix, bit for bit.
-  const { known } = ws;
-  const startColumns = k < FIRST_COLUMNS || m * n < EAGER_CELLS ? k : FIRST_COLUMNS;
+/**
+ * Solve the merged problem (leader rows carrying their groups' weights) and mark in ws.active the cells of the
+ * blocks (p, q) whose merged reduced cost is small enough for the block to hold optimal flow: rows of a group lie
+ * within its radius of the leader, so a cell's cost and the final potentials differ from the merged ones by about
+ * the two radii. Only a first guess: the transport solver prices the rest before it stops.
+ */
+function markLikelyCells(sa: PackedSet, a: number, sb: PackedSet, b: number, cols: Int32Array, m: number, n: number): boolean {
+  const k = sa.k;
+  const ga = sa.groupStart[a];
+  const na = sa.groupStart[a + 1] - ga;
+  const gb = sb.groupStart[b];
+  const nb = sb.groupStart[b + 1] - gb;
+  mergedWs.ensure(na, nb);
+  for (let p = 0; p < na; p++) {
+    mergedWs.supply[p] = sa.groupWeight[ga + p];
+    mergedWs.rowOf[p] = sa.groupLeader[ga + p];
+  }
+  for (let q = 0; q < nb; q++) {
+    mergedWs.demand[q] = sb.groupWeight[gb + q];
+    mergedWs.colOf[q] = sb.groupLeader[gb + q];
+  }
+  solveTransport(mergedWs, sa.rows, sb.rows, na, nb, k, cols, null);
+  const pot = mergedWs.potential;
+  const lb = mergedWs.cost;
+  const { active, rowOf, colOf } = ws;
   for (let i = 0; i < m; i++) {
-    const ao = rowOf[i] * k;
+    const p = sa.groupOf[rowOf[i]];
+    const rp = sa.groupRadius[ga + p];
     const base = i * n;
     for (let j = 0; j < n; j++) {
-      const bo = colOf[j] * k;
+      const q = sb.groupOf[colOf[j]];
+      const rc = lb[p * nb + q] + pot[p] - pot[na + q];
+      active[base + j] = rc <= 2 * (rp + sb.groupRadius[gb + q]) + SLACK_ANGSTROM ? 1 : 0;
+    }
+  }
+  return true;
+}
+
+/** Raise each cell's lower bound to |leader_p - leader_q| (first FLOOR_COLUMNS columns) - radius_p - radius_q. */
+function groupFloor(w: Workspace, m: number, n: number): void {
+  const sa = floorA;
+  const sb = floorB;
+  const k = sa.k;
+  const ga = sa.groupStart[floorItemA];
+  const na = sa.groupStart[floorItemA + 1] - ga;
+  const gb = sb.groupStart[floorItemB];
+  const nb = sb.groupStart[floorItemB + 1] - gb;
+  if (groupBound.length < na * nb) groupBound = new Float64Array(Math.max(na * nb, 2 * groupBound.length));
+  const cols = floorCols;
+  const reads = Math.min(k, FLOOR_COLUMNS);
+  for (let p = 0; p < na; p++) {
+    const ao = sa.groupLeader[ga + p] * k;
+    for (let q = 0; q < nb; q++) {
+      const bo = sb.groupLeader[gb + q] * k;
       let max = 0;
-      for (let t = 0; t < startColumns; t++) {
-        const d = Math.abs(aRows[ao + t] - bRows[bo + t]);
+      for (let t = 0; t < reads; t++) {
+        const col = cols[t];
+        const d = Math.abs(sa.rows[ao + col] - sb.rows[bo + col]);
         if (d > max) max = d;
       }
-      cost[base + j] = max;
-      known[base + j] = startColumns;
+      // Less a hair, so that rounding in this bound never lifts it above the cost it bounds.
+      groupBound[p * nb + q] = max - sa.groupRadius[ga + p] - sb.groupRadius[gb + q] - 1e-12 * (1 + max);
     }
   }
-
-  const cells = m * n;
-  const root = m + n;
-  const nodes = m + n + 1;
-
-  // ---- first basis: matrix minimum (allocate to the cheapest open cells first, ties by cell index) ----
-  // Each row keeps its cells in a small binary heap (row i's heap in order[i*n .. i*n + rowSize[i])), and a heap
-  // of rows is keyed by each row's cheapest cell. A row's top cell may lie in a column already filled; such a
-  // stale top is only a lower bound of the row's cheapest open cell, so when it reaches the top it is dropped and
-  // the row re-sorted. The cell allocated is therefore always the cheapest open cell overall (ties by index),
-  // exactly as one heap over all cells would give, while filled rows leave with all their cells at once.
-  const { rowHeap, rowSize } = ws;
-  let rowsInHeap = 0;
+  const { cost, rowOf, colOf } = w;
   for (let i = 0; i < m; i++) {
+    const p = sa.groupOf[rowOf[i]];
     const base = i * n;
-    for (let j = 0; j < n; j++) order[base + j] = base + j;
-    for (let h = (n >> 1) - 1; h >= 0; h--) siftDownAt(order, base, n, h, cost);
-    rowSize[i] = n;
-    if (supply[i] > 0) rowHeap[rowsInHeap++] = i;
-  }
-  for (let h = (rowsInHeap >> 1) - 1; h >= 0; h--) siftDownRows(rowHeap, rowsInHeap, h, order, n, cost);
-  for (let v = 0; v < nodes; v++) unionParent[v] = v;
-  let arcs = 0;
-  let colsLeft = n;
-  while (rowsInHeap > 0 && colsLeft > 0) {
-    const i = rowHeap[0];
-    const base = i * n;
-    const c = order[base];
-    const j = c - base;
-    const d = demand[j];
-    if (d > 0 && known[c] < k) {
-      // An open cell known only by a lower bound: read columns until it is exact or its bound passes the next
-      // smallest key (in its row or in the next row), then let it find its place again.
-      const size = rowSize[i];
-      let limit = Infinity;
-      if (size > 1) limit = cost[order[base + 1]];
-      if (size > 2 && cost[order[base + 2]] < limit) limit = cost[order[base + 2]];
-      if (rowsInHeap > 1) {
-        const other = cost[order[rowHeap[1] * n]];
-        if (other < limit) limit = other;
-      }
-      if (rowsInHeap > 2) {
-        const other = cost[order[rowHeap[2] * n]];
-        if (other < limit) limit = other;
-      }
-      // Read a few columns at least: each round costs two heap repairs, more than a few columns do.
-      readColumns(aRows, rowOf[i] * k, bRows, colOf[j] * k, cost, known, c, k, limit, BASIS_STEP_COLUMNS);
-      siftDownAt(order, base, size, 0, cost);
-      siftDownRows(rowHeap, rowsInHeap, 0, order, n, cost);
-      continue;
-    }
-    if (d > 0) {
-      // Each allocation empties its row or its column, which then takes no more: the positive arcs form a forest.
-      const s = supply[i];
-      const x = s < d ? s : d;
-      supply[i] = s - x;
-      demand[j] = d - x;
-      if (demand[j] <= 0) colsLeft--;
-      arcTail[arcs] = i;
-      arcHead[arcs] = m + j;
-      arcFlow[arcs] = x;
-      arcCost[arcs] = cost[c];
-      arcs++;
-      unite(unionParent, i, m + j);
-      if (supply[i] <= 0) {
-        rowHeap[0] = rowHeap[--rowsInHeap];
-        siftDownRows(rowHeap, rowsInHeap, 0, order, n, cost);
-        continue;
-      }
-    }
-    // Column j is filled: drop the row's top cell and re-sort the row, then the rows.
-    const size = --rowSize[i];
-    if (size === 0) {
-      rowHeap[0] = rowHeap[--rowsInHeap];
-    } else {
-      order[base] = order[base + size];
-      siftDownAt(order, base, size, 0, cost);
-    }
-    siftDownRows(rowHeap, rowsInHeap, 0, order, n, cost);
-  }
-  // Hang each component of the forest from the root by a zero-flow arc pointing to the root: the tree is then
-  // strongly feasible (every zero-flow arc points towards the root).
-  for (let v = 0; v < root; v++) componentArc[v] = -1;
-  for (let v = 0; v < root; v++) {
-    const r = find(unionParent, v);
-    if (componentArc[r] >= 0) continue;
-    componentArc[r] = arcs;
-    arcTail[arcs] = v;
-    arcHead[arcs] = root;
-    arcFlow[arcs] = 0;
-    arcCost[arcs] = 0;
-    arcs++;
-  }
-  if (arcs !== nodes - 1) throw new Error(`EMD solver: first basis has ${arcs} arcs for ${nodes} nodes (internal error)`);
-
-  // Reduced costs below -tolerance mean "improving"; the tolerance absorbs rounding in the potentials.
-  // The largest cost over all cells. When the costs are not all known: max over columns t of the widest gap
-  // between a value of A and one of B in that column (rounding of a - b is monotone, so this is the same number
-  // bit for bit).
-  let maxCost = 0;
-  if (startColumns === k) {
-    for (let c = 0; c < cells; c++) if (cost[c] > maxCost) maxCost = cost[c];
-  }
-  for (let t = startColumns === k ? k : 0; t < k; t++) {
-    let loA = Infinity;
-    let hiA = -Infinity;
-    for (let i = 0; i < m; i++) {
-      const x = aRows[rowOf[i] * k + t];
-      if (x < loA) loA = x;
-      if (x > hiA) hiA = x;
-    }
-    let loB = Infinity;
-    let hiB = -Infinity;
     for (let j = 0; j < n; j++) {
-      const x = bRows[colOf[j] * k + t];
-      if (x < loB) loB = x;
-      if (x > hiB) hiB = x;
+      const v = groupBound[p * nb + sb.groupOf[colOf[j]]];
+      if (v > cost[base + j]) cost[base + j] = v;
     }
-    const up = hiA - loB;
-    const down = hiB - loA;
-    if (up > maxCost) maxCost = up;
-    if (down > maxCost) maxCost = down;
   }
-  const tolerance = 1e-13 * (maxCost > 1 ? maxCost : 1);
-
-  // Partial pricing: scan blocks of about sqrt(cells) arcs, enter the most negative of the first improving block.
-  const block = Math.max(Math.min(cells, 16), Math.ceil(Math.sqrt(cells)));
-  let next = 0;
-  const pivotLimit = 50 * cells + 10_000;
-  rebuildTree(ws, nodes, root);
-  for (;;) {
-    let enter = -1;
-    let best = -tolerance;
-    let scanned = 0;
-    while (scanned < cells) {
-      const end = Math.min(scanned + block, cells);
-      for (; scanned < end; scanned++) {
-        const c = next;
-        next = next + 1 === cells ? 0 : next + 1;
-        const i = (c / n) | 0;
-        const j = c - i * n;
-        const pi = potential[i];
-        const pj = potential[m + j];
-        let rc = cost[c] + pi - pj;
-        // A cell whose lower bound already prices at or above `best` cannot enter; otherwise read more columns
-        // until it can be ruled out or its cost is exact.
-        while (rc < best && known[c] < k) {
-          rc = readColumns(aRows, rowOf[i] * k, bRows, colOf[j] * k, cost, known, c, k, best - pi + pj, 1) + pi - pj;
-        }
-        if (rc < best) {
-          best = rc;
-          enter = c;
-        }
-      }
-      if (enter >= 0) break;
-    }
-    if (enter < 0) break;
-    if (++lastSolve.pivots > pivotLimit) {
-      throw new Error(`EMD solver did not converge within ${pivotLimit} pivots (${m} x ${n} rows); please report this input`);
-    }
-    pivot(ws, enter, m, n);
-    updateTree(ws, enter, m, n);
-  }
-
-  let total = 0;
-  for (let a = 0; a < nodes - 1; a++) {
-    if (arcHead[a] !== root) total += arcFlow[a] * arcCost[a];
-  }
-  return total;
 }
 
 /**
- * Bring cell `enter` (row i -> column j) into the tree. The cycle is oriented along the entering arc; the leaving
- * arc is the last blocking arc met when walking the cycle from its apex in that orientation, which keeps the tree
- * strongly feasible (Ahuja, Magnanti & Orlin 1993, section 11.6).
- */
-function pivot(w0: Workspace, enter: number, m: number, n: number): void {
-  const { arcTail, arcHead, arcFlow, arcCost, parent, parentArc, depth, cost } = w0;
-  const i = (enter / n) | 0;
-  const j = enter - i * n;
-  const u = i;
-  const v = m + j;
-  // Apex: the nearest common ancestor of u and v.
-  let x = u;
-  let y = v;
-  while (depth[x] > depth[y]) x = parent[x];
-  while (depth[y] > depth[x]) y = parent[y];
-  while (x !== y) {
-    x = parent[x];
-    y = parent[y];
-  }
-  const apex = x;
-
-  // Walk order along the orientation: apex -> ... -> u, then u -> v, then v -> ... -> apex.
-  // On the u side (walked downwards) an arc loses flow when it points up (child -> parent); climbing from u
-  // visits it in reverse walk order, so among equal flows the first one met (nearest u) is the last in walk order.
-  let theta = Infinity;
-  let leave = -1;
-  let leaveChild = -1;
-  let leaveOnRowSide = true;
-  for (let w = u; w !== apex; w = parent[w]) {
-    const a = parentArc[w];
-    if (arcTail[a] === w && arcFlow[a] < theta) {
-      theta = arcFlow[a];
-      leave = a;
-      leaveChild = w;
-    }
-  }
-  // On the v side (walked upwards) an arc loses flow when it points down (parent -> child); climbing from v is walk
-  // order, so later ones win ties, and they also beat ties from the u side.
-  for (let w = v; w !== apex; w = parent[w]) {
-    const a = parentArc[w];
-    if (arcHead[a] === w && arcFlow[a] <= theta) {
-      theta = arcFlow[a];
-      leave = a;
-      leaveChild = w;
-      leaveOnRowSide = false;
-    }
-  }
-  w0.leaveChild = leaveChild;
-  w0.leaveOnRowSide = leaveOnRowSide;
-  if (leave < 0) throw new Error('EMD solver: pivot cycle has no blocking arc (internal error)');
-  lastSolve.degeneratePivots += theta === 0 ? 1 : 0;
-
-  if (theta > 0) {
-    for (let w = u; w !== apex; w = parent[w]) {
-      const a = parentArc[w];
-      if (arcTail[a] === w) arcFlow[a] -= theta;
-      else arcFlow[a] += theta;
-    }
-    for (let w = v; w !== apex; w = parent[w]) {
-      const a = parentArc[w];
-      if (arcHead[a] === w) arcFlow[a] -= theta;
-      else arcFlow[a] += theta;
-    }
-  }
-  // The entering arc takes the leaving arc's slot.
-  arcTail[leave] = u;
-  arcHead[leave] = v;
-  arcFlow[leave] = theta;
-  arcCost[leave] = cost[enter];
-}
-
-/** Parent pointers, depths and node potentials of the current tree, by breadth-first search from the root. */
-function rebuildTree(w0: Workspace, nodes: number, root: number): void {
-  const { arcTail, arcHead, arcCost, parent, parentArc, depth, potential, adjStart, adjFill, adjArc, queue } = w0;
-  const { firstChild, nextSibling, prevSibling } = w0;
-  const arcs = nodes - 1;
-  for (let v = 0; v < nodes; v++) firstChild[v] = -1;
-  for (let v = 0; v <= nodes; v++) adjStart[v] = 0;
-  for (let a = 0; a < arcs; a++) {
-    adjStart[arcTail[a] + 1]++;
-    adjStart[arcHead[a] + 1]++;
-  }
-  for (let v = 0; v < nodes; v++) adjStart[v + 1] += adjStart[v];
-  for (let v = 0; v < nodes; v++) adjFill[v] = adjStart[v];
-  for (let a = 0; a < arcs; a++) {
-    adjArc[adjFill[arcTail[a]]++] = a;
-    adjArc[adjFill[arcHead[a]]++] = a;
-  }
-  // Potentials p with cost(t -> h) + p[t] - p[h] = 0 on every tree arc; p[root] = 0.
-  parent[root] = -1;
-  parentArc[root] = -1;
-  depth[root] = 0;
-  potential[root] = 0;
-  let head = 0;
-  let tail = 0;
-  queue[tail++] = root;
-  while (head < tail) {
-    const w = queue[head++];
-    for (let e = adjStart[w]; e < adjStart[w + 1]; e++) {
-      const a = adjArc[e];
-      if (a === parentArc[w]) continue;
-      const child = arcTail[a] === w ? arcHead[a] : arcTail[a];
-      parent[child] = w;
-      parentArc[child] = a;
-      depth[child] = depth[w] + 1;
-      potential[child] = arcTail[a] === w ? potential[w] + arcCost[a] : potential[w] - arcCost[a];
-      addChild(firstChild, nextSibling, prevSibling, w, child);
-      queue[tail++] = child;
-    }
-  }
-  if (tail !== nodes) throw new Error('EMD solver: basis is not a spanning tree (internal error)');
-}
-
-/**
- * After `pivot`: the subtree below the leaving arc is re-hung from the entering arc. The tree path from the
- * entering arc's end on that side up to the leaving arc's lower end reverses; then depths and potentials are
- * recomputed in that subtree only, each from its parent by the same formula as `rebuildTree`, so the values are
- * bit for bit those a full rebuild would give (the rest of the tree keeps its root paths).
- */
-function updateTree(w0: Workspace, enter: number, m: number, n: number): void {
-  const { arcTail, arcCost, parent, parentArc, depth, potential, queue, firstChild, nextSibling, prevSibling } = w0;
-  const i = (enter / n) | 0;
-  const j = enter - i * n;
-  const q = w0.leaveChild;
-  const x = w0.leaveOnRowSide ? i : m + j;
-  const y = w0.leaveOnRowSide ? m + j : i;
-  // The entering arc now sits in the leaving arc's slot (see `pivot`).
-  let prevArc = parentArc[q];
-  let prev = y;
-  let w = x;
-  for (;;) {
-    const oldParent = parent[w];
-    const oldArc = parentArc[w];
-    removeChild(firstChild, nextSibling, prevSibling, oldParent, w);
-    parent[w] = prev;
-    parentArc[w] = prevArc;
-    addChild(firstChild, nextSibling, prevSibling, prev, w);
-    if (w === q) break;
-    prev = w;
-    prevArc = oldArc;
-    w = oldParent;
-  }
-  // Depth-first walk of the re-hung subtree (stack in `queue`).
-  let top = 0;
-  queue[top++] = x;
-  while (top > 0) {
-    const v = queue[--top];
-    const p = parent[v];
-    const a = parentArc[v];
-    depth[v] = depth[p] + 1;
-    potential[v] = arcTail[a] === p ? potential[p] + arcCost[a] : potential[p] - arcCost[a];
-    for (let c = firstChild[v]; c >= 0; c = nextSibling[c]) queue[top++] = c;
-  }
-}
-
-function addChild(firstChild: Int32Array, nextSibling: Int32Array, prevSibling: Int32Array, p: number, c: number): void {
-  const f = firstChild[p];
-  nextSibling[c] = f;
-  prevSibling[c] = -1;
-  if (f >= 0) prevSibling[f] = c;
-  firstChild[p] = c;
-}
-
-function removeChild(firstChild: Int32Array, nextSibling: Int32Array, prevSibling: Int32Array, p: number, c: number): void {
-  const before = prevSibling[c];
-  const after = nextSibling[c];
-  if (before >= 0) nextSibling[before] = after;
-  else firstChild[p] = after;
-  if (after >= 0) prevSibling[after] = before;
-}
-
-function find(unionParent: Int32Array, v: number): number {
-  while (unionParent[v] !== v) {
-    unionParent[v] = unionParent[unionParent[v]];
-    v = unionParent[v];
-  }
-  return v;
-}
-
-function unite(unionParent: Int32Array, a: number, b: number): void {
-  const ra = find(unionParent, a);
-  const rb = find(unionParent, b);
-  if (ra !== rb) unionParent[ra] = rb;
-}
-
-/**
- * Order two packed PDDs: by row count, then row values, then weights. 0 means identical content.
- * Used to solve every pair in one fixed orientation.
+ * Order two packed PDDs by what they carry (rows without weight are skipped): by row count, then row values, then
+ * weights. 0 means identical content. Used to solve every pair in one fixed orientation.
  */
 function comparePacked(
   aRows: Float64Array,
@@ -666,18 +228,31 @@ function comparePacked(
   bCount: number,
   k: number,
 ): number {
-  if (aCount !== bCount) return aCount < bCount ? -1 : 1;
-  const ao = aFirst * k;
-  const bo = bFirst * k;
-  const len = aCount * k;
-  for (let t = 0; t < len; t++) {
-    const x = aRows[ao + t];
-    const y = bRows[bo + t];
-    if (x !== y) return x < y ? -1 : 1;
+  let na = 0;
+  for (let r = aFirst; r < aFirst + aCount; r++) if (aWeights[r] > 0) na++;
+  let nb = 0;
+  for (let r = bFirst; r < bFirst + bCount; r++) if (bWeights[r] > 0) nb++;
+  if (na !== nb) return na < nb ? -1 : 1;
+  let ra = aFirst;
+  let rb = bFirst;
+  for (let r = 0; r < na; r++, ra++, rb++) {
+    while (!(aWeights[ra] > 0)) ra++;
+    while (!(bWeights[rb] > 0)) rb++;
+    const ao = ra * k;
+    const bo = rb * k;
+    for (let t = 0; t < k; t++) {
+      const x = aRows[ao + t];
+      const y = bRows[bo + t];
+      if (x !== y) return x < y ? -1 : 1;
+    }
   }
-  for (let r = 0; r < aCount; r++) {
-    const x = aWeights[aFirst + r];
-    const y = bWeights[bFirst + r];
+  ra = aFirst;
+  rb = bFirst;
+  for (let r = 0; r < na; r++, ra++, rb++) {
+    while (!(aWeights[ra] > 0)) ra++;
+    while (!(bWeights[rb] > 0)) rb++;
+    const x = aWeights[ra];
+    const y = bWeights[rb];
     if (x !== y) return x < y ? -1 : 1;
   }
   return 0;
@@ -734,52 +309,3 @@ export function rowMinBound(
   return sum;
 }
 
-/** Restore the heap order (cost, then cell index) below position h of the heap heap[base .. base + size). */
-function siftDownAt(heap: Int32Array, base: number, size: number, h: number, cost: Float64Array): void {
-  const v = heap[base + h];
-  const cv = cost[v];
-  for (;;) {
-    let c = 2 * h + 1;
-    if (c >= size) break;
-    let cc = cost[heap[base + c]];
-    const r = c + 1;
-    if (r < size) {
-      const cr = cost[heap[base + r]];
-      if (cr < cc || (cr === cc && heap[base + r] < heap[base + c])) {
-        c = r;
-        cc = cr;
-      }
-    }
-    if (cc > cv || (cc === cv && heap[base + c] > v)) break;
-    heap[base + h] = heap[base + c];
-    h = c;
-  }
-  heap[base + h] = v;
-}
-
-/** The same for the heap of rows, keyed by each row's top cell order[row * n] (cost, then cell index). */
-function siftDownRows(rows: Int32Array, size: number, h: number, order: Int32Array, n: number, cost: Float64Array): void {
-  const v = rows[h];
-  const kv = order[v * n];
-  const cv = cost[kv];
-  for (;;) {
-    let c = 2 * h + 1;
-    if (c >= size) break;
-    let kc = order[rows[c] * n];
-    let cc = cost[kc];
-    const r = c + 1;
-    if (r < size) {
-      const kr = order[rows[r] * n];
-      const cr = cost[kr];
-      if (cr < cc || (cr === cc && kr < kc)) {
-        c = r;
-        kc = kr;
-        cc = cr;
-      }
-    }
-    if (cc > cv || (cc === cv && kc > kv)) break;
-    rows[h] = rows[c];
-    h = c;
-  }
-  rows[h] = v;
-}

@@ -7,7 +7,7 @@
 // of near-identical targets, and the row-minimum relaxation (`rowMinBound` in emd.ts). Candidates are visited best
 // first by their current bound, so the k-th distance T shrinks early and the search stops when no bound is <= T.
 // Ties are broken by (distance, index) ascending, so results equal a brute-force sort exactly.
-import { emdPacked, rowMinBound } from './emd.js';
+import { emdItems, rowMinBound } from './emd.js';
 import type { PackedSet, SortedIndex } from './packed.js';
 
 /**
@@ -126,17 +126,7 @@ export function knnChunk(task: KnnTask): KnnChunk {
     const hit = cache.get(a, b);
     if (hit >= 0) return hit;
     emdEvaluations++;
-    const d = emdPacked(
-      queries.rows,
-      queries.weights,
-      queries.rowStart[a],
-      queries.rowStart[a + 1] - queries.rowStart[a],
-      targets.rows,
-      targets.weights,
-      targets.rowStart[b],
-      targets.rowStart[b + 1] - targets.rowStart[b],
-      dim,
-    );
+    const d = emdItems(queries, a, targets, b, targets.columns);
     cache.set(a, b, d);
     return d;
   };
@@ -360,17 +350,7 @@ export function withinChunk(task: WithinTask): WithinChunk {
       boundEvaluations++;
       if (bound(amd, a * dim, amd, b * dim, columns, dim, limit) > limit) continue;
       emdEvaluations++;
-      const d = emdPacked(
-        set.rows,
-        set.weights,
-        set.rowStart[a],
-        set.rowStart[a + 1] - set.rowStart[a],
-        set.rows,
-        set.weights,
-        set.rowStart[b],
-        set.rowStart[b + 1] - set.rowStart[b],
-        dim,
-      );
+      const d = emdItems(set, a, set, b, set.columns);
       if (d <= radiusAngstrom) {
         outI.push(a < b ? a : b);
         outJ.push(a < b ? b : a);
@@ -399,17 +379,7 @@ export function matrixChunk(task: MatrixTask): Float64Array {
   let o = 0;
   for (let i = start; i < end; i++) {
     for (let j = i + 1; j < n; j++) {
-      out[o++] = emdPacked(
-        set.rows,
-        set.weights,
-        set.rowStart[i],
-        set.rowStart[i + 1] - set.rowStart[i],
-        set.rows,
-        set.weights,
-        set.rowStart[j],
-        set.rowStart[j + 1] - set.rowStart[j],
-        dim,
-      );
+      out[o++] = emdItems(set, i, set, j, set.columns);
     }
   }
   return out;

@@ -3,7 +3,7 @@
 // `localExecutor`, no server needed) or as jobs on a Redis queue served by `polysift worker` processes on other
 // machines (src/queue/queue-executor.ts, loaded only when the user asks for a queue). Results come back in job
 // order either way, and the same job gives the same numbers wherever it ran.
-import { defaultThreads, mapInWorkers } from './pool.js';
+import { defaultThreads, mapInWorkers, type WorkerPool } from './pool.js';
 
 /**
  * The tasks a job may name: task -> module (relative to src/) and export. A queue worker runs only these, so a
@@ -40,12 +40,15 @@ export function taskModuleUrl(task: TaskName): string {
   return new URL(`../${spec.module}${ext}`, import.meta.url).href;
 }
 
-/** Jobs in worker threads of this machine (`threads` = 1 runs them on the calling thread). */
-export function localExecutor(threads = defaultThreads()): Executor {
+/**
+ * Jobs in worker threads of this machine (`threads` = 1 runs them on the calling thread): on `pool`'s threads when
+ * given (kept for a whole run), else on threads started for each call.
+ */
+export function localExecutor(threads = defaultThreads(), pool?: WorkerPool): Executor {
   return {
     kind: 'local',
     map<I, O>(task: TaskName, inputs: readonly I[], run: ExecutorRun<O> = {}): Promise<O[]> {
-      return mapInWorkers<I, O>(taskModuleUrl(task), TASKS[task].fn, inputs, { threads, onProgress: run.onProgress, onResult: run.onResult });
+      return mapInWorkers<I, O>(taskModuleUrl(task), TASKS[task].fn, inputs, { threads, pool, onProgress: run.onProgress, onResult: run.onResult });
     },
     async close() {},
   };

@@ -5,6 +5,7 @@ import { availableParallelism } from 'node:os';
 import { fileURLToPath, pathToFileURL } from 'node:url';
 import { createRequire } from 'node:module';
 import { dirname, join } from 'node:path';
+import { describeLargeViews } from './large-views.js';
 
 export interface PoolOptions<O = unknown> {
   /** Number of worker threads; 1 runs everything on the calling thread. Default: available cores. */
@@ -13,6 +14,8 @@ export interface PoolOptions<O = unknown> {
   onProgress?: (done: number, total: number) => void;
   /** Called with each result as soon as it is in (results may arrive out of input order). */
   onResult?: (index: number, result: O) => void;
+  /** An open pool to run on (its thread count wins); default: threads started for this call and stopped after it. */
+  pool?: WorkerPool;
 }
 
 /** Default thread count: the machine's available parallelism. */
@@ -31,6 +34,7 @@ export async function mapInWorkers<I, O>(
   inputs: readonly I[],
   options: PoolOptions<O> = {},
 ): Promise<O[]> {
+  if (options.pool) return options.pool.map<I, O>(moduleUrl, fnName, inputs, options.onProgress, options.onResult);
   const threads = Math.max(1, Math.min(options.threads ?? defaultThreads(), inputs.length));
   const results = new Array<O>(inputs.length);
   if (inputs.length === 0) return results;
@@ -102,7 +106,7 @@ export function startThreadPool(threads: number): ThreadPool {
       }
       const call = waiting.shift()!;
       busy.set(w, call);
-      w.postMessage({ id: nextId++, moduleUrl: call.moduleUrl, fnName: call.fnName, input: call.input });
+      w.postMessage({ id: nextId++, moduleUrl: call.moduleUrl, fnName: call.fnName, input: describeLargeViews(call.input) });
     }
   };
   const release = (w: Worker, fail: Error | null, result?: unknown) => {
@@ -156,6 +160,54 @@ export function startThreadPool(threads: number): ThreadPool {
       await Promise.all(all.map((w) => w.terminate()));
     },
   };
+}
+
+/**
+ * Worker threads kept for a whole run (sift starts them at first use and stops them at the end), so that each
+ * stage's jobs do not pay for starting threads and importing modules again. Several `map` calls at once share the
+ * threads, in the order they were made. With one thread everything runs on the calling thread.
+ */
+export class WorkerPool {
+  readonly threads: number;
+  private pool: ThreadPool | null = null;
+
+  constructor(threads: number) {
+    this.threads = Math.max(1, Math.floor(threads));
+  }
+
+  async map<I, O>(
+    moduleUrl: string,
+    fnName: string,
+    inputs: readonly I[],
+    onProgress?: (done: number, total: number) => void,
+    onResult?: (index: number, result: O) => void,
+  ): Promise<O[]> {
+    const results = new Array<O>(inputs.length);
+    let done = 0;
+    const finish = (i: number, out: O) => {
+      results[i] = out;
+      done++;
+      onResult?.(i, out);
+      onProgress?.(done, inputs.length);
+    };
+    if (inputs.length === 0) return results;
+    if (this.threads === 1) {
+      const fn = await loadExport<I, O>(moduleUrl, fnName);
+      for (let i = 0; i < inputs.length; i++) finish(i, await fn(inputs[i]));
+      return results;
+    }
+    this.pool ??= startThreadPool(this.threads);
+    const pool = this.pool;
+    await Promise.all(inputs.map((input, i) => pool.run<I, O>(moduleUrl, fnName, input).then((out) => finish(i, out))));
+    return results;
+  }
+
+  /** Stop every thread; calls still waiting or running are rejected. The pool starts threads again if used after. */
+  async close(): Promise<void> {
+    const pool = this.pool;
+    this.pool = null;
+    await pool?.close();
+  }
 }
 
 /**

@@ -6,6 +6,7 @@
 import { join } from 'node:path';
 import { amd as computeAmd } from '../../invariants/amd.js';
 import { cacheFileName, saveCache, type CacheEntry } from '../cache.js';
+import { buildIndex, packItems } from '../../metric/packed.js';
 import { runBlockJobs } from './periodic-sets.js';
 import { reject, type SiftState, type Work } from './state.js';
 
@@ -44,6 +45,30 @@ export async function invariantsStage(s: SiftState): Promise<void> {
   else if (s.cacheDir) s.cacheFile = join(s.cacheDir, cacheFileName(s.cacheParams));
   // Invariants of structures outside the window are not needed after this stage.
   s.computed.clear();
+  packCompared(s);
+}
+
+/**
+ * Every compared structure packed once for the comparison stages (item p of `s.set` is items[p]), in shared memory
+ * when worker threads read it, with the AMD index the searches sweep. Each structure's PDD and AMD then become
+ * views of that store, and the cache's copies are let go, so a large run holds its PDDs once.
+ */
+function packCompared(s: SiftState): void {
+  const shared = s.threads > 1;
+  s.set = packItems(s.items.map((w) => ({ pdd: w.pdd! })), shared);
+  const set = s.set;
+  const k = set.k;
+  s.items.forEach((w, p) => {
+    w.pdd = { k, rows: set.rows.subarray(set.rowStart[p] * k, set.rowStart[p + 1] * k), weights: set.weights.subarray(set.rowStart[p], set.rowStart[p + 1]) };
+    w.amd = set.amd.subarray(p * k, (p + 1) * k);
+  });
+  s.cache.clear();
+  s.index = buildIndex(set, shared);
+  const rowCounts = s.items.map((w) => w.pdd!.weights.length).sort((x, y) => x - y);
+  if (rowCounts.length > 0) {
+    s.counters['PDD rows: median'] = rowCounts[rowCounts.length >> 1];
+    s.counters['PDD rows: largest'] = rowCounts[rowCounts.length - 1];
+  }
 }
 
 /**

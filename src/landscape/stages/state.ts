@@ -11,6 +11,9 @@ import type { CacheEntry, CacheParams } from '../cache.js';
 import type { Comparisons } from '../compare-cache.js';
 import type { CollapseResult } from '../collapse.js';
 import type { Progress } from '../../progress.js';
+import type { PackedSet, SortedIndex } from '../../metric/packed.js';
+import type { PairStore } from '../../metric/pair-store.js';
+import type { WorkerPool } from '../../parallel/pool.js';
 import type { RowElements } from '../../invariants/pdd.js';
 
 export interface SiftOptions {
@@ -68,7 +71,7 @@ export interface Work {
   elements: RowElements | null;
 }
 
-/** Pairs of compared structures (positions in `items`) with their EMD in Å, found within `radius`. */
+/** Pairs of compared structures (positions in `items`) with their EMD in Å: every pair within `radius` (see its stage). */
 export interface ClosePairs {
   i: Int32Array;
   j: Int32Array;
@@ -96,6 +99,10 @@ export interface SiftState {
   progress: Progress;
   /** Lines for stderr (energy problems, skipped steps). */
   messages: string[];
+  /** The worker threads of the whole run (started at first use, closed by `sift`). */
+  pool: WorkerPool;
+  /** Work counters for benchmarks (EMDs solved per stage and the like), by name. */
+  counters: Record<string, number>;
 
   // read: one entry per input block, in input order.
   work: Work[];
@@ -113,17 +120,24 @@ export interface SiftState {
   // window: the lowest energy among usable structures; the structures inside the window.
   lowest: number | null;
   active: Work[];
-  // invariants: the compared structures (usable, in the window, with a PDD and AMD), in input order.
+  // invariants: the compared structures (usable, in the window, with a PDD and AMD), in input order, and their
+  // invariants packed once for every comparison (item p of `set` is items[p]) with the AMD index the searches sweep.
   items: Work[];
+  set: PackedSet | null;
+  index: SortedIndex | null;
   cacheHits: number;
   cacheMisses: number;
   cacheFile: string | null;
-  // comparison results shared by the comparison stages, and their cache.
+  // comparison results shared by the comparison stages, and their cache; `store` holds every exact EMD solved
+  // (pairs of positions in `items`), read and extended by the duplicates, neighbours and families stages.
+  store: PairStore;
   comparisons: Comparisons;
   comparisonsChanged: boolean;
   /** Names of the comparison results taken from the cache. */
   reused: string[];
-  // duplicates: pairs within the search radius, the collapse, kept structures as positions in `items`.
+  // duplicates: the pairs of different composition within the tolerance and, when the tolerance is chosen from the
+  // run (auto) or the element check refused a merge, every pair within the search radius; the collapse, kept
+  // structures as positions in `items`.
   close: ClosePairs | null;
   /** Per position in `items`: composition class (equal reduced formula, src/geometry/composition.ts). */
   compositionClass: Int32Array;
