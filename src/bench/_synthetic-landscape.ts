@@ -7,6 +7,7 @@
 // Nothing here is a physical calculation; it only has the shape real data has.
 import type { Family, KeptInvariants, Landscape, StructureRow } from '../landscape/schema.js';
 import { seededUniform } from '../demo/prng.js';
+import { convergenceCurve } from '../landscape/convergence.js';
 
 export interface SyntheticOptions {
   /** Number of kept structures. */
@@ -196,24 +197,8 @@ export function syntheticLandscape(opts: SyntheticOptions): Landscape {
     return { index: keptAt[g]!, amd, pddWeights: [], pddRows: [] };
   });
 
-  // Convergence: distinct kept structures within each window after each prefix of the input order.
-  const windows = [5, 10, 20];
-  const points: Array<{ processed: number; counts: number[] }> = [];
-  const found = new Set<number>();
-  const counts = [0, 0, 0];
-  const step = Math.max(1, Math.floor(total / 200));
-  for (let i = 0; i < total; i++) {
-    const r = rows[i]!;
-    const g = r.keptIndex;
-    if (g !== null && !found.has(g)) {
-      found.add(g);
-      const e = rows[g]!.energyRel as number;
-      windows.forEach((w, c) => { if (e <= w) counts[c] = counts[c]! + 1; });
-    }
-    if ((i + 1) % step === 0 || i === total - 1) points.push({ processed: i + 1, counts: counts.slice() });
-  }
-  const half = points[Math.floor(points.length / 2)]!.counts[0]!;
-  const stillGrowing = counts[0]! > half;
+  // Convergence: the curve and verdict sift itself would store for this input order.
+  const convergence = opts.noConvergence ? null : convergenceCurve(rows, [5, 10, 20]);
 
   const land: Landscape = {
     format: 'polysift-landscape',
@@ -239,16 +224,7 @@ export function syntheticLandscape(opts: SyntheticOptions): Landscape {
       }),
     },
     invariants: { k, hydrogens: 'keep', kept: inv },
-    convergence: opts.noConvergence
-      ? null
-      : {
-          windows,
-          points,
-          statement: stillGrowing
-            ? 'Still growing: new structures within 5 kJ/mol kept appearing in the second half of the run.'
-            : 'Flat: no new structure within 5 kJ/mol appeared in the second half of the run.',
-          stillGrowing,
-        },
+    convergence,
   };
   return land;
 }
