@@ -133,11 +133,12 @@ describe('the sift report in a browser', () => {
     expect(next).not.toBe(idx);
     await w.page.keyboard.press('Enter');
     await w.page.waitForFunction((want) => document.getElementById('panel-id')?.textContent === want, land.structures[next]!.id);
-    // The marker is ringed: one shape anchored at the structure's density and relative energy.
+    // The marker is ringed: one circle anchored at the structure's density and relative energy.
     const hl = await w.page.evaluate(() => {
       const g = window as unknown as ReportGlobals;
-      const gd = document.getElementById('landscape-plot') as unknown as { layout: { shapes: Array<{ xanchor: number; yanchor: number }> } };
-      return { shapes: gd.layout.shapes, selected: g.polysiftReport.selected };
+      const gd = document.getElementById('landscape-plot') as unknown as { layout: { shapes: Array<{ type: string; xanchor: number; yanchor: number }> } };
+      // The ring is the one circle; the other shape marks the pair energy/density windows would merge (issue 14).
+      return { shapes: gd.layout.shapes.filter((x) => x.type === 'circle'), selected: g.polysiftReport.selected };
     });
     expect(hl.selected).toBe(next);
     expect(hl.shapes.length).toBe(1);
