@@ -420,7 +420,7 @@
     fact('Rel. energy', energyText(i));
     fact('Energy', S.energy[i] === null ? '–' : P.fmt(S.energy[i], 3) + ' ' + unit);
     fact('Density', P.fmt(S.density[i], 4) + ' g/cm³');
-    fact('Family', familyName(S.family[i]));
+    fact('Family', familyLabel(S.family[i]));
     fact('Members', String(S.members[i]));
     fact('Space group', S.spaceGroup[i] === null ? '–' : S.spaceGroup[i]);
     fact('Z / Z′', (S.z[i] === null ? '–' : String(S.z[i])) + ' / ' + (S.zPrime[i] === null ? '–' : String(S.zPrime[i])));

@@ -214,5 +214,10 @@ describe('the demo report in a browser', () => {
     const hover = (await w.page.evaluate('document.getElementById("landscape-plot").data[window.polysiftReport.traces.kept].text')) as string[];
     expect(hover.some((t) => t.includes('family: none'))).toBe(true);
     expect(hover.every((t) => !t.includes('unassigned') && !t.includes('family: -1'))).toBe(true);
+    // the structure panel of a structure in no family
+    const lone = land.kept.find((k) => land.structures[k]!.family < 0)!;
+    await w.page.evaluate((i) => (window as unknown as { polysiftReport: { select(i: number, from: string): void } }).polysiftReport.select(i, 'test'), lone);
+    const facts = await w.page.$$eval('#panel-facts dt, #panel-facts dd', (n) => n.map((x) => x.textContent));
+    expect(facts[facts.indexOf('Family') + 1]).toBe('none');
   });
 });
