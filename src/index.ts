@@ -11,6 +11,11 @@ export { parseEnergyCsv, assignEnergies, convertEnergy } from './io/energies.js'
 export { cellToBasis, cellVolume } from './geometry/cell.js';
 export { parseSymopXyz, opsFromSymbol, closeGroup } from './geometry/symmetry.js';
 export { opsFromHall } from './geometry/hall.js';
+export {
+  SPACE_GROUP_SETTINGS, OTHER_SETTINGS, settingByHall, settingByOperations, defaultSetting, groupSymbol, settingsOfGroup, settingLabel,
+  type SpaceGroupSetting,
+} from './geometry/space-group-table.js';
+export { settingFromSymbol, settingFromNumber, type ResolvedSetting, type SettingHints } from './geometry/space-group-symbol.js';
 export { toPeriodicSet } from './geometry/periodic-set.js';
 export { crystalFacts } from './geometry/facts.js';
 export { reduceBasis } from './geometry/reduce.js';
@@ -30,7 +35,7 @@ export { embed2d } from './cluster/embedding.js';
 export { adjustedRandIndex, spearman } from './cluster/stats.js';
 
 // Pipelines (src/landscape)
-export { sift } from './landscape/sift.js';
+export { sift, SIFT_STAGES } from './landscape/sift.js';
 export { siftFiles } from './landscape/sift-files.js';
 export { collapseDuplicates } from './landscape/collapse.js';
 export { convergenceCurve } from './landscape/convergence.js';

@@ -1,5 +1,6 @@
 // Data shared between the stages of the pipeline (see DEVELOPERS.md for the data flow).
 // Plain data only: a type holds data, free functions in the stage modules transform it.
+import type { SpaceGroupSetting } from './geometry/space-group-table.js';
 
 /** Cell lengths in Å and angles in degrees, as a CIF gives them. */
 export interface CellParams {
@@ -33,6 +34,8 @@ export interface Site {
   disorderGroup: string | null;
   /** `_atom_site_disorder_assembly` (null when absent or "."). */
   disorderAssembly: string | null;
+  /** `_atom_site_attached_hydrogens`: hydrogens on this atom that have no sites of their own (absent when none). */
+  attachedHydrogens?: number;
 }
 
 /** Where operations came from: listed in the block, built from the space-group symbol, or none (P1 assumed). */
@@ -53,8 +56,16 @@ export interface CrystalRecord {
   cell: CellParams;
   ops: SymOp[];
   opsOrigin: OpsOrigin;
-  /** Declared space-group symbol (Hermann–Mauguin) or null. */
+  /**
+   * Declared space-group symbol (Hermann–Mauguin, else Hall) or null; when the file gives only a number, the
+   * symbol of the setting taken for it.
+   */
   spaceGroup: string | null;
+  /**
+   * The space-group table entry (src/geometry/space-group-table.ts) the operations were built from, when they were
+   * built from a symbol or number; absent for listed operations and for Hall symbols outside the table.
+   */
+  setting?: SpaceGroupSetting;
   sites: Site[];
   /** Energy from `--energy-item`, in the file's unit, or null. */
   energy: number | null;
@@ -109,6 +120,11 @@ export interface CrystalFacts {
   zPrime: number | null;
   /** Each distinct molecule's formula in Hill order, e.g. "C6H6". */
   formulas: string[];
+  /**
+   * When no hydrogen sites are listed but sites carry `_atom_site_attached_hydrogens`: those hydrogens per cell
+   * and the density counting them (`densityGPerCm3` never counts them).
+   */
+  implicitHydrogens?: { perCell: number; densityGPerCm3: number };
   notes: string[];
 }
 

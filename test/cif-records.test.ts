@@ -104,7 +104,10 @@ describe('symmetry operations in every spelling', () => {
     );
     expect(rec.opsOrigin).toBe('listed');
     expect(rec.ops[1]).toEqual({ rot: [-1, 0, 0, 0, 1, 0, 0, 0, -1], trans: [0.5, 0.5, 0.5] });
-    expect(rec.notes.join('\n')).toMatch(/not the default setting of the declared H-M symbol 'P 21\/c'.*listed operations are used/);
+    // The note names the symbol's setting and the setting the listed operations really are (both from the table).
+    expect(rec.notes.join('\n')).toMatch(
+      /the 4 listed operations are not the setting of the declared H-M symbol 'P 21\/c' \(group 14, 'P 1 21\/c 1', Hall '-P 2ybc', 4 operations\); they are group 14, 'P 1 21\/n 1', Hall '-P 2yn'; the listed operations are used/,
+    );
   });
 
   it('adds no setting note when the listed operations are the symbol default', () => {
@@ -112,30 +115,54 @@ describe('symmetry operations in every spelling', () => {
     expect(rec.notes.filter((n) => /setting/.test(n))).toEqual([]);
   });
 
-  it('builds operations from a supported symbol when none are listed', () => {
+  it('builds operations from the symbol when none are listed and names the table entry', () => {
     const rec = record(readCifText(`data_s\n${CELL}_space_group_name_H-M_alt 'P 1 21/c 1'\n${SITES}`, 's.cif'));
     expect(rec.opsOrigin).toBe('symbol');
     expect(rec.ops.length).toBe(4);
-    expect(rec.notes.join()).toMatch(/the 4 operations were built from the H-M symbol 'P 1 21\/c 1'/);
+    expect(rec.setting?.hall).toBe('-P 2ybc');
+    expect(rec.notes.join()).toMatch(/the 4 operations were built from the H-M symbol 'P 1 21\/c 1' \(group 14, 'P 1 21\/c 1', Hall '-P 2ybc'\)/);
   });
 
-  it('builds operations from a Hall symbol when no operations and no supported H-M symbol are given', () => {
-    // R -3 c (hexagonal axes) is not in the H-M list; its Hall symbol '-R 3 2"c' gives the 36 operations
-    // of International Tables Vol. A space group 167 (hexagonal setting: 12 point operations x 3 centrings).
+  it('builds operations from a Hall symbol, which wins over the H-M symbol when both are given', () => {
+    // R -3 c (hexagonal axes): the Hall symbol '-R 3 2"c' gives the 36 operations of International Tables Vol. A
+    // space group 167 (hexagonal setting: 12 point operations x 3 centrings).
     const rec = record(readCifText(`data_s\n${CELL}_symmetry_space_group_name_H-M 'R -3 c'\n_symmetry_space_group_name_Hall '-R 3 2"c'\n${SITES}`, 's.cif'));
     expect(rec.opsOrigin).toBe('symbol');
     expect(rec.ops.length).toBe(36);
     expect(rec.spaceGroup).toBe('R -3 c');
-    expect(rec.notes.join()).toMatch(/built from the Hall symbol '-R 3 2"c'/);
+    expect(rec.notes.join()).toMatch(/built from the Hall symbol '-R 3 2"c' \(group 167, 'R -3 c:H'/);
     const p21c = record(readCifText(`data_s\n${CELL}_space_group_name_Hall '-P 2ybc'\n${SITES}`, 's.cif'));
     const key = (o: { rot: number[]; trans: number[] }): string => `${o.rot.join(',')}|${o.trans.map((t) => ((t % 1) + 1) % 1).join(',')}`;
     expect(new Set(p21c.ops.map(key))).toEqual(new Set(P21C_OPS.map(key)));
+    // A Hall symbol outside the table (P21 with its origin moved by c/12) is still expanded.
+    const shifted = record(readCifText(`data_s\n${CELL}_space_group_name_Hall 'P 2yb (0 0 1)'\n${SITES}`, 's.cif'));
+    expect(shifted.ops.length).toBe(2);
+    expect(shifted.setting).toBeUndefined();
+    expect(shifted.notes.join()).toMatch(/setting outside the International Tables list/);
+    // Hall and H-M naming different settings: the Hall symbol is used and the disagreement noted.
+    const both = record(readCifText(`data_s\n${CELL}_space_group_name_H-M_alt 'P 21/c'\n_space_group_name_Hall '-P 2yn'\n${SITES}`, 's.cif'));
+    expect(both.setting?.hm).toBe('P 1 21/n 1');
+    expect(both.notes.join()).toMatch(/the Hall symbol '-P 2yn' and the H-M symbol 'P 21\/c' name different settings .*the Hall symbol is used/);
   });
 
-  it('rejects a block with only an unsupported symbol, naming it and the supported list', () => {
-    const r = rejected(readCifText(`data_s\n${CELL}_symmetry_space_group_name_H-M 'R -3 c'\n${SITES}`, 's.cif'));
-    expect(r.reason).toMatch(/'R -3 c'/);
-    expect(r.reason).toMatch(/supported: .*P21\/c/);
+  it('builds a rhombohedral group from its symbol alone: hexagonal axes by default, rhombohedral when the cell says so', () => {
+    const rec = record(readCifText(`data_s\n${CELL}_symmetry_space_group_name_H-M 'R -3 c'\n${SITES}`, 's.cif'));
+    expect(rec.ops.length).toBe(36);
+    expect(rec.setting?.hm).toBe('R -3 c');
+    expect(rec.setting?.ext).toBe('H');
+    expect(rec.notes.join()).toMatch(/does not say which of 2 settings is meant and neither the cell nor the atom sites decide: took 'R -3 c:H'/);
+    const rhombCell = CELL.replace('10.0(2)', '6.0').replace('12.0', '6.0').replace('8.0', '6.0').replace('alpha 90', 'alpha 47.5')
+      .replace('100.0(1)', '47.5').replace('gamma 90', 'gamma 47.5');
+    const rh = record(readCifText(`data_s\n${rhombCell}_symmetry_space_group_name_H-M 'R -3 c'\n${SITES}`, 's.cif'));
+    expect(rh.setting?.ext).toBe('R');
+    expect(rh.ops.length).toBe(12);
+    expect(rh.notes.join()).not.toMatch(/does not say which/);
+  });
+
+  it('rejects a block whose only symbol names no setting, naming the symbol and the spellings read', () => {
+    const r = rejected(readCifText(`data_s\n${CELL}_symmetry_space_group_name_H-M 'P 5/q'\n${SITES}`, 's.cif'));
+    expect(r.reason).toMatch(/no symmetry operations are listed and the H-M symbol 'P 5\/q' names no space-group setting this reader knows/);
+    expect(r.reason).toMatch(/'P 21\/c', 'P 1 21\/c 1', 'R -3 c:H'/);
   });
 
   it('assumes P1 with a note when there are no operations and no symbol', () => {
@@ -145,9 +172,19 @@ describe('symmetry operations in every spelling', () => {
     expect(rec.notes.join()).toMatch(/P1 .*assumed/);
   });
 
-  it('rejects a block with only a space-group number (other than 1)', () => {
-    const r = rejected(readCifText(`data_s\n${CELL}_symmetry_Int_Tables_number 14\n${SITES}`, 's.cif'));
-    expect(r.reason).toMatch(/only a space-group number \(14\)/);
+  it('builds the default setting from a space-group number alone, with a note when the group has several settings', () => {
+    const rec = record(readCifText(`data_s\n${CELL}_symmetry_Int_Tables_number 14\n${SITES}`, 's.cif'));
+    expect(rec.opsOrigin).toBe('symbol');
+    expect(rec.setting?.hall).toBe('-P 2ybc');
+    expect(rec.spaceGroup).toBe('P 1 21/c 1');
+    expect(rec.notes.join()).toMatch(/the space-group number 14 alone does not say which of 3 settings is meant and neither the cell nor the atom sites decide: took 'P 1 21\/c 1'/);
+    expect(rec.notes.join()).toMatch(/built from the space-group number 14 \(group 14, 'P 1 21\/c 1', Hall '-P 2ybc'\)/);
+    // A setting code settles it.
+    const coded = record(readCifText(`data_s\n${CELL}_space_group_IT_number 14\n_space_group_IT_coordinate_system_code b2\n${SITES}`, 's.cif'));
+    expect(coded.setting?.hm).toBe('P 1 21/n 1');
+    expect(coded.notes.join()).not.toMatch(/does not say which/);
+    const r = rejected(readCifText(`data_s\n${CELL}_symmetry_Int_Tables_number 231\n${SITES}`, 's.cif'));
+    expect(r.reason).toMatch(/the space-group number '231' is not one of 1\.\.230/);
   });
 
   it('records the Hall symbol when no H-M symbol is given', () => {

@@ -48,7 +48,7 @@ export function landscapeOf(kept: SyntheticStructure[], k: number, params: Parti
   const structures: StructureRow[] = kept.map((s, i) => ({
     index: i, id: s.id, source: `invented.cif#${s.id}`, file: 'invented.cif', block: s.id, line: 1 + 50 * i,
     status: 'kept', reason: '', energy: s.energy, energyRel: s.energy === null || lowest === null ? null : s.energy - lowest,
-    densityGPerCm3: s.densityGPerCm3, atoms: 40, spaceGroup: 'P21/c', z: 4, zPrime: 1, formulas: ['C8H8N2O'],
+    densityGPerCm3: s.densityGPerCm3, atoms: 40, spaceGroup: 'P21/c', cell: null, z: 4, zPrime: 1, formulas: ['C8H8N2O'],
     keptIndex: i, duplicateOf: null, distanceToKept: 0, family: -1, nearestIndex: null, nearest: null,
     nearestDistance: null, nnDistance: null, members: 1, notes: [],
   }));

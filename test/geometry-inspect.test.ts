@@ -101,4 +101,35 @@ describe('inspect', () => {
     expect(parseHydrogens('drop')).toBe('drop');
     expect(() => parseHydrogens('maybe')).toThrow(/--hydrogens must be keep or drop, not 'maybe'/);
   });
+  it('states the density with the hydrogens of _atom_site_attached_hydrogens too, and explains a stated density that counts them', async () => {
+    // The same invented molecule written as X-ray files often are: no hydrogen sites, one hydrogen counted on C1.
+    // Mass per cell: 4 x (C + Cl) listed, 4 x H attached (IUPAC 2021 abridged weights C 12.011, Cl 35.45, H 1.008);
+    // density = mass / (N_A V), V = a b c sin(beta).
+    const volume = 8.3 * 9.6 * 10.4 * Math.sin((103.5 * Math.PI) / 180);
+    const toDensity = (mass: number): number => mass / (6.02214076e23 * volume * 1e-24);
+    const without = toDensity(4 * (12.011 + 35.45));
+    const withH = toDensity(4 * (12.011 + 35.45 + 1.008));
+    const dir = mkdtempSync(join(tmpdir(), 'polysift-inspect-implicit-'));
+    const implicit = join(dir, 'implicit.cif');
+    writeFileSync(
+      implicit,
+      `data_implicit\n${HEADER}_symmetry_space_group_name_H-M 'P 1 21/c 1'\n_exptl_crystal_density_diffrn ${withH.toFixed(3)}\n` +
+        `loop_\n_atom_site_label\n_atom_site_type_symbol\n_atom_site_fract_x\n_atom_site_fract_y\n_atom_site_fract_z\n_atom_site_attached_hydrogens\n` +
+        `C1 C 0.0825 0.0104 0.0049 1\nCl1 Cl 0.1963 0.1510 0.0296 0\n`,
+    );
+    const report = await inspectInputs([implicit], { hydrogens: 'keep' });
+    const s = report.structures[0]!;
+    expect(s.densityGPerCm3).toBeCloseTo(without, 3);
+    expect(s.densityWithAttachedHydrogensGPerCm3).toBeCloseTo(withH, 3);
+    expect(s.attachedHydrogensPerCell).toBe(4);
+    // The comparison uses the listed sites only: no hydrogen points in the periodic set.
+    expect(s.setPoints).toBe(8);
+    expect(s.notes.join(' ')).toMatch(
+      /_exptl_crystal_density_diffrn says [\d.]+ g\/cm³, computed [\d.]+ g\/cm³: the stated value counts the 4 hydrogens per cell that _atom_site_attached_hydrogens puts on listed atoms/,
+    );
+    expect(formatInspectText(report)).toMatch(new RegExp(`density {7}${without.toFixed(4)} g/cm³; ${withH.toFixed(4)} g/cm³ with the 4 hydrogens per cell of _atom_site_attached_hydrogens`));
+    // With hydrogen sites listed, attached hydrogens are not counted again.
+    const report2 = await inspectInputs([file], { hydrogens: 'keep' });
+    expect(report2.structures[0]!.densityWithAttachedHydrogensGPerCm3).toBeUndefined();
+  });
 });

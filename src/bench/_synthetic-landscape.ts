@@ -130,7 +130,7 @@ export function syntheticLandscape(opts: SyntheticOptions): Landscape {
     const id = `cand-${String(i).padStart(6, '0')}`;
     const base: StructureRow = {
       index: i, id, source: `${file}#${id}`, file, block: id, line: 1 + (i % 500) * 60, status: 'kept', reason: '',
-      energy: null, energyRel: null, densityGPerCm3: null, atoms: null, spaceGroup: null, z: null, zPrime: null,
+      energy: null, energyRel: null, densityGPerCm3: null, atoms: null, spaceGroup: null, cell: null, z: null, zPrime: null,
       formulas: ['C7H6N2O'], keptIndex: null, duplicateOf: null, distanceToKept: null, family: -1, nearestIndex: null,
       nearest: null, nearestDistance: null, nnDistance: null, members: 0, notes: [],
     };

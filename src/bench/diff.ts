@@ -73,7 +73,7 @@ function asPdd(p: RawPdd): Pdd {
 function landscape(pdds: RawPdd[], r: () => number): Landscape {
   const structures: StructureRow[] = pdds.map((_p, i) => ({
     index: i, id: `s${i}`, source: `bench.cif#s${i}`, file: 'bench.cif', block: `s${i}`, line: 1, status: 'kept', reason: '',
-    energy: -100 + r() * 30, energyRel: null, densityGPerCm3: 1.2 + r() * 0.3, atoms: 40, spaceGroup: null, z: null, zPrime: null,
+    energy: -100 + r() * 30, energyRel: null, densityGPerCm3: 1.2 + r() * 0.3, atoms: 40, spaceGroup: null, cell: null, z: null, zPrime: null,
     formulas: [], keptIndex: i, duplicateOf: null, distanceToKept: 0, family: -1, nearestIndex: null, nearest: null,
     nearestDistance: null, nnDistance: null, members: 1, notes: [],
   }));

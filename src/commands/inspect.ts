@@ -10,6 +10,7 @@ import { crystalFacts } from '../geometry/facts.js';
 import { toPeriodicSet } from '../geometry/periodic-set.js';
 import { pdd } from '../invariants/pdd.js';
 import { amd } from '../invariants/amd.js';
+import { settingLabel } from '../geometry/space-group-table.js';
 
 /** Default hydrogen handling: kept, as in `sift` (predicted structures place hydrogens reliably); drop them for X-ray structures. */
 export const DEFAULT_HYDROGENS: HydrogenPolicy = 'keep';
@@ -34,8 +35,14 @@ export interface InspectEntry {
   spaceGroup: string | null;
   operations: number;
   operationsFrom: OpsOrigin;
+  /** The space-group table entry the operations were built from (symbol- or number-built records), else null. */
+  tableEntry: { number: number; hm: string; ext: string; hall: string; label: string } | null;
   atomsPerCell: number;
   densityGPerCm3: number;
+  /** Density counting the hydrogens of `_atom_site_attached_hydrogens` (only when such hydrogens have no sites). */
+  densityWithAttachedHydrogensGPerCm3?: number;
+  /** Those hydrogens per cell. */
+  attachedHydrogensPerCell?: number;
   z: number;
   zPrime: number | null;
   formulas: string[];
@@ -77,8 +84,15 @@ export function inspectEntryJson(
     spaceGroup: record.spaceGroup,
     operations: record.ops.length,
     operationsFrom: record.opsOrigin,
+    tableEntry: record.setting === undefined ? null : {
+      number: record.setting.number, hm: record.setting.hm, ext: record.setting.ext, hall: record.setting.hall, label: settingLabel(record.setting),
+    },
     atomsPerCell: facts.atomsPerCell,
     densityGPerCm3: facts.densityGPerCm3,
+    ...(facts.implicitHydrogens === undefined ? {} : {
+      densityWithAttachedHydrogensGPerCm3: facts.implicitHydrogens.densityGPerCm3,
+      attachedHydrogensPerCell: facts.implicitHydrogens.perCell,
+    }),
     z: facts.z,
     zPrime: facts.zPrime,
     formulas: facts.formulas,
@@ -137,8 +151,17 @@ export function formatEntryText(s: InspectEntry): string {
   lines.push(`  cell          a ${fmt(c.a, 4)}  b ${fmt(c.b, 4)}  c ${fmt(c.c, 4)} Å   alpha ${fmt(c.alpha, 3)}  beta ${fmt(c.beta, 3)}  gamma ${fmt(c.gamma, 3)}°`);
   lines.push(`  volume        ${fmt(s.volumeA3, 2)} Å³`);
   lines.push(`  space group   ${s.spaceGroup ?? '(not stated)'}; ${s.operations} operation(s) ${describeOrigin(s.operationsFrom)}`);
+  if (s.tableEntry !== null) {
+    const t = s.tableEntry;
+    lines.push(`  table entry   group ${t.number}, ${t.label}${t.ext === '' || t.label.endsWith(`:${t.ext}`) ? '' : ` (setting ${t.ext})`}, Hall ${t.hall}`);
+  }
   lines.push(`  atoms/cell    ${s.atomsPerCell} (hydrogens included); periodic set ${s.setPoints} points, ${s.asymmetricUnitPoints} in the asymmetric unit (hydrogens ${s.hydrogens === 'keep' ? 'kept' : 'dropped'})`);
-  lines.push(`  density       ${fmt(s.densityGPerCm3, 4)} g/cm³`);
+  lines.push(
+    `  density       ${fmt(s.densityGPerCm3, 4)} g/cm³` +
+      (s.densityWithAttachedHydrogensGPerCm3 === undefined
+        ? ''
+        : `; ${fmt(s.densityWithAttachedHydrogensGPerCm3, 4)} g/cm³ with the ${Math.round(s.attachedHydrogensPerCell! * 1000) / 1000} hydrogens per cell of _atom_site_attached_hydrogens (no sites; not in the comparison)`),
+  );
   lines.push(`  Z             ${s.z}${s.zPrime === null ? '' : `   Z' ${Math.round(s.zPrime * 1000) / 1000}`}`);
   lines.push(`  molecules     ${s.formulas.join(', ')}`);
   if (s.energy !== null) lines.push(`  energy        ${s.energy}`);

@@ -7,13 +7,15 @@ import type { CrystalFacts, CrystalRecord } from '../types.js';
 import { cellVolume } from './cell.js';
 import { selectOrderedSites } from './disorder.js';
 import { atomicNumber, atomicWeight } from './elements.js';
-import { findMolecules, OVERLAP_ANGSTROM } from './molecules.js';
+import { findMolecules, hillFormula, OVERLAP_ANGSTROM } from './molecules.js';
 import { expandSites } from './periodic-set.js';
 
 const AVOGADRO_PER_MOL = 6.02214076e23;
 const CUBIC_ANGSTROM_IN_CM3 = 1e-24;
 /** Declared and computed values that differ by more than this fraction get a note. */
 const AGREEMENT_FRACTION = 0.005;
+/** Element ratios of the cell content and the stated formula may differ by this fraction (rounded occupancies). */
+const COMPOSITION_FRACTION = 0.03;
 
 export function crystalFacts(record: CrystalRecord): CrystalFacts {
   const volumeA3 = cellVolume(record.cell);
@@ -30,6 +32,17 @@ export function crystalFacts(record: CrystalRecord): CrystalFacts {
     massPerCell += w;
   }
   const densityGPerCm3 = massPerCell / (AVOGADRO_PER_MOL * volumeA3 * CUBIC_ANGSTROM_IN_CM3);
+
+  // Hydrogens counted on their atoms (_atom_site_attached_hydrogens) but given no sites: a second density that
+  // counts them, so a stated density that includes them is explained. The periodic set never holds them.
+  const hasHydrogenSites = record.sites.some((s) => s.element === 'H');
+  let implicitHydrogens: CrystalFacts['implicitHydrogens'];
+  if (!hasHydrogenSites && record.sites.some((s) => (s.attachedHydrogens ?? 0) > 0)) {
+    let perCell = 0;
+    for (let p = 0; p < all.count; p++) perCell += all.occupancy[p]! * (record.sites[all.siteIndex[p]!]!.attachedHydrogens ?? 0);
+    const withH = (massPerCell + perCell * atomicWeight(1)) / (AVOGADRO_PER_MOL * volumeA3 * CUBIC_ANGSTROM_IN_CM3);
+    implicitHydrogens = { perCell, densityGPerCm3: withH };
+  }
 
   // Atoms and molecules: the one ordered structure the disorder policy picks, hydrogens included.
   const selection = selectOrderedSites(record.sites);
@@ -53,7 +66,8 @@ export function crystalFacts(record: CrystalRecord): CrystalFacts {
   const nOps = Math.max(1, record.ops.length);
   const zPrime = opsKnown ? molecules.z / nOps : null;
 
-  notes.push(...consistencyNotes(record, volumeA3, densityGPerCm3, massPerCell, molecules.z, all.duplicateSites));
+  notes.push(...consistencyNotes(record, volumeA3, densityGPerCm3, massPerCell, molecules.z, all.duplicateSites, implicitHydrogens ?? null));
+  notes.push(...compositionNotes(record, all));
   return {
     volumeA3,
     atomsPerCell: ordered.count,
@@ -61,6 +75,7 @@ export function crystalFacts(record: CrystalRecord): CrystalFacts {
     z: molecules.z,
     zPrime,
     formulas: molecules.formulas,
+    ...(implicitHydrogens === undefined ? {} : { implicitHydrogens }),
     notes,
   };
 }
@@ -71,7 +86,7 @@ export function crystalFacts(record: CrystalRecord): CrystalFacts {
  */
 function consistencyNotes(
   record: CrystalRecord, volumeA3: number, densityGPerCm3: number, massPerCell: number, z: number,
-  duplicateSites: number,
+  duplicateSites: number, implicitHydrogens: { perCell: number; densityGPerCm3: number } | null,
 ): string[] {
   const notes: string[] = [];
   const text = record.text;
@@ -96,9 +111,13 @@ function consistencyNotes(
     }
   }
   if (declaredDensity !== null && Math.abs(declaredDensity - densityGPerCm3) > AGREEMENT_FRACTION * declaredDensity) {
+    const implicit = implicitHydrogens !== null && Math.abs(implicitHydrogens.densityGPerCm3 - declaredDensity) <= AGREEMENT_FRACTION * declaredDensity;
     notes.push(
       `_exptl_crystal_density_diffrn says ${declaredDensity} g/cm³, computed ${densityGPerCm3.toFixed(3)} g/cm³: ` +
-        densityReason(declaredDensity, volumeA3, massPerCell, composition, formula, zFormulaUnits, hasHydrogenSites, duplicateSites),
+        (implicit
+          ? `the stated value counts the ${round3(implicitHydrogens.perCell)} hydrogens per cell that _atom_site_attached_hydrogens puts on listed atoms ` +
+            `without sites of their own; with them the density is ${implicitHydrogens.densityGPerCm3.toFixed(3)} g/cm³ (the comparison uses the listed sites only)`
+          : densityReason(declaredDensity, volumeA3, massPerCell, composition, formula, zFormulaUnits, hasHydrogenSites, duplicateSites)),
     );
   }
   if (zFormulaUnits !== null && Number.isInteger(zFormulaUnits) && zFormulaUnits !== z && zFormulaUnits > 0) {
@@ -109,6 +128,42 @@ function consistencyNotes(
     );
   }
   return notes;
+}
+
+/**
+ * When the cell's content is not a whole multiple of `_chemical_formula_sum` (hydrogen left out when no hydrogen
+ * sites are listed), say so: atoms are missing or extra, or the coordinates belong to another origin or setting
+ * than the operations used (as when a symbol alone is given for coordinates in a non-standard origin).
+ */
+function compositionNotes(record: CrystalRecord, all: ReturnType<typeof expandSites>): string[] {
+  const formula = textItem(record.text, '_chemical_formula_sum');
+  const composition = formula === null ? null : parseFormulaSum(formula);
+  if (composition === null) return [];
+  const hasHydrogenSites = record.sites.some((s) => s.element === 'H');
+  const content = new Map<number, number>();
+  for (let p = 0; p < all.count; p++) {
+    const zc = all.atomicNumbers[p]!;
+    content.set(zc, (content.get(zc) ?? 0) + all.occupancy[p]!);
+  }
+  const elements = new Set([...composition.keys(), ...content.keys()]);
+  if (!hasHydrogenSites) elements.delete(1);
+  const ratios: number[] = [];
+  for (const zc of elements) ratios.push((content.get(zc) ?? 0) / (composition.get(zc) ?? 0));
+  const lo = Math.min(...ratios);
+  const hi = Math.max(...ratios);
+  // Occupancies rounded in the file move a ratio by a few per cent at most.
+  if (ratios.length === 0 || (Number.isFinite(hi) && lo > 0 && hi <= lo * (1 + COMPOSITION_FRACTION))) return [];
+  const shown = new Map([...content.entries()].filter(([zc]) => hasHydrogenSites || zc !== 1).map(([zc, n]) => [zc, round3(n)]));
+  const cellFormula = hillFormula(shown);
+  return [
+    `the sites put ${cellFormula} in the cell, which is not a whole multiple of _chemical_formula_sum (${formula})` +
+      (hasHydrogenSites ? '' : ', hydrogen aside') +
+      `: atoms are missing or extra, or the coordinates are for another origin or setting than the ${record.ops.length} operations used`,
+  ];
+}
+
+function round3(v: number): number {
+  return Math.round(v * 1000) / 1000;
 }
 
 /** Why a stated density differs from the sites' one, as far as the file lets us tell. */

@@ -60,7 +60,9 @@ export interface ExpandOptions {
  * Expand the listed sites `siteIndices` of `record` by its operations and merge coinciding images.
  * Throws when a site has non-finite coordinates or an element we do not know.
  */
-export function expandSites(record: CrystalRecord, siteIndices: number[], options: ExpandOptions = {}): ExpandedSites {
+export function expandSites(
+  record: Pick<CrystalRecord, 'cell' | 'ops' | 'sites'>, siteIndices: number[], options: ExpandOptions = {},
+): ExpandedSites {
   const toleranceAngstrom = options.toleranceAngstrom ?? MERGE_TOLERANCE_ANGSTROM;
   const keepAllShared = options.sharedPositions === 'keep-all';
   const basis = cellToBasis(record.cell);

@@ -3,8 +3,12 @@
 // Data names follow the CIF core dictionary (IUCr, open standard), with both the current
 // (`_space_group_symop_operation_xyz`) and the older (`_symmetry_equiv_pos_as_xyz`) spellings.
 import type { BlockResult, CellParams, CrystalRecord, Site, SymOp } from '../types.js';
-import { opsFromSymbol, opKey, parseSymopXyz, SUPPORTED_SYMBOLS } from '../geometry/symmetry.js';
-import { opsFromHall } from '../geometry/hall.js';
+import { parseSymopXyz } from '../geometry/symmetry.js';
+import { settingByOperations, settingLabel, type SpaceGroupSetting } from '../geometry/space-group-table.js';
+import {
+  declaredSpaceGroup, describe as describeSetting, listedMatchDeclared, settingOps, type DeclaredSpaceGroup, type SpaceGroupItems,
+} from './declared-space-group.js';
+import { settingFromSites } from '../geometry/setting-from-sites.js';
 import { elementFromSite, type ElementReading } from '../geometry/elements.js';
 import {
   cifColumn,
@@ -33,6 +37,9 @@ const OP_NAMES = ['_space_group_symop_operation_xyz', '_symmetry_equiv_pos_as_xy
 const HM_NAMES = ['_space_group_name_h-m_alt', '_symmetry_space_group_name_h-m', '_space_group.name_h-m_alt'];
 const HALL_NAMES = ['_space_group_name_hall', '_symmetry_space_group_name_hall', '_space_group.name_hall'];
 const NUMBER_NAMES = ['_space_group_it_number', '_symmetry_int_tables_number', '_space_group.it_number'];
+/** Setting codes ('1', '2', 'h', 'r', 'b1', 'ba-c'): the CIF symmetry dictionary's name, then one some writers use. */
+const CODE_NAMES = ['_space_group_it_coordinate_system_code', '_space_group.it_coordinate_system_code', '_space_group_setting'];
+const CELL_SETTING_NAMES = ['_symmetry_cell_setting'];
 const CELL_NAMES: Array<[keyof CellParams, string]> = [
   ['a', '_cell_length_a'],
   ['b', '_cell_length_b'],
@@ -111,37 +118,37 @@ export function recordFromBlock(block: CifBlock, text: string, file: string, opt
   // ---- space group and operations ----
   const hm = firstText(block, HM_NAMES);
   const hall = firstText(block, HALL_NAMES);
-  const spaceGroup = hm ?? hall;
+  const items: SpaceGroupItems = {
+    hm, hall, number: firstText(block, NUMBER_NAMES), code: firstText(block, CODE_NAMES), cellSetting: firstText(block, CELL_SETTING_NAMES),
+  };
   const listed = readListedOps(block, notes);
   if (typeof listed === 'string') return listed;
-  // The symbol that can be expanded: a supported H-M symbol, else a Hall symbol (explicit generators).
-  const symbolRef: SymbolRef | null =
-    hm !== null && cachedSymbolOps(hm, 'H-M') !== null
-      ? { symbol: hm, kind: 'H-M' }
-      : hall !== null && cachedSymbolOps(hall, 'Hall') !== null
-        ? { symbol: hall, kind: 'Hall' }
-        : null;
+  const declared = declaredSpaceGroup(items, cell);
+  let spaceGroup = hm ?? hall;
   let ops: SymOp[];
   let opsOrigin: CrystalRecord['opsOrigin'];
+  let setting: SpaceGroupSetting | null = null;
+  if (declared !== null && 'unreadable' in declared) {
+    if (listed === null) {
+      return (
+        `no symmetry operations are listed and ${declared.unreadable}; this reader knows every International Tables setting ` +
+        `in the usual spellings ('P 21/c', 'P 1 21/c 1', 'R -3 c:H', 'F d -3 m:2', 'Pnma') and any Hall symbol; ` +
+        `list the operations with _space_group_symop_operation_xyz or correct the symbol`
+      );
+    }
+    notes.push(`${declared.unreadable}; the listed operations are used`);
+  }
+  const usable = declared !== null && !('unreadable' in declared) ? declared : null;
+  if (usable !== null) notes.push(...usable.conflicts);
   if (listed !== null) {
     ops = listed.ops;
     opsOrigin = 'listed';
-    if (symbolRef !== null) compareWithSymbol(ops, listed.textKey, symbolRef, notes);
-  } else if (symbolRef !== null) {
-    ops = cachedSymbolOps(symbolRef.symbol, symbolRef.kind)!.map((op) => ({ rot: op.rot.slice(), trans: op.trans.slice() }));
+    if (usable !== null) compareWithDeclared(ops, listed.textKey, usable, items, notes);
+  } else if (usable !== null) {
+    ops = usable.ops;
     opsOrigin = 'symbol';
-    notes.push(`no operations are listed: the ${ops.length} operations were built from the ${symbolRef.kind} symbol '${symbolRef.symbol}'`);
-  } else if (spaceGroup !== null) {
-    return (
-      `no symmetry operations are listed and the space-group symbol '${spaceGroup}' is not one this reader can expand ` +
-      `(H-M symbols supported: ${SUPPORTED_SYMBOLS.join(', ')}; any Hall symbol in _space_group_name_Hall is expanded); ` +
-      `list the operations with _space_group_symop_operation_xyz or give the Hall symbol`
-    );
+    setting = usable.setting;
   } else {
-    const num = firstText(block, NUMBER_NAMES);
-    if (num !== null && cifNumber(num) !== 1) {
-      return `only a space-group number (${num}) is given, with no symbol and no operations; list the operations with _space_group_symop_operation_xyz`;
-    }
     ops = [{ rot: [1, 0, 0, 0, 1, 0, 0, 0, 1], trans: [0, 0, 0] }];
     opsOrigin = 'identity';
     notes.push('no symmetry operations and no space-group symbol: P1 (identity only) assumed');
@@ -150,6 +157,30 @@ export function recordFromBlock(block: CifBlock, text: string, file: string, opt
   // ---- sites ----
   const sites = readSites(block, notes);
   if (typeof sites === 'string') return sites;
+
+  if (opsOrigin === 'symbol' && usable !== null) {
+    // Settings the symbol and cell left open: the atom sites may decide (./setting-from-sites.ts).
+    if (usable.open.length > 1) {
+      const picked = settingFromSites(cell, sites, usable.open.map(settingOps));
+      if (picked.best !== null) {
+        setting = usable.open[picked.best]!;
+        ops = settingOps(setting);
+        const fits = picked.fits!;
+        notes.push(
+          `'${usable.text}' does not say which of ${usable.open.length} settings is meant; the atom sites decide: ` +
+            usable.open.map((s, i) => `'${settingLabel(s)}' gives ${fits[i]!.atoms} atoms per cell with ${fits[i]!.overlaps} overlapping pair(s)`).join(', ') +
+            `; took '${settingLabel(setting)}' (fewest overlapping atoms, then fewest atoms: sites written for one origin sit on its special positions)`,
+        );
+      } else {
+        notes.push(usable.undecided!);
+      }
+    }
+    ops = ops.map((op) => ({ rot: op.rot.slice(), trans: op.trans.slice() }));
+    if (spaceGroup === null && setting !== null) spaceGroup = settingLabel(setting);
+    notes.push(...usable.decisions);
+    const what = usable.from === 'number' ? `space-group number ${usable.text}` : `${usable.from} symbol '${usable.text}'`;
+    notes.push(`no operations are listed: the ${ops.length} operations were built from the ${what} (${describeSetting(setting)})`);
+  }
 
   // ---- energy ----
   const energy = readEnergy(block, opts.energyItem ?? null, notes);
@@ -164,6 +195,7 @@ export function recordFromBlock(block: CifBlock, text: string, file: string, opt
     ops,
     opsOrigin,
     spaceGroup,
+    ...(setting === null ? {} : { setting }),
     sites,
     energy,
     text,
@@ -253,70 +285,31 @@ function cachedOp(text: string): SymOp {
   return { rot: op.rot.slice(), trans: op.trans.slice() };
 }
 
-type SymbolKind = 'H-M' | 'Hall';
-interface SymbolRef {
-  symbol: string;
-  kind: SymbolKind;
-}
+/** (declared items, listed operation texts) -> whether they agree; prediction files repeat both in every block. */
+const comparedCache = new Map<string, boolean>();
 
-/** (kind, symbol) -> its operations (null when it cannot be expanded); files repeat a few symbols in every block. */
-const symbolCache = new Map<string, SymOp[] | null>();
-
-function cachedSymbolOps(symbol: string, kind: SymbolKind): SymOp[] | null {
-  const key = `${kind}\u0000${symbol}`;
-  let ops = symbolCache.get(key);
-  if (ops === undefined) {
-    if (kind === 'H-M') ops = opsFromSymbol(symbol);
-    else {
-      try {
-        ops = opsFromHall(symbol);
-      } catch {
-        ops = null;
-      }
-    }
-    if (symbolCache.size >= OP_CACHE_MAX) symbolCache.clear();
-    symbolCache.set(key, ops);
-  }
-  return ops;
-}
-
-/** Keys of a symbol's operations, for comparing with listed ones. */
-const symbolKeyCache = new Map<string, Set<string>>();
-
-/** Note when listed operations are not the setting the declared symbol names (the listed ones are used). */
-function compareWithSymbol(ops: SymOp[], textKey: string, ref: SymbolRef, notes: string[]): void {
-  const { symbol, kind } = ref;
-  const key = `${kind}\u0000${symbol}`;
-  // The same symbol with the same operation texts was compared before (prediction files repeat both).
-  const pairKey = `${key}\u0000${textKey}`;
+/** Note when listed operations are not a setting the declared symbol or number names (the listed operations are used). */
+function compareWithDeclared(ops: SymOp[], textKey: string, declared: DeclaredSpaceGroup, items: SpaceGroupItems, notes: string[]): void {
+  const pairKey = `${declared.from}\u0000${declared.text}\u0000${items.code ?? ''}\u0000${items.cellSetting ?? ''}\u0000${textKey}`;
   let same = comparedCache.get(pairKey);
   if (same === undefined) {
-    same = sameOperations(ops, key, symbol, kind);
+    same = listedMatchDeclared(ops, declared);
     if (comparedCache.size >= OP_CACHE_MAX) comparedCache.clear();
     comparedCache.set(pairKey, same);
   }
-  if (!same) {
-    notes.push(
-      `the ${ops.length} listed operations are not the default setting of the declared ${kind} symbol '${symbol}' ` +
-        `(${cachedSymbolOps(symbol, kind)!.length} operations there); the listed operations are used`,
-    );
+  if (same) return;
+  const what = declared.from === 'number' ? `space-group number ${declared.text}` : `${declared.from} symbol '${declared.text}'`;
+  let actual: string;
+  try {
+    const match = settingByOperations(ops);
+    actual = match === null ? 'they are no International Tables setting (another origin or cell, or not a whole group)' : `they are ${describeSetting(match)}`;
+  } catch {
+    actual = 'they do not form a group';
   }
-}
-
-const comparedCache = new Map<string, boolean>();
-
-/** True when the listed operations are exactly the symbol's (as sets, translations modulo 1). */
-function sameOperations(ops: SymOp[], key: string, symbol: string, kind: SymbolKind): boolean {
-  let symbolKeys = symbolKeyCache.get(key);
-  if (symbolKeys === undefined) {
-    symbolKeys = new Set(cachedSymbolOps(symbol, kind)!.map(opKey));
-    if (symbolKeyCache.size >= OP_CACHE_MAX) symbolKeyCache.clear();
-    symbolKeyCache.set(key, symbolKeys);
-  }
-  const listedKeys = new Set(ops.map(opKey));
-  let same = listedKeys.size === symbolKeys.size;
-  if (same) for (const k of listedKeys) if (!symbolKeys.has(k)) same = false;
-  return same;
+  notes.push(
+    `the ${ops.length} listed operations are not the setting of the declared ${what} (${describeSetting(declared.setting)}, ` +
+      `${declared.ops.length} operations); ${actual}; the listed operations are used`,
+  );
 }
 
 // ---- sites ----
@@ -379,6 +372,7 @@ function readSites(block: CifBlock, notes: string[]): Site[] | string {
   const groups = sameLoopColumn(block, '_atom_site_disorder_group', xs);
   const assemblies = sameLoopColumn(block, '_atom_site_disorder_assembly', xs);
   const calc = sameLoopColumn(block, '_atom_site_calc_flag', xs);
+  const attachedH = sameLoopColumn(block, '_atom_site_attached_hydrogens', xs);
   if (labels === null && types === null) {
     return `line ${lineAt(xs, 0)}: the atom-site loop has neither _atom_site_label nor _atom_site_type_symbol, so no element can be read`;
   }
@@ -444,6 +438,8 @@ function readSites(block: CifBlock, notes: string[]): Site[] | string {
         if (occupancy < 0.9999) partial++;
       }
     }
+    // Hydrogens the file counts on this atom without giving them sites (CIF core: _atom_site_attached_hydrogens).
+    const hydrogens = attachedH !== null && !isMissingAt(attachedH, i) ? numberAt(attachedH, i) : 0;
     sites.push({
       label,
       element: el.element,
@@ -451,6 +447,7 @@ function readSites(block: CifBlock, notes: string[]): Site[] | string {
       occupancy,
       disorderGroup: groups !== null ? textOrNull(groups, i) : null,
       disorderAssembly: assemblies !== null ? textOrNull(assemblies, i) : null,
+      ...(Number.isInteger(hydrogens) && hydrogens > 0 && hydrogens <= 4 ? { attachedHydrogens: hydrogens } : {}),
     });
   }
   if (dummies.length > 0) notes.push(`dummy sites (calc flag 'dum') left out: ${listLabels(dummies)}`);

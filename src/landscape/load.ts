@@ -68,6 +68,10 @@ export function validateLandscape(data: unknown, where: string): Landscape {
     if (s.status === 'kept' && s.keptIndex !== i) fail(`${f}.keptIndex`, `must be ${i} for a kept structure`);
     if (!Array.isArray(s.formulas)) fail(`${f}.formulas`, 'must be a list');
     if (!Array.isArray(s.notes)) fail(`${f}.notes`, 'must be a list');
+    // Landscapes written before rows carried their cell read as cell unknown.
+    if (s.cell === undefined) s.cell = null;
+    else if (s.cell !== null && !(isObject(s.cell) && ['a', 'b', 'c', 'alpha', 'beta', 'gamma'].every((key) => isFiniteNumber((s.cell as Record<string, unknown>)[key]))))
+      fail(`${f}.cell`, 'must be null or an object with numbers a, b, c, alpha, beta, gamma');
     return undefined;
   });
 

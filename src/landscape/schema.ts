@@ -51,6 +51,8 @@ export interface StructureRow {
   /** Atoms per cell used for the invariants (after the hydrogen policy). */
   atoms: number | null;
   spaceGroup: string | null;
+  /** Cell as read: lengths in Å, angles in degrees, volume in Å³ (null when the angles span no cell). */
+  cell: { a: number; b: number; c: number; alpha: number; beta: number; gamma: number; volume: number | null } | null;
   z: number | null;
   zPrime: number | null;
   formulas: string[];
