@@ -3,7 +3,7 @@
 // energy/density windows would merge, and how far the metric map can be trusted. Browser behaviour is in
 // report-demo.test.ts and report-browser.test.ts.
 import { describe, expect, it } from 'vitest';
-import { spawnSync } from 'node:child_process';
+import { numpy } from './helpers/numpy.js';
 import fc from 'fast-check';
 import {
   buildEdgeClasses, decimalsOf, defaultLineMax, edgeClassOf, edgeRanks, EDGE_CLASSES, landscapeView, roundClasses,
@@ -13,16 +13,6 @@ import { mapQuality } from '../src/report/map-quality.js';
 import { syntheticLandscape } from './helpers/synthetic-landscape.js';
 import { landscapeOf, randomPdd, rng, type SyntheticStructure } from './diff-fixtures.js';
 import type { Landscape } from '../src/landscape/schema.js';
-
-/** numpy (the reference library) on JSON input. */
-function numpy(script: string, input: unknown): unknown {
-  const r = spawnSync('python3', ['-c', `import json,sys\nimport numpy as np\nd=json.load(sys.stdin)\n${script}`], {
-    input: JSON.stringify(input),
-    encoding: 'utf8',
-  });
-  if (r.error || r.status !== 0) throw new Error(`python3 with numpy is needed for this test: ${r.error?.message ?? r.stderr}`);
-  return JSON.parse(r.stdout);
-}
 
 const STEPS = [1, 2, 2.5, 5];
 

@@ -1,7 +1,7 @@
 // The report's page machinery without a browser: escaping, the colour scale, the histogram, the page data
 // and the assembled HTML. Browser behaviour is in report-browser.test.ts.
 import { describe, expect, it } from 'vitest';
-import { spawnSync } from 'node:child_process';
+import { numpy } from './helpers/numpy.js';
 import { readFileSync } from 'node:fs';
 import { runInNewContext } from 'node:vm';
 import { escapeHtml, inlineScriptSource, jsonForScript } from '../src/report/escape.js';
@@ -21,16 +21,6 @@ const HOSTILE = [
   '<!--<script>',
   'line\u2028separator\u2029end',
 ];
-
-/** Run numpy (the reference library) on JSON input; a missing python3/numpy fails with a clear message. */
-function numpy(script: string, input: unknown): unknown {
-  const r = spawnSync('python3', ['-c', `import json,sys\nimport numpy as np\nd=json.load(sys.stdin)\n${script}`], {
-    input: JSON.stringify(input),
-    encoding: 'utf8',
-  });
-  if (r.error || r.status !== 0) throw new Error(`python3 with numpy is needed for this test: ${r.error?.message ?? r.stderr}`);
-  return JSON.parse(r.stdout);
-}
 
 function embeddedData(html: string): unknown {
   const open = `<script type="application/json" id="${PAGE_DATA_ID}">`;
