@@ -308,8 +308,8 @@
     pairShapes.push({ type: 'line', xref: 'x', yref: 'y', x0: S.density[a], y0: yOf(a), x1: S.density[b], y1: yOf(b), layer: 'above',
       line: { color: '#d55e00', width: 2.5, dash: 'dot' } });
     var right = S.density[b] >= S.density[a] ? b : a;
-    pairAnnotations.push({ x: S.density[right], y: yOf(right), xref: 'x', yref: 'y', ax: 40, ay: -36, showarrow: true, arrowhead: 2,
-      arrowcolor: '#d55e00', font: { color: '#a34400', size: 11 }, bgcolor: 'rgba(255,255,255,0.85)',
+    pairAnnotations.push({ x: S.density[right], y: yOf(right), xref: 'x', yref: 'y', ax: 50, ay: -48, showarrow: true, arrowhead: 2,
+      arrowcolor: '#d55e00', font: { color: '#a34400', size: 11 }, bgcolor: 'rgba(255,255,255,0.6)',
       text: 'windows merge ' + P.escapeForPlot(S.id[a]) + ' and ' + P.escapeForPlot(S.id[b]) + '<br>EMD ' + P.fmtDistance(W.example.emdAngstrom) + ' Å' });
     report.windowPair = [a, b];
   })();
