@@ -56,6 +56,14 @@
   function familyLabel(f) { return f < 0 ? 'none' : String(f); }
   function familyName(f) { return 'family ' + familyLabel(f); }
   function markerSize(members) { return Math.min(24, 6 + 4 * Math.sqrt(Math.max(0, members - 1))); }
+  /** The cell as one line, lengths in Å and angles in degrees (null when not known); its volume in Å³ apart. */
+  function cellText(i) {
+    var c = S.cell[i];
+    if (!c) return null;
+    return 'a, b, c ' + P.fmt(c[0], 3) + ', ' + P.fmt(c[1], 3) + ', ' + P.fmt(c[2], 3) + ' Å; α, β, γ ' +
+      P.fmt(c[3], 2) + ', ' + P.fmt(c[4], 2) + ', ' + P.fmt(c[5], 2) + '°';
+  }
+  function volumeText(i) { return S.cell[i] && S.cell[i][6] !== null ? P.fmt(S.cell[i][6], 1) + ' Å³' : null; }
   function energyText(i) { return hasEnergies ? P.fmt(S.energyRel[i], 3) + ' ' + unit : 'no energy'; }
 
   // ---- Header ----------------------------------------------------------------------------------
@@ -179,6 +187,7 @@
       'rel. energy ' + energyText(i) + ', density ' + P.fmt(S.density[i], 4) + ' g/cm³',
       'family: ' + familyLabel(S.family[i]) + ', ' + S.members[i] + (S.members[i] === 1 ? ' member' : ' members') +
         (S.spaceGroup[i] === null ? '' : ', ' + P.escapeForPlot(S.spaceGroup[i]))];
+    if (S.cell[i]) lines.push(cellText(i) + (volumeText(i) ? '; V ' + volumeText(i) : ''));
     var nb = neighbours[i] || [];
     if (nb.length > 0) {
       lines.push('nearest: ' + nb.slice(0, 5).map(function (x) {
@@ -424,6 +433,8 @@
     fact('Members', String(S.members[i]));
     fact('Space group', S.spaceGroup[i] === null ? '–' : S.spaceGroup[i]);
     fact('Z / Z′', (S.z[i] === null ? '–' : String(S.z[i])) + ' / ' + (S.zPrime[i] === null ? '–' : String(S.zPrime[i])));
+    fact('Cell', cellText(i) || '–');
+    fact('Volume', volumeText(i) || '–');
     fact('Atoms per cell', S.atoms[i] === null ? '–' : String(S.atoms[i]));
     fact('Formula', D.formulas[S.formula[i]] || '–');
     var nb = neighbours[i] || [];

@@ -35,6 +35,8 @@ describe('the demo report in a browser', () => {
   let land: Landscape;
   let demo: DemoResult;
 
+  // The demo search (400 relaxations on 2 cores) and a browser launch run together; on a machine shared with
+  // other test runs this can take several minutes, so the hook gets a generous limit of its own.
   beforeAll(async () => {
     const out = mkdtempSync(join(tmpdir(), 'polysift-demo-'));
     const [ran, launched] = await Promise.all([runDemo({ out }), launchChromium()]);
@@ -42,7 +44,7 @@ describe('the demo report in a browser', () => {
     browser = launched;
     land = JSON.parse(readFileSync(join(out, 'landscape.json'), 'utf8')) as Landscape;
     w = await openFile(browser, join(out, 'report.html'));
-  });
+  }, 600_000);
 
   afterAll(async () => {
     await browser?.close();
@@ -74,6 +76,20 @@ describe('the demo report in a browser', () => {
     await w.page.waitForFunction((want) => document.getElementById('panel-id')?.textContent === want, land.structures[idx]!.id, { timeout: 15_000 });
     const members = await w.page.locator('#members-table tbody tr').count();
     expect(members).toBe(land.structures[idx]!.members - 1);
+    // Its cell and volume, in the hover label under the mouse and in the panel (issue 14). The volume is the
+    // triclinic cell volume a b c sqrt(1 - cos²α - cos²β - cos²γ + 2 cosα cosβ cosγ) (International Tables for
+    // Crystallography Vol. B, from memory), and the cell holds the structure's density.
+    const cell = land.structures[idx]!.cell!;
+    const [ca, cb, cg] = [cell.alpha, cell.beta, cell.gamma].map((x) => Math.cos((x * Math.PI) / 180)) as [number, number, number];
+    const volume = cell.a * cell.b * cell.c * Math.sqrt(1 - ca * ca - cb * cb - cg * cg + 2 * ca * cb * cg);
+    expect(cell.volume!).toBeCloseTo(volume, 6);
+    const cellLine = `a, b, c ${cell.a.toFixed(3)}, ${cell.b.toFixed(3)}, ${cell.c.toFixed(3)} Å; ` +
+      `α, β, γ ${cell.alpha.toFixed(2)}, ${cell.beta.toFixed(2)}, ${cell.gamma.toFixed(2)}°`;
+    const hover = (await w.page.locator('#landscape-plot .hoverlayer .hovertext').first().textContent())!;
+    expect(hover).toContain(`${cellLine}; V ${volume.toFixed(1)} Å³`);
+    const facts = await w.page.$$eval('#panel-facts dt, #panel-facts dd', (n) => n.map((x) => x.textContent));
+    expect(facts[facts.indexOf('Cell') + 1]).toBe(cellLine);
+    expect(facts[facts.indexOf('Volume') + 1]).toBe(`${volume.toFixed(1)} Å³`);
     await (await w.page.$('.ps-row-table'))!.screenshot({ path: join(SCREENS, 'demo-panel.png') });
   });
 

@@ -123,6 +123,16 @@ export function syntheticLandscape(opts: SyntheticOptions): Landscape {
   for (let d = 0; d < nDup; d++) closestDup[dupOwner[d]!] = Math.min(closestDup[dupOwner[d]!]!, dupDist[d]!);
 
   const sg = (g: number) => SPACE_GROUPS[g % SPACE_GROUPS.length] as string;
+  /**
+   * A cell that holds Z molecules of C7H6N2O (134.14 g/mol) at the given density: a and b from fixed fractions of
+   * g (the random stream is left as it was), beta from 90 to 115 degrees, c from the volume (Z M / (rho N_A)).
+   */
+  const cellFor = (g: number, densityGPerCm3: number): StructureRow['cell'] => {
+    const volume = (Z_OF[sg(g)]! * 134.14) / (densityGPerCm3 * 0.602214076);
+    const a = 5 + ((g * 0.618034) % 1) * 6, b = 6 + ((g * 0.414214) % 1) * 8, beta = 90 + ((g * 0.732051) % 1) * 25;
+    const c = volume / (a * b * Math.sin((beta * Math.PI) / 180));
+    return { a, b, c, alpha: 90, beta, gamma: 90, volume };
+  };
   const rows: StructureRow[] = [];
   for (let i = 0; i < total; i++) {
     const w = which[i]!;
@@ -139,7 +149,7 @@ export function syntheticLandscape(opts: SyntheticOptions): Landscape {
       const nb0 = nbIdx[g * nbK]!;
       Object.assign(base, {
         status: 'kept', energy: -95 + eRel[g]!, energyRel: eRel[g]!, densityGPerCm3: dens[g]!, atoms: 16 * Z_OF[sg(g)]!,
-        spaceGroup: sg(g), z: Z_OF[sg(g)]!, zPrime: 1, keptIndex: i, distanceToKept: 0, family: fam[g]!,
+        spaceGroup: sg(g), cell: cellFor(g, dens[g]!), z: Z_OF[sg(g)]!, zPrime: 1, keptIndex: i, distanceToKept: 0, family: fam[g]!,
         nearestIndex: nb0 >= 0 ? keptAt[nb0]! : null, nearestDistance: nb0 >= 0 ? nbDist[g * nbK]! : null,
         nnDistance: Math.min(closestDup[g]!, nb0 >= 0 ? nbDist[g * nbK]! : Infinity),
         members: members[g]!,
@@ -154,6 +164,7 @@ export function syntheticLandscape(opts: SyntheticOptions): Landscape {
         nnDistance: dupDist[w]!,
       });
       base.energyRel = (base.energy as number) + 95;
+      base.cell = cellFor(g, base.densityGPerCm3 as number);
     } else if (kind[i] === 2) {
       Object.assign(base, { status: 'rejected', reason: REASONS[w % REASONS.length]! });
       base.formulas = [];

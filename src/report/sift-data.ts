@@ -2,7 +2,7 @@
 // structure index) so that 10,000 structures stay a few MB and parse quickly, plus what the page
 // would otherwise compute: EMD colour classes of the neighbourhood lines, the nearest-neighbour
 // histogram, and the kept structures' AMD vectors packed compactly in base64 (see packAmd).
-import type { ConvergenceCurve, Embedding, Landscape, SiftParameters, Status } from '../landscape/schema.js';
+import type { ConvergenceCurve, Embedding, Landscape, SiftParameters, Status, StructureRow } from '../landscape/schema.js';
 import { colourClasses, FAMILY_COLOURS, stepColourscale, UNASSIGNED_COLOUR, VIRIDIS_STOPS } from './colours.js';
 import { logHistogram, type LogHistogram } from './log-histogram.js';
 import { compareWithWindows, type WindowComparison } from './window-compare.js';
@@ -41,6 +41,8 @@ export interface StructureColumns {
   nnDistance: Array<number | null>;
   members: number[];
   notes: string[][];
+  /** a, b, c (Å), alpha, beta, gamma (degrees) and volume (Å³, null when the angles span no cell) as read, or null. */
+  cell: Array<Array<number | null> | null>;
 }
 
 export interface EdgeClasses {
@@ -131,7 +133,7 @@ export function buildSiftPageData(landscape: Landscape, title: string): SiftPage
   const s: StructureColumns = {
     id: [], file: [], block: [], line: [], status: [], reason: [], energy: [], energyRel: [], density: [],
     atoms: [], spaceGroup: [], z: [], zPrime: [], formula: [], keptIndex: [], distanceToKept: [], family: [],
-    nearestIndex: [], nearestDistance: [], nnDistance: [], members: [], notes: [],
+    nearestIndex: [], nearestDistance: [], nnDistance: [], members: [], notes: [], cell: [],
   };
   for (let i = 0; i < n; i++) {
     const r = rows[i]!;
@@ -160,6 +162,7 @@ export function buildSiftPageData(landscape: Landscape, title: string): SiftPage
     s.nnDistance.push(sig(r.nnDistance));
     s.members.push(r.members);
     s.notes.push(r.notes ?? []);
+    s.cell.push(cellOf(r));
   }
   for (const k of landscape.kept) {
     if (!(k >= 0 && k < n) || rows[k]!.status !== 'kept') throw new Error(`landscape: kept entry ${k} is not a kept structure`);
@@ -416,6 +419,16 @@ export function unpackAmdRow(packed: PackedAmd, row: number): Float64Array {
     }
   }
   return out;
+}
+
+/**
+ * The row's cell as [a, b, c, alpha, beta, gamma, volume], each to 7 significant digits, or null when the row has
+ * no cell. The volume alone may be null (angles that span no cell).
+ */
+function cellOf(r: StructureRow): Array<number | null> | null {
+  const c = r.cell;
+  if (!c) return null;
+  return [sig(c.a), sig(c.b), sig(c.c), sig(c.alpha), sig(c.beta), sig(c.gamma), sig(c.volume)];
 }
 
 function intern(value: string, table: string[], ids: Map<string, number>): number {
