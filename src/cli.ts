@@ -1,28 +1,10 @@
 #!/usr/bin/env node
-// The command line: a thin shell over the library. Each command lives in src/commands/<name>.ts.
-import { Command, CommanderError } from 'commander';
-import { VERSION } from './version.js';
-import { registerInspect } from './commands/inspect.js';
-import { registerDistance } from './commands/distance.js';
-import { registerSift } from './commands/sift.js';
-import { registerDemo } from './commands/demo.js';
-import { registerDiff } from './commands/diff.js';
-import { registerLocate } from './commands/locate.js';
+// The command line: a thin shell over the library. Each command lives in src/commands/<name>.ts (src/program.ts
+// registers them).
+import { CommanderError } from 'commander';
+import { buildProgram } from './program.js';
 
-export function buildProgram(): Command {
-  const program = new Command();
-  program
-    .name('polysift')
-    .description('Sift crystal structure prediction landscapes with isometry invariants (PDD, AMD) and the EMD metric.')
-    .version(VERSION);
-  registerSift(program);
-  registerDiff(program);
-  registerLocate(program);
-  registerDemo(program);
-  registerInspect(program);
-  registerDistance(program);
-  return program;
-}
+export { buildProgram };
 
 async function main(): Promise<void> {
   const program = buildProgram();

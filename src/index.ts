@@ -42,6 +42,8 @@ export { convergenceCurve } from './landscape/convergence.js';
 export { loadLandscape } from './landscape/load.js';
 export { diffLandscapes } from './landscape/diff.js';
 export { locateReferences } from './landscape/locate.js';
+export { keptWithPolicy } from './landscape/kept-comparison.js';
+export { decideFound, DEFAULT_FOUND_CRITERION } from './landscape/found-criterion.js';
 
 // Reports (src/report)
 export { renderSiftReport } from './report/sift-report.js';

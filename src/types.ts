@@ -109,17 +109,50 @@ export interface PeriodicPointSet {
   multiplicity: Int32Array;
 }
 
+/**
+ * The space group polysift reports for a crystal: the one detected in its atoms within a tolerance, or the one
+ * its file declares when detection cannot be trusted (disorder, missing atoms, failure), with a note saying so.
+ */
+export interface CrystalSymmetry {
+  /** Where the reported group comes from. */
+  source: 'detected' | 'declared';
+  /** International Tables number (null when a declared group is not one the table knows). */
+  number: number | null;
+  /** One short spelling of the reported group ('P21/c', 'P-1', 'Pna21'); as written for an unknown declared one. */
+  symbol: string | null;
+  /** Full Hermann–Mauguin symbol and Hall symbol of the reported group's default setting (null when unknown). */
+  full: string | null;
+  hall: string | null;
+  /** Molecules per conventional cell of the reported group, and per asymmetric unit. */
+  z: number | null;
+  zPrime: number | null;
+  /** The group the file declares, one spelling per setting ('P21/n', 'P1'), or as written when the table does not know it. */
+  declared: string | null;
+  declaredNumber: number | null;
+  /** Molecules per asymmetric unit of the declared operations in the given cell. */
+  declaredZPrime: number | null;
+  /** Tolerance used (Å) and, for a detected group, the largest distance between an atom's image and its partner (Å). */
+  toleranceAngstrom: number;
+  deviationAngstrom: number | null;
+  /** Operations of the reported group in the given cell (pure translations of a supercell included). */
+  operations: number;
+  /** What a reader should know: "written in P1; P21/c within 0.06 Å", or why the declared group is reported. */
+  note: string | null;
+}
+
 /** Facts about a crystal that do not need the PDD. */
 export interface CrystalFacts {
   volumeA3: number;
   atomsPerCell: number;
   densityGPerCm3: number;
-  /** Molecules per cell. */
+  /** Molecules per given cell. */
   z: number;
-  /** Molecules per asymmetric unit (null when operations are unknown). */
+  /** Molecules per asymmetric unit of the file's operations (null when operations are unknown); see `symmetry` for the crystal's. */
   zPrime: number | null;
   /** Each distinct molecule's formula in Hill order, e.g. "C6H6". */
   formulas: string[];
+  /** The space group the crystal has (detected within a tolerance) or, failing that, the one its file declares. */
+  symmetry: CrystalSymmetry;
   /**
    * When no hydrogen sites are listed but sites carry `_atom_site_attached_hydrogens`: those hydrogens per cell
    * and the density counting them (`densityGPerCm3` never counts them).

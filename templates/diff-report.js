@@ -173,6 +173,8 @@
         col('Rank', num(function (i) { return S(i).rank; }, 0)),
         col('Rel. energy (' + unit + ')', num(function (i) { return S(i).energyRel; }, 2)),
         col('Density (g/cm³)', num(function (i) { return S(i).densityGPerCm3; }, 3)),
+        col('Space group', { value: function (i) { return S(i).spaceGroup; }, text: function (i) { return S(i).spaceGroup === null ? '–' : S(i).spaceGroup; } }),
+        col('Z′', num(function (i) { return S(i).zPrime === undefined ? null : S(i).zPrime; }, 3)),
         col('Nearest in other run', { value: function (i) { return S(i).nearestOther; }, text: function (i) { return S(i).nearestOther === null ? '–' : S(i).nearestOther; } }),
         col('Its EMD (Å)', { numeric: true, value: function (i) { return S(i).nearestOtherDistance; }, text: function (i) { return P.fmtDistance(S(i).nearestOtherDistance); } }),
       ],

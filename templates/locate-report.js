@@ -11,16 +11,19 @@
   function esc(t) { return P.escapeForPlot(t); }
   P.expectReady('landscape');
 
+  var c = r.criterion;
+  var distanceName = r.scale === 'volume' ? 'scale-free EMD' : 'EMD';
   $('run-line').textContent = r.landscapePath + ' · ' + r.keptCount + ' kept structures · PDD depth k = ' + r.k +
-    ', hydrogens ' + r.hydrogens + ' · found means EMD ≤ ' + P.fmtDistance(r.toleranceAngstrom) + ' Å';
+    ', hydrogens ' + r.hydrogens + ' · found means ' + distanceName + ' ≤ ' + P.fmtDistance(c.toleranceAngstrom) + ' Å, or ≤ ' +
+    P.fmtDistance(c.gapLimitAngstrom) + ' Å with the second nearest at least ' + c.gapRatio + '× farther';
 
   function hitText(h) {
-    return h.id + ' (EMD ' + P.fmtDistance(h.emdAngstrom) + ' Å' + (h.energyRank !== null ? ', energy rank ' + h.energyRank : '') +
+    return h.id + ' (' + distanceName + ' ' + P.fmtDistance(h.distanceAngstrom) + ' Å' + (h.energyRank !== null ? ', energy rank ' + h.energyRank : '') +
       (h.energyRel !== null ? ', ' + P.fmt(h.energyRel, 2) + ' ' + unit + ' above the lowest' : '') + ')';
   }
   r.references.forEach(function (ref, q) {
-    var text = ref.found ? ref.id + ': found as ' + hitText(ref.match) :
-      ref.nearest.length ? ref.id + ': not found within ' + P.fmtDistance(r.toleranceAngstrom) + ' Å; nearest ' + hitText(ref.nearest[0]) :
+    var text = ref.found ? ref.id + ': found as ' + hitText(ref.match) + ': ' + ref.decisionText :
+      ref.nearest.length ? ref.id + ': not found: ' + ref.decisionText + '; nearest ' + hitText(ref.nearest[0]) :
       ref.id + ': not found; the landscape keeps no structures';
     $('found-list').appendChild(P.el('li', { 'data-found': ref.found ? 'yes' : 'no' },
       P.el('span', { text: '■ ', style: 'color:' + data.referenceColours[q] }), text));
@@ -74,21 +77,23 @@
   r.references.forEach(function (ref, q) {
     var table = P.el('table', { className: 'ps-table' },
       P.el('caption', { className: 'ps-sr', text: 'Nearest kept structures of ' + ref.id }),
-      P.el('thead', null, P.el('tr', null, ['Order', 'Id', 'EMD (Å)', 'Energy rank', 'Rel. energy (' + unit + ')', 'Density (g/cm³)', 'Space group', 'Family'].map(function (h) {
+      P.el('thead', null, P.el('tr', null, ['Order', 'Id', (r.scale === 'volume' ? 'Scale-free EMD (Å)' : 'EMD (Å)'), 'Energy rank', 'Rel. energy (' + unit + ')', 'Density (g/cm³)', 'Space group', 'Z′', 'Family'].map(function (h) {
         return P.el('th', { scope: 'col', text: h });
       }))),
       P.el('tbody', null, ref.nearest.map(function (h) {
         return P.el('tr', { 'aria-selected': ref.found && h.order === 1 ? 'true' : 'false' },
           P.el('td', { className: 'ps-num', text: h.order }), P.el('td', { className: 'ps-id', text: h.id }),
-          P.el('td', { className: 'ps-num', text: P.fmtDistance(h.emdAngstrom) }),
+          P.el('td', { className: 'ps-num', text: P.fmtDistance(h.distanceAngstrom) }),
           P.el('td', { className: 'ps-num', text: h.energyRank === null ? '–' : h.energyRank }),
           P.el('td', { className: 'ps-num', text: P.fmt(h.energyRel, 2) }), P.el('td', { className: 'ps-num', text: P.fmt(h.densityGPerCm3, 3) }),
-          P.el('td', { text: h.spaceGroup === null ? '–' : h.spaceGroup }), P.el('td', { className: 'ps-num', text: h.family }));
+          P.el('td', { text: h.spaceGroup === null ? '–' : h.spaceGroup }),
+          P.el('td', { className: 'ps-num', text: h.zPrime === null || h.zPrime === undefined ? '–' : String(Math.round(h.zPrime * 1000) / 1000) }),
+          P.el('td', { className: 'ps-num', text: h.family }));
       })));
     box.appendChild(P.el('section', { className: 'ps-card', 'aria-label': 'Reference ' + ref.id },
       P.el('h2', null, P.el('span', { text: '■ ', style: 'color:' + data.referenceColours[q] }), 'Reference ', P.el('span', { className: 'ps-id', text: ref.id })),
-      P.el('p', { className: 'ps-muted', text: ref.source + (ref.spaceGroup ? ' · ' + ref.spaceGroup : '') + (ref.densityGPerCm3 !== null ? ' · density ' + P.fmt(ref.densityGPerCm3, 3) + ' g/cm³' : '') }),
-      P.el('p', { className: 'ps-statement', text: ref.found ? 'Found within the tolerance.' : 'Not found within the tolerance.' }),
+      P.el('p', { className: 'ps-muted', text: ref.source + (ref.spaceGroup ? ' · ' + ref.spaceGroup + (ref.zPrime === null || ref.zPrime === undefined ? '' : ', Z′ ' + Math.round(ref.zPrime * 1000) / 1000) : '') + (ref.densityGPerCm3 !== null ? ' · density ' + P.fmt(ref.densityGPerCm3, 3) + ' g/cm³' : '') }),
+      P.el('p', { className: 'ps-statement', text: (ref.found ? 'Found: ' : 'Not found: ') + ref.decisionText + '.' }),
       P.el('div', { className: 'ps-table-wrap' }, table),
       ref.notes.length ? P.el('ul', { className: 'ps-notes' }, ref.notes.map(function (n) { return P.el('li', { text: n }); })) : null));
   });

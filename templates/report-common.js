@@ -176,6 +176,7 @@
    * aria-sort tells the order); rows are focusable: Enter or Space activates, arrow keys, Home and End move.
    *   opts.table, opts.columns [{label, numeric, wrap, value(item), text(item), cell(item) optional}],
    *   opts.items, opts.pageSize, opts.filterInput, opts.filterText(item), opts.countEl,
+   *   opts.filterMatch(item, query, text) optional (default: the query is a substring of filterText),
    *   opts.prevButton, opts.nextButton, opts.pageEl, opts.onActivate(item), opts.rowLabel(item)
    */
   function createTable(opts) {
@@ -236,7 +237,9 @@
           filterIndex = {};
           items.forEach(function (it) { filterIndex[it] = String(opts.filterText(it)).toLowerCase(); });
         }
-        view = order.filter(function (it) { return filterIndex[it].indexOf(query) >= 0; });
+        view = order.filter(function (it) {
+          return opts.filterMatch ? opts.filterMatch(it, query, filterIndex[it]) : filterIndex[it].indexOf(query) >= 0;
+        });
       }
       if (resetPage !== false) page = 0;
       page = Math.min(page, Math.max(0, Math.ceil(view.length / pageSize) - 1));

@@ -65,6 +65,18 @@
   }
   function volumeText(i) { return S.cell[i] && S.cell[i][6] !== null ? P.fmt(S.cell[i][6], 1) + ' Å³' : null; }
   function energyText(i) { return hasEnergies ? P.fmt(S.energyRel[i], 3) + ' ' + unit : 'no energy'; }
+  function zPrimeText(i) { return S.zPrime[i] === null ? '–' : String(Math.round(S.zPrime[i] * 1000) / 1000); }
+  // 'P21/c, Z′ 1 (written in P1)': the group the crystal has, and what its file declared when that differs.
+  function symmetryText(i) {
+    if (S.spaceGroup[i] === null) return 'space group unknown';
+    var t = S.spaceGroup[i] + ', Z′ ' + zPrimeText(i);
+    if (S.sgDetected[i] === 0) return t + ' (as declared)';
+    var w = S.writtenIn[i];
+    if (w && w !== S.spaceGroup[i] + ' x ' + S.members[i]) return t + ' (members written in ' + w + ')';
+    return S.sgDeclared[i] !== null && S.sgDeclared[i] !== S.spaceGroup[i] ? t + ' (written in ' + S.sgDeclared[i] + ')' : t;
+  }
+  var groupOfSpelling = {};
+  (D.groupSpellings || []).forEach(function (g) { g[1].split(' | ').forEach(function (sp) { groupOfSpelling[sp] = g[0]; }); });
 
   // ---- Header ----------------------------------------------------------------------------------
   var c = D.counts;
@@ -185,8 +197,8 @@
   function hoverText(i) {
     var lines = ['<b>' + P.escapeForPlot(S.id[i]) + '</b>',
       'rel. energy ' + energyText(i) + ', density ' + P.fmt(S.density[i], 4) + ' g/cm³',
-      'family: ' + familyLabel(S.family[i]) + ', ' + S.members[i] + (S.members[i] === 1 ? ' member' : ' members') +
-        (S.spaceGroup[i] === null ? '' : ', ' + P.escapeForPlot(S.spaceGroup[i]))];
+      P.escapeForPlot(symmetryText(i)),
+      'family: ' + familyLabel(S.family[i]) + ', ' + S.members[i] + (S.members[i] === 1 ? ' member' : ' members')];
     if (S.cell[i]) lines.push(cellText(i) + (volumeText(i) ? '; V ' + volumeText(i) : ''));
     var nb = neighbours[i] || [];
     if (nb.length > 0) {
@@ -371,10 +383,17 @@
       { label: 'EMD to nearest (Å)', numeric: true, value: function (i) { return S.nearestDistance[i]; }, text: function (i) { return P.fmtDistance(S.nearestDistance[i]); } },
       { label: 'Space group', value: function (i) { return S.spaceGroup[i]; }, text: function (i) { return S.spaceGroup[i] === null ? '–' : S.spaceGroup[i]; } },
       { label: 'Z', numeric: true, value: function (i) { return S.z[i]; }, text: function (i) { return S.z[i] === null ? '–' : String(S.z[i]); } },
+      { label: 'Z′', numeric: true, value: function (i) { return S.zPrime[i]; }, text: function (i) { return zPrimeText(i); } },
     ],
     filterInput: document.getElementById('table-filter'),
     filterText: function (i) {
-      return [S.id[i], S.spaceGroup[i] || '', familyName(S.family[i]), source(i)].join(' ');
+      return [S.id[i], S.spaceGroup[i] || '', familyName(S.family[i]), source(i), S.sgDeclared[i] || '', S.writtenIn[i]].join(' | ');
+    },
+    // A query that is a space-group symbol in any common spelling ('P 21/c', 'P 1 21/c 1', 'P2_1/c', 'p21/c') or its
+    // number (14) finds the structures of that group; any other query is looked for in the row's text.
+    filterMatch: function (i, query, text) {
+      var g = groupOfSpelling[query.replace(/\s+/g, ' ')];
+      return g !== undefined ? S.sgNumber[i] === g : text.indexOf(query) >= 0;
     },
     countEl: document.getElementById('table-count'),
     prevButton: document.getElementById('kept-prev'),
@@ -431,8 +450,11 @@
     fact('Density', P.fmt(S.density[i], 4) + ' g/cm³');
     fact('Family', familyLabel(S.family[i]));
     fact('Members', String(S.members[i]));
-    fact('Space group', S.spaceGroup[i] === null ? '–' : S.spaceGroup[i]);
-    fact('Z / Z′', (S.z[i] === null ? '–' : String(S.z[i])) + ' / ' + (S.zPrime[i] === null ? '–' : String(S.zPrime[i])));
+    fact('Space group', S.spaceGroup[i] === null ? '–' : S.spaceGroup[i] + (S.sgNumber[i] === null ? '' : ' (No. ' + S.sgNumber[i] + ')') +
+      (S.sgDetected[i] === 1 ? ', detected within ' + D.parameters.symmetryToleranceAngstrom + ' Å' : S.sgDetected[i] === 0 ? ', as declared (see notes)' : ''));
+    fact('Declared', S.sgDeclared[i] === null ? '–' : S.sgDeclared[i]);
+    if (S.writtenIn[i]) fact('Members written in', S.writtenIn[i]);
+    fact('Z / Z′', (S.z[i] === null ? '–' : String(S.z[i])) + ' / ' + zPrimeText(i));
     fact('Cell', cellText(i) || '–');
     fact('Volume', volumeText(i) || '–');
     fact('Atoms per cell', S.atoms[i] === null ? '–' : String(S.atoms[i]));
@@ -658,8 +680,10 @@
     var pl = document.getElementById('parameters-list');
     var pr = D.parameters;
     var names = {
-      k: 'PDD depth k', hydrogens: 'Hydrogens', toleranceAngstrom: 'Duplicate tolerance (Å)', minFamilySize: 'Minimum family size',
+      k: 'PDD depth k', hydrogens: 'Hydrogens', toleranceAngstrom: 'Duplicate tolerance (Å)', symmetryToleranceAngstrom: 'Symmetry tolerance (Å)',
+      minFamilySize: 'Minimum family size',
       minSamples: 'Minimum samples', energyWindow: 'Energy window (' + unit + ')', energyUnit: 'Energy unit',
+      energyBasis: 'Energies given per (a cell: divided by each structure\'s Z)',
       neighbours: 'Neighbours per structure', inputs: 'Inputs', energiesFile: 'Energies file', energyItem: 'Energy data item',
     };
     Object.keys(pr).forEach(function (k) {

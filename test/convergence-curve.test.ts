@@ -21,10 +21,10 @@ function row(index: number, status: StructureRow['status'], keptIndex: number | 
   return {
     index, id: `s${index}`, source: `run.cif#s${index}`, file: 'run.cif', block: `s${index}`, line: 1 + index * 40,
     status, reason: status === 'rejected' ? 'unreadable' : '', energy: energyRel === null ? null : -100 + energyRel,
-    energyRel, densityGPerCm3: 1.3, atoms: 48, spaceGroup: 'P21/c', cell: null, z: 4, zPrime: 1, formulas: ['C6H6'],
+    energyRel, densityGPerCm3: 1.3, atoms: 48, spaceGroup: 'P21/c', symmetry: null, cell: null, z: 4, zPrime: 1, formulas: ['C6H6'],
     keptIndex, duplicateOf: status === 'duplicate' && keptIndex !== null ? `s${keptIndex}` : null,
     distanceToKept: status === 'kept' ? 0 : status === 'duplicate' ? 0.01 : null, family: -1, nearestIndex: null,
-    nearest: null, nearestDistance: null, nnDistance: null, members: status === 'kept' ? 1 : 0, notes: [],
+    nearest: null, nearestDistance: null, nnDistance: null, members: status === 'kept' ? 1 : 0, writtenIn: [], notes: [],
   };
 }
 
@@ -251,12 +251,15 @@ describe('convergenceCurve', () => {
     expect(() => convergenceCurve([row(0, 'kept', 0, 0)], [])).toThrow(/at least one energy window/);
   });
 
-  it('writes convergence.csv with processed then one count column per window', () => {
+  it('writes convergence.csv with processed then one count column per window, the unit in snake_case in each name', () => {
+    // Headers follow the project's table convention (units as lower-case suffixes, README "Tables").
     const rows = [row(0, 'kept', 0, 0), row(1, 'kept', 1, 8), row(2, 'duplicate', 1, 8.1)];
     const curve = convergenceCurve(rows, [10, 5]) as ConvergenceCurve;
-    expect(convergenceCsvHeader(curve.windows, 'kJ/mol')).toEqual(['processed', 'within_5_kJ/mol', 'within_10_kJ/mol']);
+    expect(convergenceCsvHeader(curve.windows, 'kJ/mol')).toEqual(['processed', 'within_5_kj_per_mol', 'within_10_kj_per_mol']);
+    expect(convergenceCsvHeader([1.2, 2.4], 'kcal/mol')).toEqual(['processed', 'within_1.2_kcal_per_mol', 'within_2.4_kcal_per_mol']);
+    expect(convergenceCsvHeader([0.05], 'eV')).toEqual(['processed', 'within_0.05_ev']);
     expect(convergenceCsv(curve, 'kJ/mol')).toBe(
-      'processed,within_5_kJ/mol,within_10_kJ/mol\n0,0,0\n1,1,1\n2,1,2\n3,1,2\n',
+      'processed,within_5_kj_per_mol,within_10_kj_per_mol\n0,0,0\n1,1,1\n2,1,2\n3,1,2\n',
     );
   });
 

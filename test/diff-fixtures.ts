@@ -39,6 +39,9 @@ export interface SyntheticStructure {
   pdd: SyntheticPdd;
   energy: number | null;
   densityGPerCm3: number;
+  /** Cell as read and atoms compared (default: no cell, 40 atoms), for locate's volume per atom. */
+  cell?: StructureRow['cell'];
+  atoms?: number;
 }
 
 /** A landscape.json-shaped object whose kept structures are exactly `kept` (no duplicates), in that input order. */
@@ -48,15 +51,15 @@ export function landscapeOf(kept: SyntheticStructure[], k: number, params: Parti
   const structures: StructureRow[] = kept.map((s, i) => ({
     index: i, id: s.id, source: `invented.cif#${s.id}`, file: 'invented.cif', block: s.id, line: 1 + 50 * i,
     status: 'kept', reason: '', energy: s.energy, energyRel: s.energy === null || lowest === null ? null : s.energy - lowest,
-    densityGPerCm3: s.densityGPerCm3, atoms: 40, spaceGroup: 'P21/c', cell: null, z: 4, zPrime: 1, formulas: ['C8H8N2O'],
+    densityGPerCm3: s.densityGPerCm3, atoms: s.atoms ?? 40, spaceGroup: 'P21/c', symmetry: null, cell: s.cell ?? null, z: 4, zPrime: 1, formulas: ['C8H8N2O'],
     keptIndex: i, duplicateOf: null, distanceToKept: 0, family: -1, nearestIndex: null, nearest: null,
-    nearestDistance: null, nnDistance: null, members: 1, notes: [],
+    nearestDistance: null, nnDistance: null, members: 1, writtenIn: [], notes: [],
   }));
   const order = structures.map((s) => s.index);
   if (lowest !== null) order.sort((x, y) => (structures[x].energy ?? Infinity) - (structures[y].energy ?? Infinity) || x - y);
   const parameters: SiftParameters = {
-    k, hydrogens: 'keep', toleranceAngstrom: 0.05, minFamilySize: 3, minSamples: 3, energyWindow: null,
-    energyUnit: 'kJ/mol', neighbours: 5, inputs: ['invented.cif'], energiesFile: null, energyItem: null, ...params,
+    k, hydrogens: 'keep', toleranceAngstrom: 0.05, symmetryToleranceAngstrom: 0.06, minFamilySize: 3, minSamples: 3, energyWindow: null,
+    energyUnit: 'kJ/mol', energyBasis: 'molecule', neighbours: 5, inputs: ['invented.cif'], energiesFile: null, energyItem: null, ...params,
   };
   return {
     format: 'polysift-landscape', formatVersion: 1, tool: { name: 'polysift', version: '0.1.0' },

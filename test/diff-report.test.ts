@@ -10,6 +10,7 @@ import { launchChromium, openFile } from './helpers/browser.js';
 import { diffLandscapes } from '../src/landscape/diff.js';
 import { writeDiffOutputs, DIFF_PAIR_COLUMNS, DIFF_STRUCTURE_COLUMNS } from '../src/landscape/diff-files.js';
 import { landscapeOf, pairedRuns } from './diff-fixtures.js';
+import { tableHeaders } from '../src/io/tables.js';
 
 let browser: Browser;
 beforeAll(async () => { browser = await launchChromium(); });
@@ -26,10 +27,11 @@ describe('diff report', () => {
 
     // The CSVs hold one row per kept structure / matched pair, with the documented columns.
     const structuresCsv = readFileSync(join(dir, 'diff-structures.csv'), 'utf8').trim().split('\n');
-    expect(structuresCsv[0]).toBe(DIFF_STRUCTURE_COLUMNS.join(','));
+    expect(structuresCsv[0]).toBe(tableHeaders(DIFF_STRUCTURE_COLUMNS, d.energyUnit).join(','));
+    expect(structuresCsv[0]).toBe('run,id,source,presence,energy_rank,energy_rel_kj_per_mol,density_g_per_cm3,space_group,partner,partner_distance_angstrom,nearest_other,nearest_other_distance_angstrom,z_prime');
     expect(structuresCsv.length - 1).toBe(A.length + B.length);
     const pairsCsv = readFileSync(join(dir, 'diff-pairs.csv'), 'utf8').trim().split('\n');
-    expect(pairsCsv[0]).toBe(DIFF_PAIR_COLUMNS.join(','));
+    expect(pairsCsv[0]).toBe(tableHeaders(DIFF_PAIR_COLUMNS, d.energyUnit).join(','));
     expect(pairsCsv.length - 1).toBe(12);
     expect(JSON.parse(readFileSync(join(dir, 'diff.json'), 'utf8')).counts).toEqual(d.counts);
 

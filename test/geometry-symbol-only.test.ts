@@ -99,7 +99,9 @@ describe('real records read from their symbol alone', () => {
     if (!('entry' in out)) throw new Error(out.rejected.reason);
     expect(out.entry.tableEntry).toEqual({ number: 167, hm: 'R -3 c', ext: 'H', hall: '-R 3 2"c', label: 'R -3 c:H' });
     const text = formatEntryText(out.entry);
-    expect(text).toMatch(/space group {3}R -3 c :H; 36 operation\(s\) built from the space-group symbol/);
+    // The declared symbol and its operations have their own line; 'space group' gives the group detected in the atoms.
+    expect(text).toMatch(/declared {6}R -3 c :H \(R-3c\); 36 operation\(s\) built from the space-group symbol/);
+    expect(text).toMatch(/space group {3}R-3c \(detected within 0\.06 Å; largest deviation 0\.000 Å\)/);
     expect(text).toMatch(/table entry {3}group 167, R -3 c:H, Hall -R 3 2"c/);
     // Listed operations: no table entry line.
     const listedOut = inspectRecord(listed.get('calcite.cif')!, { hydrogens: 'keep' });

@@ -1,7 +1,7 @@
 // `polysift locate` through the real command line on a landscape built from generated crystals
 // (src/demo/landscape.ts, truth from the generator): a planted reference is reported found, an unreadable block is
 // named on stderr without stopping the run, and asking to drop hydrogens against a landscape made with them is
-// refused in one line.
+// refused in one line when the landscape's unique.cif is missing (with it, test/locate-experimental.test.ts).
 import { spawnSync } from 'node:child_process';
 import { existsSync, mkdirSync, mkdtempSync, readFileSync, writeFileSync } from 'node:fs';
 import { tmpdir } from 'node:os';
@@ -12,6 +12,7 @@ import { readCifText } from '../src/io/read.js';
 import { referenceInvariants } from '../src/landscape/references.js';
 import { landscapeOf, type SyntheticStructure } from './diff-fixtures.js';
 import type { CrystalRecord } from '../src/types.js';
+import { cellVolume } from '../src/geometry/cell.js';
 
 const cli = join(process.cwd(), 'src', 'cli.ts');
 const tsx = join(process.cwd(), 'node_modules', '.bin', 'tsx');
@@ -25,8 +26,13 @@ const recs: CrystalRecord[] = readCifText(g.cif, 'gen.cif').map((r) => {
 });
 const copy = (p: number, kind: string) => recs[g.ids.findIndex((_id, i) => g.truth[i] === p && g.kinds[i] === kind)];
 const kept: SyntheticStructure[] = [0, 1, 2].map((p) => {
-  const inv = referenceInvariants(copy(p, 'standard'), K, 'keep');
-  return { id: copy(p, 'standard').id, pdd: { rows: Array.from(inv.pdd.rows), weights: Array.from(inv.pdd.weights) }, energy: g.energiesKjPerMol[g.ids.indexOf(copy(p, 'standard').id)], densityGPerCm3: inv.densityGPerCm3 as number };
+  const rec = copy(p, 'standard');
+  const inv = referenceInvariants(rec, K, 'keep');
+  const volume = cellVolume(rec.cell);
+  return {
+    id: rec.id, pdd: { rows: Array.from(inv.pdd.rows), weights: Array.from(inv.pdd.weights) }, energy: g.energiesKjPerMol[g.ids.indexOf(rec.id)],
+    densityGPerCm3: inv.densityGPerCm3 as number, cell: { ...rec.cell, volume }, atoms: Math.round(volume / (inv.volumePerAtomA3 as number)),
+  };
 });
 const root = mkdtempSync(join(tmpdir(), 'polysift-locate-cli-'));
 const land = join(root, 'run');
@@ -41,7 +47,7 @@ describe('polysift locate (command line)', () => {
     const r = polysift(['locate', refs, '--in', land, '--out', out, '--threads', '1']);
     expect(r.status).toBe(0);
     const lines = r.stdout.trim().split('\n');
-    expect(lines[0]).toMatch(new RegExp(`^${copy(1, 'other-cell').id}: found as ${copy(1, 'standard').id} \\(EMD `));
+    expect(lines[0]).toMatch(new RegExp(`^${copy(1, 'other-cell').id}: found as ${copy(1, 'standard').id} \\(scale-free EMD 0\\.0\\d+ Å, EMD 0\\.0\\d+ Å, scale 1\\.000\\d, energy rank \\d.*: within the tolerance \\(`));
     expect(r.stderr).toMatch(/reference .*known\.cif#unfinished \(line \d+\) not used: .*_cell_length_b/);
     for (const f of ['locate.json', 'locate.csv', 'report.html']) expect(existsSync(join(out, f))).toBe(true);
     const result = JSON.parse(readFileSync(join(out, 'locate.json'), 'utf8'));
@@ -49,12 +55,11 @@ describe('polysift locate (command line)', () => {
     expect(result.unusable.length).toBe(1);
   });
 
-  it('refuses to leave hydrogens out against a landscape sifted with them', () => {
+  it('needs the unique.cif beside the landscape to leave hydrogens out against a landscape sifted with them, and says so in one line', () => {
     const r = polysift(['locate', refs, '--in', land, '--hydrogens', 'drop']);
     expect(r.status).toBe(1);
     expect(r.stderr).toBe(
-      `polysift: ${join(land, 'landscape.json')} was sifted with hydrogens kept, so references cannot be compared without hydrogens; ` +
-        'sift the structures again with --hydrogens drop, or compare with hydrogens\n',
+      `polysift: ${join(land, 'landscape.json')} was sifted with hydrogens kept; comparing with hydrogens dropped needs its unique.cif, which is not in ${land}\n`,
     );
   });
 });

@@ -6,7 +6,8 @@ import { describe, expect, it } from 'vitest';
 import { generateLandscape } from '../src/demo/landscape.js';
 import { readCifText } from '../src/io/read.js';
 import { referenceInvariants } from '../src/landscape/references.js';
-import { hydrogenProblem, locateReferences, locateSentence } from '../src/landscape/locate.js';
+import { locateReferences, locateSentence } from '../src/landscape/locate.js';
+import { cellVolume } from '../src/geometry/cell.js';
 import { validateLandscape } from '../src/landscape/load.js';
 import { emd } from '../src/metric/emd.js';
 import type { CrystalRecord } from '../src/types.js';
@@ -32,9 +33,14 @@ function buildLandscape(hydrogens: HydrogenPolicy) {
   const kept: SyntheticStructure[] = [];
   for (let p = 0; p < 8; p++) {
     const id = blockOf(p, 'standard');
-    const inv = referenceInvariants(records.get(id)!, K, hydrogens);
+    const rec = records.get(id)!;
+    const inv = referenceInvariants(rec, K, hydrogens);
     const n = g.ids.indexOf(id);
-    kept.push({ id, pdd: { rows: Array.from(inv.pdd.rows), weights: Array.from(inv.pdd.weights) }, energy: g.energiesKjPerMol[n], densityGPerCm3: inv.densityGPerCm3 as number });
+    const volume = cellVolume(rec.cell);
+    kept.push({
+      id, pdd: { rows: Array.from(inv.pdd.rows), weights: Array.from(inv.pdd.weights) }, energy: g.energiesKjPerMol[n], densityGPerCm3: inv.densityGPerCm3 as number,
+      cell: { ...rec.cell, volume }, atoms: Math.round(volume / (inv.volumePerAtomA3 as number)),
+    });
   }
   return validateLandscape(landscapeOf(kept, K, { hydrogens, toleranceAngstrom: 0.05 }), 'generated');
 }
@@ -55,17 +61,24 @@ describe('locate on a generated landscape', () => {
       const refs = planted.map((p) => referenceInvariants(records.get(blockOf(p, 'other-setting'))!, K, hydrogens));
       refs.push(referenceInvariants(records.get(blockOf(2, 'p1-supercell'))!, K, hydrogens));
       const result = await locateReferences(landscape, 'generated', refs, { threads: 1 });
+      expect(result.scale).toBe('volume');
       const truthOf = [...planted, 2];
       result.references.forEach((r, q) => {
         const p = truthOf[q];
         expect(r.found).toBe(true);
+        expect(r.decision.rule).toBe('within-tolerance');
         expect(r.match!.id).toBe(blockOf(p, 'standard'));
         expect(r.match!.energyRank).toBe(expectedRank(p));
+        // copies differ only by the generator's noise: well inside the duplicate tolerance, with or without the scale
         expect(r.match!.emdAngstrom).toBeLessThan(0.05);
+        expect(r.match!.distanceAngstrom).toBeLessThan(0.05);
+        // the same crystal in another cell has the same volume per atom (a supercell included)
+        expect(r.match!.scaleFactor!).toBeCloseTo(1, 3);
         // the next nearest is a different packing, clearly farther
         expect(r.nearest.length).toBe(5);
-        expect(r.nearest[1].emdAngstrom).toBeGreaterThan(0.05);
-        expect(locateSentence(r, 'kJ/mol', 0.05)).toMatch(new RegExp(`found as ${r.match!.id} \\(EMD .* energy rank ${expectedRank(p)}, `));
+        expect(r.nearest[1].distanceAngstrom).toBeGreaterThan(0.2);
+        expect(r.decision.clarity).toBe('clear');
+        expect(locateSentence(r, 'kJ/mol')).toMatch(new RegExp(`found as ${r.match!.id} \\(scale-free EMD .* energy rank ${expectedRank(p)}, .*: within the tolerance`));
       });
     });
   }
@@ -73,9 +86,10 @@ describe('locate on a generated landscape', () => {
   it('reports a reference absent from the landscape as not found, with its five nearest in EMD order', async () => {
     const landscape = buildLandscape('keep');
     const ref = referenceInvariants(records.get(blockOf(ABSENT, 'other-cell'))!, K, 'keep');
-    const result = await locateReferences(landscape, 'generated', [ref], { threads: 1 });
+    const result = await locateReferences(landscape, 'generated', [ref], { threads: 1, scale: 'none' });
     const r = result.references[0];
     expect(r.found).toBe(false);
+    expect(r.decision.rule).toBe('beyond-gap-limit');
     expect(r.match).toBeNull();
     // brute force: EMD to every kept structure, the five smallest in order
     const all = landscape.kept.map((i) => {
@@ -84,14 +98,30 @@ describe('locate on a generated landscape', () => {
     }).sort((a, b) => a.d - b.d);
     expect(r.nearest.map((h) => h.id)).toEqual(all.slice(0, 5).map((x) => x.id));
     expect(r.nearest.map((h) => h.emdAngstrom)).toEqual(all.slice(0, 5).map((x) => x.d));
-    expect(r.nearest[0].emdAngstrom).toBeGreaterThan(0.05);
-    expect(locateSentence(r, 'kJ/mol', 0.05)).toMatch(/^.*: not found within 0.05 Å; nearest /);
+    expect(r.nearest.map((h) => h.distanceAngstrom)).toEqual(all.slice(0, 5).map((x) => x.d));
+    expect(r.nearest[0].emdAngstrom).toBeGreaterThan(0.2);
+    expect(locateSentence(r, 'kJ/mol')).toMatch(/^.*: not found: beyond the gap limit \(0\.\d+ > 0.2 Å\), clear; nearest /);
   });
 
-  it('refuses to compare without hydrogens against a landscape sifted with them', () => {
+  it('orders the scale-free list by the EMD between PDDs scaled to one volume per atom (brute force)', async () => {
     const landscape = buildLandscape('keep');
-    expect(hydrogenProblem(landscape, 'drop', 'runs/x')).toMatch(/runs\/x was sifted with hydrogens kept/);
-    expect(hydrogenProblem(landscape, 'keep', 'runs/x')).toBeNull();
-    expect(hydrogenProblem(buildLandscape('drop'), 'keep', 'runs/y')).toMatch(/hydrogens dropped/);
+    const ref = referenceInvariants(records.get(blockOf(ABSENT, 'other-cell'))!, K, 'keep');
+    const r = (await locateReferences(landscape, 'generated', [ref], { threads: 1 })).references[0];
+    const all = landscape.kept.map((i) => {
+      const inv = landscape.invariants.kept.find((e) => e.index === i)!;
+      const s = landscape.structures[i];
+      const v = s.cell!.volume! / s.atoms!;
+      // both sides divided by cbrt(volume per atom), then back to Å at the reference's size
+      const lr = Math.cbrt(ref.volumePerAtomA3!);
+      const lk = Math.cbrt(v);
+      const scaledRef = { k: K, rows: ref.pdd.rows.map((x) => x / lr), weights: ref.pdd.weights };
+      const scaledKept = { k: K, rows: Float64Array.from(inv.pddRows, (x) => x / lk), weights: Float64Array.from(inv.pddWeights) };
+      return { id: s.id, d: emd(scaledRef, scaledKept) * lr, scale: Math.cbrt(ref.volumePerAtomA3! / v) };
+    }).sort((a, b) => a.d - b.d);
+    expect(r.nearest.map((h) => h.id)).toEqual(all.slice(0, 5).map((x) => x.id));
+    r.nearest.forEach((h, j) => {
+      expect(h.scaledEmdAngstrom).toBeCloseTo(all[j].d, 12);
+      expect(h.scaleFactor).toBeCloseTo(all[j].scale, 12);
+    });
   });
 });

@@ -175,6 +175,43 @@ describe('the sift report in a browser', () => {
     await w.page.waitForFunction(() => document.querySelectorAll('#kept-table tbody tr').length === 100);
   });
 
+  it('the filter finds a space group by any common spelling, and the panel says what the members were written in', async () => {
+    const p21c = land.kept.filter((k) => land.structures[k]!.spaceGroup === 'P21/c');
+    expect(p21c.length).toBeGreaterThan(10);
+    // Spellings of group 14 found in files and papers (International Tables Vol. A symbols; common practice).
+    for (const spelling of ['P21/c', 'P 21/c', 'P 1 21/c 1', 'P2_1/c', 'p21/c', 'P 1 21/n 1']) {
+      await w.page.fill('#table-filter', spelling);
+      await w.page.waitForFunction((want) => document.getElementById('table-count')?.textContent === want, `${p21c.length} of ${land.counts.kept} match`);
+    }
+    // Its number finds exactly the same structures; a group that is not in the landscape finds none.
+    await w.page.fill('#table-filter', '14');
+    await w.page.waitForFunction((want) => document.getElementById('table-count')?.textContent === want, `${p21c.length} of ${land.counts.kept} match`);
+    await w.page.fill('#table-filter', 'P 43 21 2');
+    await w.page.waitForFunction((want) => document.getElementById('table-count')?.textContent === want, `0 of ${land.counts.kept} match`);
+    // Any other text is looked for in the rows: 'cand-0000' finds the ids that hold it.
+    await w.page.fill('#table-filter', 'cand-0000');
+    const byText = land.kept.filter((k) => land.structures[k]!.id.includes('cand-0000')).length;
+    await w.page.waitForFunction((want) => document.getElementById('table-count')?.textContent === want, `${byText} of ${land.counts.kept} match`);
+    // A P21/c structure with members written in P1: the panel names both.
+    const withP1 = p21c.find((k) => land.structures[k]!.writtenIn.some((e) => e.spaceGroup === 'P1'))!;
+    await w.page.fill('#table-filter', land.structures[withP1]!.id);
+    await w.page.waitForFunction(() => document.querySelectorAll('#kept-table tbody tr').length === 1);
+    await w.page.locator('#kept-table tbody tr').first().focus();
+    await w.page.keyboard.press('Enter');
+    await w.page.waitForFunction((want) => document.getElementById('panel-id')?.textContent === want, land.structures[withP1]!.id);
+    const facts = (await w.page.textContent('#panel-facts'))!;
+    expect(facts).toContain('P21/c (No. 14), detected within 0.06 Å');
+    expect(facts).toMatch(/Members written inP21\/c x \d+; P1 x \d+|Members written inP1 x \d+; P21\/c x \d+/);
+    const hover = await w.page.evaluate((p) => {
+      const g = window as unknown as ReportGlobals;
+      const gd = document.getElementById('landscape-plot') as unknown as { data: Array<{ text: string[] }> };
+      return gd.data[g.polysiftReport.traces.kept]!.text[p];
+    }, land.kept.indexOf(withP1));
+    expect(hover).toContain('P21/c, Z′ 1 (members written in');
+    await w.page.fill('#table-filter', '');
+    await w.page.waitForFunction(() => document.querySelectorAll('#kept-table tbody tr').length === 100);
+  });
+
   it('duplicates appear on demand, one marker per duplicate', async () => {
     const read = () =>
       w.page.evaluate(() => {

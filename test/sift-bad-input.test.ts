@@ -52,7 +52,7 @@ describe('sift with bad input', () => {
     expect(by.get('garbled')!.status).toBe('rejected');
     expect(by.get('garbled')!.reason).toMatch(/line \d+/);
     expect(by.get(missingId)!.reason).toMatch(/no energy: id not found in .*energies.csv/);
-    expect(by.get(missingId)!.energy).toBe('');
+    expect(by.get(missingId)!.energy_kj_per_mol).toBe('');
     expect(by.get(repeatedId)!.reason).toMatch(/different energies/);
     expect(by.get(nonNumericId)!.reason).toMatch(/'n\/a' is not a number/);
     // Summary on stderr, issues per row in energy-issues.csv.

@@ -71,7 +71,7 @@ describe('sift re-runs', () => {
     const before = new Map(readdirSync(out).filter((f) => !f.startsWith('.')).map((f) => [f, readFileSync(join(out, f), 'utf8')]));
     // Without the cache the run takes a few seconds; interrupt it once it reports its second stage.
     // Node itself with the TypeScript loader (not the tsx launcher), so the signal reaches the sift process directly.
-    const child = spawn(process.execPath, ['--import', 'tsx', cli, 'sift', cif, '--energies', energies, '--out', out, '--no-cache', '--duplicate-tolerance', '0.03', '--threads', '1'], {
+    const child = spawn(process.execPath, ['--import', 'tsx', cli, 'sift', cif, '--energies', energies, '--out', out, '--no-cache', '--tolerance', '0.03', '--threads', '1'], {
       stdio: ['ignore', 'pipe', 'pipe'],
     });
     let stderr = '';

@@ -5,7 +5,9 @@
 // The "EMD" between two kept structures is the Euclidean distance between hidden 2D positions, so the
 // map coordinates reproduce it exactly and edges are the true k nearest neighbours of that metric.
 // Nothing here is a physical calculation; it only has the shape real data has.
-import type { Family, KeptInvariants, Landscape, StructureRow } from '../landscape/schema.js';
+import type { Family, KeptInvariants, Landscape, RowSymmetry, StructureRow } from '../landscape/schema.js';
+import { writtenInByKept } from '../landscape/written-in.js';
+import { defaultSetting, groupSymbol } from '../geometry/space-group-table.js';
 import { seededUniform } from '../demo/prng.js';
 import { convergenceCurve } from '../landscape/convergence.js';
 
@@ -140,16 +142,17 @@ export function syntheticLandscape(opts: SyntheticOptions): Landscape {
     const id = `cand-${String(i).padStart(6, '0')}`;
     const base: StructureRow = {
       index: i, id, source: `${file}#${id}`, file, block: id, line: 1 + (i % 500) * 60, status: 'kept', reason: '',
-      energy: null, energyRel: null, densityGPerCm3: null, atoms: null, spaceGroup: null, cell: null, z: null, zPrime: null,
+      energy: null, energyRel: null, densityGPerCm3: null, atoms: null, spaceGroup: null, symmetry: null, cell: null, z: null, zPrime: null,
       formulas: ['C7H6N2O'], keptIndex: null, duplicateOf: null, distanceToKept: null, family: -1, nearestIndex: null,
-      nearest: null, nearestDistance: null, nnDistance: null, members: 0, notes: [],
+      nearest: null, nearestDistance: null, nnDistance: null, members: 0, writtenIn: [], notes: [],
     };
     if (kind[i] === 0) {
       const g = w;
       const nb0 = nbIdx[g * nbK]!;
       Object.assign(base, {
         status: 'kept', energy: -95 + eRel[g]!, energyRel: eRel[g]!, densityGPerCm3: dens[g]!, atoms: 16 * Z_OF[sg(g)]!,
-        spaceGroup: sg(g), cell: cellFor(g, dens[g]!), z: Z_OF[sg(g)]!, zPrime: 1, keptIndex: i, distanceToKept: 0, family: fam[g]!,
+        spaceGroup: sg(g), symmetry: detected(sg(g), sg(g)), cell: cellFor(g, dens[g]!), z: Z_OF[sg(g)]!, zPrime: 1, keptIndex: i,
+        distanceToKept: 0, family: fam[g]!,
         nearestIndex: nb0 >= 0 ? keptAt[nb0]! : null, nearestDistance: nb0 >= 0 ? nbDist[g * nbK]! : null,
         nnDistance: Math.min(closestDup[g]!, nb0 >= 0 ? nbDist[g * nbK]! : Infinity),
         members: members[g]!,
@@ -159,7 +162,8 @@ export function syntheticLandscape(opts: SyntheticOptions): Landscape {
       const g = dupOwner[w]!;
       Object.assign(base, {
         status: 'duplicate', energy: -95 + eRel[g]! + 0.002 + rand() * 0.03, densityGPerCm3: dens[g]! + gauss(rand) * 2e-4,
-        atoms: 16 * Z_OF[sg(g)]!, spaceGroup: rand() < 0.3 ? 'P1' : sg(g), z: Z_OF[sg(g)]!, zPrime: 1, keptIndex: keptAt[g]!,
+        // About a third of the copies were written in P1, as searches write them.
+        atoms: 16 * Z_OF[sg(g)]!, spaceGroup: sg(g), symmetry: detected(sg(g), rand() < 0.3 ? 'P1' : sg(g)), z: Z_OF[sg(g)]!, zPrime: 1, keptIndex: keptAt[g]!,
         duplicateOf: `cand-${String(keptAt[g]!).padStart(6, '0')}`, distanceToKept: dupDist[w]!, family: fam[g]!,
         nnDistance: dupDist[w]!,
       });
@@ -170,13 +174,18 @@ export function syntheticLandscape(opts: SyntheticOptions): Landscape {
       base.formulas = [];
     } else {
       const e = 25 + rand() * 20;
-      Object.assign(base, { status: 'outside-window', energy: -95 + e, energyRel: e, densityGPerCm3: 1.2 + rand() * 0.2, atoms: 64, spaceGroup: 'P21/c', z: 4, zPrime: 1 });
+      Object.assign(base, {
+        status: 'outside-window', energy: -95 + e, energyRel: e, densityGPerCm3: 1.2 + rand() * 0.2, atoms: 64, spaceGroup: 'P21/c',
+        symmetry: detected('P21/c', 'P21/c'), z: 4, zPrime: 1,
+      });
     }
     rows.push(base);
   }
   for (const r of rows) {
     if (r.nearestIndex !== null) r.nearest = rows[r.nearestIndex]!.id;
+    if (r.symmetry?.note) r.notes.push(r.symmetry.note);
   }
+  for (const [k, list] of writtenInByKept(rows)) rows[k]!.writtenIn = list;
   // Kept list, lowest energy first.
   const keptGen = Array.from({ length: nKept }, (_, g) => g).sort((a, b) => eRel[a]! - eRel[b]! || keptAt[a]! - keptAt[b]!);
   const kept = keptGen.map((g) => keptAt[g]!);
@@ -217,7 +226,7 @@ export function syntheticLandscape(opts: SyntheticOptions): Landscape {
     tool: { name: 'polysift', version: '0.1.0' },
     run: { createdAt: '2026-01-01T00:00:00.000Z', timingsSeconds: { read: 1.25, invariants: 10.5, neighbours: 4.75, families: 0.5 } },
     parameters: {
-      k, hydrogens: 'keep', toleranceAngstrom: 0.02, minFamilySize: 5, minSamples: 5, energyWindow: 20, energyUnit: 'kJ/mol',
+      k, hydrogens: 'keep', toleranceAngstrom: 0.02, symmetryToleranceAngstrom: 0.06, minFamilySize: 5, minSamples: 5, energyWindow: 20, energyUnit: 'kJ/mol', energyBasis: 'molecule',
       neighbours: nbK, inputs: ['runs/'], energiesFile: 'runs/energies.csv', energyItem: null,
     },
     counts: { input: total, kept: nKept, duplicate: nDup, rejected: nRej, outsideWindow: nOut },
@@ -268,6 +277,23 @@ export function renameStructures(land: Landscape, overrides: NameOverride[]): La
     if (r.status === 'duplicate' && r.keptIndex !== null) r.duplicateOf = rows[r.keptIndex]!.id;
   }
   return land;
+}
+
+/** Symmetry of a structure detected in `symbol` and written in `declared`. */
+function detected(symbol: string, declared: string): RowSymmetry {
+  const number = numberOf(symbol);
+  const setting = defaultSetting(number);
+  const z = Z_OF[symbol] ?? 1;
+  return {
+    source: 'detected', number, full: setting.full, hall: setting.hall, declared,
+    declaredZPrime: declared === 'P1' ? z : 1, deviationAngstrom: declared === 'P1' ? 0.012 : 0,
+    note: declared === symbol ? null : `written in ${declared}; ${symbol} within 0.06 Å`,
+  };
+}
+
+function numberOf(symbol: string): number {
+  for (let n = 1; n <= 230; n++) if (groupSymbol(n) === symbol) return n;
+  throw new Error(`no space group spelled ${symbol}`);
 }
 
 /** A normal deviate by Box–Muller (common practice) from the seeded uniform stream. */

@@ -3,73 +3,30 @@
 // origins, P1 and atom orders with noise) on 2 threads (goal: under 10 s, peak memory under 2 GB), then a
 // cached re-run with another duplicate tolerance (goal: under 10% of the first run). Each run is a fresh
 // process so its peak memory is its own. The generated input is kept in the system's temporary folder.
-import { spawnSync } from 'node:child_process';
-import { existsSync, mkdirSync, rmSync, writeFileSync } from 'node:fs';
-import { availableParallelism, loadavg, tmpdir } from 'node:os';
+import { rmSync } from 'node:fs';
+import { availableParallelism, loadavg } from 'node:os';
 import { join } from 'node:path';
-import { fileURLToPath } from 'node:url';
-import { performance } from 'node:perf_hooks';
-import { generateLandscape } from '../demo/landscape.js';
+import { benchLandscape, siftChild } from './_sift-input.js';
 
 const THREADS = 2;
 
-interface ChildResult {
-  seconds: number;
-  cpuSeconds: number;
-  peakMb: number;
-  counts: { input: number; kept: number; duplicate: number; rejected: number; outsideWindow: number };
-  families: number;
-  cache: { hits: number; misses: number };
-  timings: Record<string, number>;
-}
-
 export async function run(): Promise<void> {
   const packings = Number(process.env.POLYSIFT_BENCH_PACKINGS ?? 1000);
-  const copies = 10;
-  const dir = join(tmpdir(), `polysift-bench-sift-${packings}x${copies}`);
-  const cif = join(dir, 'search.cif');
-  const energies = join(dir, 'energies.csv');
-  if (!existsSync(cif)) {
-    const t = performance.now();
-    process.stdout.write(`generating ${packings * copies} structures (once; kept in ${dir})...\n`);
-    mkdirSync(dir, { recursive: true });
-    const g = generateLandscape({
-      seed: 44,
-      packings,
-      copiesPerPacking: copies,
-      closePairs: Math.floor(packings / 20),
-      spaceGroups: ['P21/c', 'P212121'],
-      supercells: false,
-      squeezeMoves: 150,
-    });
-    writeFileSync(cif, g.cif);
-    writeFileSync(energies, g.energiesCsv);
-    process.stdout.write(`generated ${g.ids.length} structures in ${((performance.now() - t) / 1000).toFixed(1)} s (kept in ${dir})\n`);
-  }
+  const { dir, cif, energies } = benchLandscape(packings);
   const out = join(dir, 'out');
   const cache = join(dir, 'cache');
   rmSync(cache, { recursive: true, force: true });
-  const first = child(cif, energies, out, cache, 0.04);
+  const first = siftChild(cif, energies, out, cache, 0.04, THREADS);
   process.stdout.write(
     `sift of ${first.counts.input} structures (${packings} distinct, 44 atoms per cell), ${THREADS} threads: ${first.seconds.toFixed(2)} s  [goal < 10 s] ` +
       `(CPU ${first.cpuSeconds.toFixed(2)} s over all threads; load average ${loadavg()[0].toFixed(1)} on ${availableParallelism()} cores), peak memory ${first.peakMb.toFixed(0)} MB  [goal < 2048 MB]\n` +
       `  kept ${first.counts.kept} (planted ${packings}), duplicates ${first.counts.duplicate}, rejected ${first.counts.rejected}, families ${first.families}\n` +
       `  stages (s): ${Object.entries(first.timings).map(([k, v]) => `${k} ${v.toFixed(2)}`).join(', ')}\n`,
   );
-  const second = child(cif, energies, out, cache, 0.05);
+  const second = siftChild(cif, energies, out, cache, 0.05, THREADS);
   process.stdout.write(
     `cached re-run with tolerance 0.05 Å: ${second.seconds.toFixed(2)} s = ${((100 * second.seconds) / first.seconds).toFixed(1)}% of the first run  [goal < 10%], ` +
       `CPU ${second.cpuSeconds.toFixed(2)} s, cache hits ${second.cache.hits}, misses ${second.cache.misses}, peak memory ${second.peakMb.toFixed(0)} MB\n` +
       `  stages (s): ${Object.entries(second.timings).map(([k, v]) => `${k} ${v.toFixed(2)}`).join(', ')}\n`,
   );
-}
-
-function child(cif: string, energies: string, out: string, cache: string, tolerance: number): ChildResult {
-  const script = fileURLToPath(new URL('./_sift-child.js', import.meta.url));
-  const r = spawnSync(process.execPath, [script, cif, energies, out, cache, String(tolerance), String(THREADS)], {
-    encoding: 'utf8',
-    maxBuffer: 1 << 24,
-  });
-  if (r.status !== 0) throw new Error(`sift benchmark child failed: ${r.stderr}`);
-  return JSON.parse(r.stdout.trim().split('\n').pop()!) as ChildResult;
 }

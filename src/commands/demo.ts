@@ -3,6 +3,7 @@ import type { Command } from 'commander';
 import { join } from 'node:path';
 import { DEMO_OUT, runDemo } from '../demo/run-demo.js';
 import { makeProgress } from '../progress.js';
+import { parseThreads } from './options.js';
 
 export function registerDemo(program: Command): void {
   program
@@ -11,10 +12,9 @@ export function registerDemo(program: Command): void {
     .option('--out <dir>', 'output folder', DEMO_OUT)
     .option('--planted', 'plant known distinct packings and re-write each many times, instead of relaxing random starts')
     .option('--threads <n>', 'worker threads (default: available cores)')
-    .option('--quiet', 'no progress on stderr')
+    .option('--quiet', 'print nothing but errors (no progress, no summary)')
     .action(async (o: { out: string; threads?: string; quiet?: boolean; planted?: boolean }) => {
-      const threads = o.threads === undefined ? undefined : Number(o.threads);
-      if (threads !== undefined && !(Number.isInteger(threads) && threads >= 1)) throw new Error(`--threads must be a whole number >= 1, not '${o.threads}'`);
+      const threads = parseThreads(o.threads);
       const kind = o.planted ? 'planted' : 'search';
       const r = await runDemo({ out: o.out, threads, kind, progress: makeProgress({ quiet: o.quiet }) });
       const lines =
@@ -29,6 +29,6 @@ export function registerDemo(program: Command): void {
                 `(demo-rejected-starts.csv).`,
               ...r.summary,
             ];
-      process.stdout.write(`${lines.join('\n')}\nreport: ${join(o.out, 'report.html')}\n`);
+      if (!o.quiet) process.stdout.write(`${lines.join('\n')}\nreport: ${join(o.out, 'report.html')}\n`);
     });
 }

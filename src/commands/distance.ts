@@ -11,10 +11,9 @@ import { pdd } from '../invariants/pdd.js';
 import { amd } from '../invariants/amd.js';
 import { amdDistance } from '../metric/emd.js';
 import { distanceMatrix } from '../metric/graph.js';
-import { DEFAULT_HYDROGENS, parseDepth, parseHydrogens } from './inspect.js';
+import { DEFAULT_HYDROGENS, parseDepth } from './inspect.js';
+import { addHydrogens, addPddDepth, addThreads, parseHydrogens, parseThreads } from './options.js';
 
-/** Default PDD depth (the project-wide default k). */
-export const DEFAULT_DISTANCE_K = 100;
 
 export interface DistanceOptions {
   k: number;
@@ -91,28 +90,21 @@ export function formatDistanceText(r: DistanceReport): string {
 }
 
 export function registerDistance(program: Command): void {
-  program
+  const cmd = program
     .command('distance')
     .description('EMD and AMD distance (Å) between structures: one pair, or the matrix for more')
-    .argument('<inputs...>', 'CIF files (.cif, .cif.gz, multi-block) or folders; every data block is one structure')
-    .option('--json', 'print one JSON document instead of text')
-    .option('-k <n>', 'PDD depth (neighbours per row)', String(DEFAULT_DISTANCE_K))
-    .option('--hydrogens <keep|drop>', 'keep or drop hydrogen (and deuterium) atoms', DEFAULT_HYDROGENS)
-    .option('--threads <n>', 'worker threads for the EMD matrix (default: available cores)')
-    .action(async (inputs: string[], o: { json?: boolean; k: string; hydrogens: string; threads?: string }) => {
-      const threads = o.threads === undefined ? undefined : parseThreads(o.threads);
-      const report = await distanceReport(inputs, { k: parseDepth(o.k), hydrogens: parseHydrogens(o.hydrogens), threads });
-      process.stdout.write(o.json ? `${JSON.stringify(report, null, 2)}\n` : formatDistanceText(report));
-    });
+    .argument('<inputs...>', 'CIF files (.cif, .cif.gz, multi-block) or folders; every data block is one structure');
+  addPddDepth(cmd);
+  addHydrogens(cmd, DEFAULT_HYDROGENS);
+  addThreads(cmd);
+  cmd.option('--json', 'print the result as JSON on stdout');
+  cmd.action(async (inputs: string[], o: { json?: boolean; pddDepth: string; hydrogens: string; threads?: string }) => {
+    const report = await distanceReport(inputs, { k: parseDepth(o.pddDepth), hydrogens: parseHydrogens(o.hydrogens), threads: parseThreads(o.threads) });
+    process.stdout.write(o.json ? `${JSON.stringify(report, null, 2)}\n` : formatDistanceText(report));
+  });
 }
 
 // ---- helpers ----
-
-function parseThreads(value: string): number {
-  const t = Number(value);
-  if (!/^\s*\d+\s*$/.test(value) || t < 1) throw new Error(`--threads must be a whole number, at least 1, not '${value}'`);
-  return t;
-}
 
 function fmt(v: number): string {
   return v.toFixed(6);

@@ -4,7 +4,7 @@
 // multi-block CIF, an energies CSV and the truth (which packing each block is). Deterministic from the seed.
 import { makeRng, type Rng } from './prng.js';
 import { orvazinone, type MoleculeTemplate } from './molecule.js';
-import { GROUPS, type GeneratedGroup } from './space-groups.js';
+import { GROUPS, IT_NUMBER, type GeneratedGroup } from './space-groups.js';
 import { closePartner, drawPacking, groupOps, packingDensity, squeeze, type Packing } from './packing.js';
 import {
   basisOf,
@@ -23,7 +23,6 @@ import type { Mat3, Vec3 } from './mat3.js';
 
 export const ALL_GROUPS: GeneratedGroup[] = ['P21/c', 'P-1', 'P212121', 'C2/c', 'P21', 'Pbca'];
 
-const IT_NUMBER: Record<GeneratedGroup, number> = { 'P21/c': 14, 'P-1': 2, P212121: 19, 'C2/c': 15, P21: 4, Pbca: 61 };
 
 /** Ways a copy is written. */
 export type CopyKind = 'standard' | 'symbol-only' | 'other-cell' | 'other-setting' | 'p1' | 'p1-supercell';

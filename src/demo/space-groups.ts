@@ -1,8 +1,8 @@
 // Symmetry operations of the common space groups of organic crystals in their standard settings
 // (International Tables for Crystallography, Vol. A: P21/c unique axis b cell choice 1, P-1, P212121,
-// C2/c unique axis b cell choice 1, P21 unique axis b, Pbca). Used by the generator only.
+// C2/c unique axis b cell choice 1, P21 unique axis b, Pbca, Pna21). Used by the generator only.
 
-export type GeneratedGroup = 'P21/c' | 'P-1' | 'P212121' | 'C2/c' | 'P21' | 'Pbca';
+export type GeneratedGroup = 'P21/c' | 'P-1' | 'P212121' | 'C2/c' | 'P21' | 'Pbca' | 'Pna21';
 
 export interface GroupOps {
   /** Hermann–Mauguin symbol as written in a CIF (full symbol for monoclinic groups). */
@@ -34,7 +34,15 @@ export const GROUPS: Record<GeneratedGroup, GroupOps> = {
       '-x,-y,-z', 'x+1/2,y,-z+1/2', 'x,-y+1/2,z+1/2', '-x+1/2,y+1/2,z',
     ],
   },
+  Pna21: {
+    symbol: 'P n a 21',
+    system: 'orthorhombic',
+    xyz: ['x,y,z', '-x,-y,z+1/2', 'x+1/2,-y+1/2,z', '-x+1/2,y+1/2,z+1/2'],
+  },
 };
+
+/** International Tables number of each generated group. */
+export const IT_NUMBER: Record<GeneratedGroup, number> = { 'P21/c': 14, 'P-1': 2, P212121: 19, 'C2/c': 15, P21: 4, Pbca: 61, Pna21: 33 };
 
 /** A parsed operation on fractional coordinates: x' = R x + t. */
 export interface Op {

@@ -1,4 +1,5 @@
-// Facts about a crystal that need no invariants: volume, atoms per cell, density, molecules, Z, Z'.
+// Facts about a crystal that need no invariants: volume, atoms per cell, density, molecules, Z, Z', and the
+// space group the crystal has (./crystal-symmetry.ts).
 // Always computed on the full structure with hydrogens, so they do not depend on the hydrogen option.
 //
 // Density = sum over atoms in the cell of occupancy * standard atomic weight / (N_A * V)
@@ -9,6 +10,8 @@ import { selectOrderedSites } from './disorder.js';
 import { atomicNumber, atomicWeight } from './elements.js';
 import { findMolecules, hillFormula, OVERLAP_ANGSTROM } from './molecules.js';
 import { expandSites } from './periodic-set.js';
+import { crystalSymmetry, type SymmetryDoubts } from './crystal-symmetry.js';
+import { DEFAULT_SYMMETRY_TOLERANCE_ANGSTROM, type SymmetryDetection } from './detect-symmetry.js';
 
 const AVOGADRO_PER_MOL = 6.02214076e23;
 const CUBIC_ANGSTROM_IN_CM3 = 1e-24;
@@ -17,7 +20,17 @@ const AGREEMENT_FRACTION = 0.005;
 /** Element ratios of the cell content and the stated formula may differ by this fraction (rounded occupancies). */
 const COMPOSITION_FRACTION = 0.03;
 
-export function crystalFacts(record: CrystalRecord): CrystalFacts {
+export interface FactsOptions {
+  /** Tolerance (Å) of symmetry detection (./detect-symmetry.ts); default DEFAULT_SYMMETRY_TOLERANCE_ANGSTROM. */
+  symmetryToleranceAngstrom?: number;
+}
+
+export function crystalFacts(record: CrystalRecord, opts: FactsOptions = {}): CrystalFacts {
+  return crystalFactsAndSymmetry(record, opts).facts;
+}
+
+/** The facts and the full symmetry detection behind `facts.symmetry` (null when detection did not run). */
+export function crystalFactsAndSymmetry(record: CrystalRecord, opts: FactsOptions = {}): { facts: CrystalFacts; detection: SymmetryDetection | null } {
   const volumeA3 = cellVolume(record.cell);
   const notes: string[] = [];
   if (record.sites.length === 0) {
@@ -68,15 +81,32 @@ export function crystalFacts(record: CrystalRecord): CrystalFacts {
 
   notes.push(...consistencyNotes(record, volumeA3, densityGPerCm3, massPerCell, molecules.z, all.duplicateSites, implicitHydrogens ?? null));
   notes.push(...compositionNotes(record, all));
+
+  // The crystal's own symmetry, on the ordered atoms with hydrogens.
+  const formula = textItem(record.text, '_chemical_formula_sum');
+  const composition = formula === null ? null : parseFormulaSum(formula);
+  const doubts: SymmetryDoubts = {
+    disordered: selection.notes.length > 0 || record.sites.some((site) => site.occupancy < 1 - 1e-6),
+    missingHydrogens: !hasHydrogenSites && (implicitHydrogens !== undefined || (composition !== null && (composition.get(1) ?? 0) > 0)),
+    overlaps: molecules.overlaps,
+  };
+  const { symmetry, detection } = crystalSymmetry(
+    record, { basis: ordered.basis, frac: ordered.frac, types: ordered.atomicNumbers }, molecules.z, doubts,
+    opts.symmetryToleranceAngstrom ?? DEFAULT_SYMMETRY_TOLERANCE_ANGSTROM,
+  );
   return {
-    volumeA3,
-    atomsPerCell: ordered.count,
-    densityGPerCm3,
-    z: molecules.z,
-    zPrime,
-    formulas: molecules.formulas,
-    ...(implicitHydrogens === undefined ? {} : { implicitHydrogens }),
-    notes,
+    facts: {
+      volumeA3,
+      atomsPerCell: ordered.count,
+      densityGPerCm3,
+      z: molecules.z,
+      zPrime,
+      formulas: molecules.formulas,
+      symmetry,
+      ...(implicitHydrogens === undefined ? {} : { implicitHydrogens }),
+      notes,
+    },
+    detection,
   };
 }
 

@@ -1,26 +1,9 @@
 // Writers for sift's output files (CSV, JSON, CIF) and atomic replacement of a set of files: every file is
 // first written whole to a temporary name in the output folder, then all are renamed into place, so an
-// interrupted run (Ctrl-C) never leaves a half-written output file. Numbers are rounded the same way
-// everywhere so that two runs on the same inputs give byte-identical files.
+// interrupted run (Ctrl-C) never leaves a half-written output file. Numbers in tables are rounded by
+// src/io/tables.ts, the same way every time, so two runs on the same inputs give byte-identical files.
 import { mkdirSync, renameSync, rmSync, writeFileSync } from 'node:fs';
 import { join } from 'node:path';
-
-/** Decimals written for distances (Å), densities (g/cm3) and energies. */
-export const DECIMALS = 6;
-
-/** Round for output: fixed decimals, no negative zero; NaN and infinities are refused (a bug upstream). */
-export function roundNumber(x: number, decimals = DECIMALS): number {
-  if (!Number.isFinite(x)) throw new Error(`cannot write the non-finite number ${x}`);
-  const r = Number(x.toFixed(decimals));
-  return r === 0 ? 0 : r;
-}
-
-/** A number as CSV text with fixed decimals ('' for null). */
-export function csvNumber(x: number | null, decimals = DECIMALS): string {
-  if (x === null) return '';
-  const s = roundNumber(x, decimals).toFixed(decimals);
-  return s;
-}
 
 /** One CSV field (RFC 4180): quoted when it holds a comma, quote, line break or outer spaces. */
 export function csvField(value: string | number | null): string {

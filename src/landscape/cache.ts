@@ -14,6 +14,9 @@ import { writeFilesAtomically } from '../io/outputs.js';
 
 const MAGIC = 'PSIC1\n';
 
+/** Folder of the cache inside a sift output folder, where `sift` and `locate` put it by default. */
+export const CACHE_FOLDER = '.polysift-cache';
+
 export interface CacheEntry {
   pdd: Pdd;
   /** Motif points used for the invariants (after the hydrogen policy). */
@@ -21,6 +24,8 @@ export interface CacheEntry {
   facts: CrystalFacts | null;
   /** Notes of the periodic-set construction (disorder, hydrogens, merged images). */
   notes: string[];
+  /** Symmetry tolerance (Å) the facts were computed with (null in files written before it was stored). */
+  symmetryToleranceAngstrom: number | null;
 }
 
 export interface CacheParams {
@@ -44,6 +49,7 @@ interface HeaderEntry {
   atoms: number;
   facts: CrystalFacts | null;
   notes: string[];
+  symmetryToleranceAngstrom?: number;
 }
 
 /** Load the cache for `p` from `dir` (empty when absent; an unreadable file is ignored and reported via `problem`). */
@@ -68,7 +74,9 @@ export function loadCache(dir: string, p: CacheParams): { entries: Map<string, C
       const weights = data.subarray(offset, offset + h.rows);
       offset += h.rows;
       if (weights.length !== h.rows) throw new Error('cache file is truncated');
-      entries.set(h.key, { pdd: { k: p.k, rows, weights }, atoms: h.atoms, facts: h.facts, notes: h.notes });
+      entries.set(h.key, {
+        pdd: { k: p.k, rows, weights }, atoms: h.atoms, facts: h.facts, notes: h.notes, symmetryToleranceAngstrom: h.symmetryToleranceAngstrom ?? null,
+      });
     }
     return { entries, problem: null };
   } catch (err) {
@@ -82,7 +90,10 @@ export function saveCache(dir: string, p: CacheParams, entries: Map<string, Cach
   let floats = 0;
   for (const [key, e] of entries) {
     if (e.pdd.k !== p.k) throw new Error(`cache entry ${key} has k = ${e.pdd.k}, not ${p.k}`);
-    header.entries.push({ key, rows: e.pdd.weights.length, atoms: e.atoms, facts: e.facts, notes: e.notes });
+    header.entries.push({
+      key, rows: e.pdd.weights.length, atoms: e.atoms, facts: e.facts, notes: e.notes,
+      ...(e.symmetryToleranceAngstrom === null ? {} : { symmetryToleranceAngstrom: e.symmetryToleranceAngstrom }),
+    });
     floats += e.pdd.rows.length + e.pdd.weights.length;
   }
   const headerBytes = Buffer.from(JSON.stringify(header), 'utf8');

@@ -17,6 +17,7 @@
 //   thresholds are ours (common practice only says that low-energy structures found repeatedly and no longer
 //   new mark a converged search).
 import type { ConvergenceCurve, ConvergenceVerdict, EnergyUnit, StructureRow } from './schema.js';
+import { ENERGY_SUFFIX } from '../io/tables.js';
 
 /** kJ/mol per kcal/mol (thermochemical calorie, 4.184 J exactly: NIST SP 811, 2008). */
 const KJ_PER_KCAL = 4.184;
@@ -206,13 +207,15 @@ function count(x: number): string {
   return x.toLocaleString('en-US');
 }
 
-
-/** Column names of `convergence.csv`: `processed`, then one count column per window (e.g. `within_5_kJ/mol`). */
+/**
+ * Column names of `convergence.csv`: `processed`, then one count column per window with the window and its unit in
+ * the name (`within_5_kj_per_mol`), as every table names units (src/io/tables.ts).
+ */
 export function convergenceCsvHeader(windows: number[], unit: EnergyUnit): string[] {
-  return ['processed', ...windows.map((w) => `within_${fmt(w)}_${unit}`)];
+  return ['processed', ...windows.map((w) => `within_${fmt(w)}${ENERGY_SUFFIX[unit]}`)];
 }
 
-/** The whole `convergence.csv` text (header line, one line per curve point, trailing newline). */
+/** The whole `convergence.csv` text (header line, one line per curve point, trailing newline); every value is a count. */
 export function convergenceCsv(curve: ConvergenceCurve, unit: EnergyUnit): string {
   const lines = [convergenceCsvHeader(curve.windows, unit).join(',')];
   for (const p of curve.points) lines.push([p.processed, ...p.counts].join(','));

@@ -1,37 +1,52 @@
 // The files `polysift diff --out DIR` writes: diff.json (everything), diff-structures.csv (one row per kept
-// structure of either run), diff-pairs.csv (one row per matched pair) and report.html.
+// structure of either run), diff-pairs.csv (one row per matched pair) and report.html. The CSVs follow
+// src/io/tables.ts (units in the headers, one rounding per quantity); to add a column, add one line below and a
+// row to the README's table for that file.
 import { mkdirSync, writeFileSync } from 'node:fs';
 import { join } from 'node:path';
-import Papa from 'papaparse';
-import type { LandscapeDiff } from './diff.js';
+import type { DiffStructure, LandscapeDiff, MatchedPair } from './diff.js';
+import { tableCsv, type Column } from '../io/tables.js';
 import { renderDiffReport } from '../report/diff-report.js';
 
-export const DIFF_STRUCTURE_COLUMNS = [
-  'run', 'id', 'source', 'presence', 'energy_rank', 'energy_rel', 'density', 'space_group',
-  'partner', 'partner_emd', 'nearest_other', 'nearest_other_emd',
-] as const;
+export const DIFF_STRUCTURE_COLUMNS: ReadonlyArray<Column<DiffStructure>> = [
+  { name: 'run', quantity: 'text', value: (s) => s.run },
+  { name: 'id', quantity: 'text', value: (s) => s.id },
+  { name: 'source', quantity: 'text', value: (s) => s.source },
+  { name: 'presence', quantity: 'text', value: (s) => s.presence },
+  { name: 'energy_rank', quantity: 'integer', value: (s) => s.rank },
+  { name: 'energy_rel', quantity: 'energy', value: (s) => s.energyRel },
+  { name: 'density', quantity: 'density', value: (s) => s.densityGPerCm3 },
+  { name: 'space_group', quantity: 'text', value: (s) => s.spaceGroup },
+  { name: 'partner', quantity: 'text', value: (s) => s.partner },
+  { name: 'partner_distance', quantity: 'distance', value: (s) => s.partnerDistance },
+  { name: 'nearest_other', quantity: 'text', value: (s) => s.nearestOther },
+  { name: 'nearest_other_distance', quantity: 'distance', value: (s) => s.nearestOtherDistance },  { name: 'z_prime', quantity: 'z-prime', value: (s) => s.zPrime },
+];
 
-export const DIFF_PAIR_COLUMNS = [
-  'id_a', 'id_b', 'emd', 'energy_rank_a', 'energy_rank_b', 'energy_rel_a', 'energy_rel_b', 'energy_rel_shift',
-  'energy_shift', 'density_a', 'density_b', 'density_shift', 'mutual_nearest',
-] as const;
+export const DIFF_PAIR_COLUMNS: ReadonlyArray<Column<MatchedPair>> = [
+  { name: 'id_a', quantity: 'text', value: (p) => p.idA },
+  { name: 'id_b', quantity: 'text', value: (p) => p.idB },
+  { name: 'distance', quantity: 'distance', value: (p) => p.emdAngstrom },
+  { name: 'energy_rank_a', quantity: 'integer', value: (p) => p.rankA },
+  { name: 'energy_rank_b', quantity: 'integer', value: (p) => p.rankB },
+  { name: 'energy_rel_a', quantity: 'energy', value: (p) => p.energyRelA },
+  { name: 'energy_rel_b', quantity: 'energy', value: (p) => p.energyRelB },
+  { name: 'energy_rel_shift', quantity: 'energy', value: (p) => p.energyRelShift },
+  { name: 'energy_shift', quantity: 'energy', value: (p) => p.energyShift },
+  { name: 'density_a', quantity: 'density', value: (p) => p.densityA },
+  { name: 'density_b', quantity: 'density', value: (p) => p.densityB },
+  { name: 'density_shift', quantity: 'density', value: (p) => p.densityShiftGPerCm3 },
+  { name: 'mutual_nearest', quantity: 'text', value: (p) => (p.mutualNearest ? 'yes' : 'no') },
+];
 
 /** diff-structures.csv text. */
 export function diffStructuresCsv(d: LandscapeDiff): string {
-  const rows = d.structures.map((s) => [
-    s.run, s.id, s.source, s.presence, s.rank, s.energyRel, s.densityGPerCm3, s.spaceGroup ?? '',
-    s.partner ?? '', s.partnerDistance, s.nearestOther ?? '', s.nearestOtherDistance,
-  ]);
-  return csv([...DIFF_STRUCTURE_COLUMNS], rows);
+  return tableCsv(DIFF_STRUCTURE_COLUMNS, d.structures, d.energyUnit);
 }
 
 /** diff-pairs.csv text. */
 export function diffPairsCsv(d: LandscapeDiff): string {
-  const rows = d.pairs.map((p) => [
-    p.idA, p.idB, p.emdAngstrom, p.rankA, p.rankB, p.energyRelA, p.energyRelB, p.energyRelShift, p.energyShift,
-    p.densityA, p.densityB, p.densityShiftGPerCm3, p.mutualNearest ? 'yes' : 'no',
-  ]);
-  return csv([...DIFF_PAIR_COLUMNS], rows);
+  return tableCsv(DIFF_PAIR_COLUMNS, d.pairs, d.energyUnit);
 }
 
 /** Write every diff output into `outDir` (created when missing); returns the paths written. */
@@ -50,9 +65,4 @@ export function writeDiffOutputs(outDir: string, d: LandscapeDiff, title?: strin
     written.push(p);
   }
   return written;
-}
-
-/** CSV with a header line; null becomes an empty cell, numbers are written in full precision. */
-function csv(header: string[], rows: Array<Array<string | number | null>>): string {
-  return Papa.unparse({ fields: header, data: rows.map((r) => r.map((v) => (v === null ? '' : v))) }, { newline: '\n' }) + '\n';
 }

@@ -46,7 +46,9 @@ export interface DiffStructure {
   /** Energy above its run's lowest, in the diff's energy unit (run A's). */
   energyRel: number | null;
   densityGPerCm3: number | null;
+  /** The space group the structure has (detected, or declared where detection was not trusted) and its Z'. */
   spaceGroup: string | null;
+  zPrime: number | null;
   /** Matched partner in the other run (structure index and id) and their EMD (Å). */
   partnerIndex: number | null;
   partner: string | null;
@@ -177,7 +179,7 @@ export async function diffLandscapes(
     const near = ab.nearest[j];
     structures.push({
       run: 'A', index: i, id: s.id, source: s.source, presence: partner >= 0 ? 'both' : 'only-A',
-      rank: ranksA.get(i) ?? null, energyRel: s.energyRel, densityGPerCm3: s.densityGPerCm3, spaceGroup: s.spaceGroup,
+      rank: ranksA.get(i) ?? null, energyRel: s.energyRel, densityGPerCm3: s.densityGPerCm3, spaceGroup: s.spaceGroup, zPrime: s.zPrime ?? null,
       partnerIndex: partner >= 0 ? keptB[partner] : null, partner: partner >= 0 ? b.structures[keptB[partner]].id : null,
       partnerDistance: partner >= 0 ? pairCost(matching.pairs, j) : null,
       nearestOtherIndex: near >= 0 ? keptB[near] : null, nearestOther: near >= 0 ? b.structures[keptB[near]].id : null,
@@ -191,7 +193,7 @@ export async function diffLandscapes(
     structures.push({
       run: 'B', index: i, id: s.id, source: s.source, presence: partner >= 0 ? 'both' : 'only-B',
       rank: ranksB.get(i) ?? null, energyRel: s.energyRel === null ? null : s.energyRel * scaleB,
-      densityGPerCm3: s.densityGPerCm3, spaceGroup: s.spaceGroup,
+      densityGPerCm3: s.densityGPerCm3, spaceGroup: s.spaceGroup, zPrime: s.zPrime ?? null,
       partnerIndex: partner >= 0 ? keptA[partner] : null, partner: partner >= 0 ? a.structures[keptA[partner]].id : null,
       partnerDistance: partner >= 0 ? pairCost(matching.pairs, partner) : null,
       nearestOtherIndex: near >= 0 ? keptA[near] : null, nearestOther: near >= 0 ? a.structures[keptA[near]].id : null,

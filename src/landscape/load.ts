@@ -51,6 +51,9 @@ export function validateLandscape(data: unknown, where: string): Landscape {
   if (p.hydrogens !== 'keep' && p.hydrogens !== 'drop') fail('"parameters.hydrogens"', 'must be "keep" or "drop"');
   if (!isFiniteNumber(p.toleranceAngstrom) || (p.toleranceAngstrom as number) < 0) fail('"parameters.toleranceAngstrom"', 'must be a non-negative number');
   if (!UNITS.has(p.energyUnit as string)) fail('"parameters.energyUnit"', 'must be one of kJ/mol, kcal/mol, eV');
+  // Landscapes written before the energy basis existed had energies per molecule.
+  if (p.energyBasis === undefined) p.energyBasis = 'molecule';
+  else if (p.energyBasis !== 'molecule' && p.energyBasis !== 'cell') fail('"parameters.energyBasis"', 'must be "molecule" or "cell"');
 
   const rows = data.structures;
   if (!Array.isArray(rows)) return fail('"structures"', 'is missing or not a list');
@@ -68,8 +71,12 @@ export function validateLandscape(data: unknown, where: string): Landscape {
     if (s.status === 'kept' && s.keptIndex !== i) fail(`${f}.keptIndex`, `must be ${i} for a kept structure`);
     if (!Array.isArray(s.formulas)) fail(`${f}.formulas`, 'must be a list');
     if (!Array.isArray(s.notes)) fail(`${f}.notes`, 'must be a list');
-    // Landscapes written before rows carried their cell read as cell unknown.
+    // Landscapes written before rows carried their cell, or their symmetry, read as unknown.
     if (s.cell === undefined) s.cell = null;
+    if (s.symmetry === undefined) s.symmetry = null;
+    if (s.writtenIn === undefined) s.writtenIn = [];
+    if (s.spaceGroup !== null && typeof s.spaceGroup !== 'string') fail(`${f}.spaceGroup`, 'must be a string or null');
+    if (s.zPrime !== undefined && s.zPrime !== null && !isFiniteNumber(s.zPrime)) fail(`${f}.zPrime`, 'must be a number or null');
     else if (s.cell !== null && !(isObject(s.cell) && ['a', 'b', 'c', 'alpha', 'beta', 'gamma'].every((key) => isFiniteNumber((s.cell as Record<string, unknown>)[key]))))
       fail(`${f}.cell`, 'must be null or an object with numbers a, b, c, alpha, beta, gamma');
     return undefined;

@@ -9,6 +9,8 @@ import { crystalFacts } from '../geometry/facts.js';
 export interface PrepareInput {
   records: CrystalRecord[];
   hydrogens: HydrogenPolicy;
+  /** Tolerance (Å) of symmetry detection, part of the crystal facts. */
+  symmetryToleranceAngstrom: number;
 }
 
 export type Prepared =
@@ -16,10 +18,10 @@ export type Prepared =
   | { ok: false; reason: string };
 
 export function prepareChunk(input: PrepareInput): Prepared[] {
-  return input.records.map((record) => prepareOne(record, input.hydrogens));
+  return input.records.map((record) => prepareOne(record, input.hydrogens, input.symmetryToleranceAngstrom));
 }
 
-export function prepareOne(record: CrystalRecord, hydrogens: HydrogenPolicy): Prepared {
+export function prepareOne(record: CrystalRecord, hydrogens: HydrogenPolicy, symmetryToleranceAngstrom?: number): Prepared {
   let set: PeriodicPointSet;
   let notes: string[];
   try {
@@ -30,7 +32,7 @@ export function prepareOne(record: CrystalRecord, hydrogens: HydrogenPolicy): Pr
   if (set.motif.length === 0) return { ok: false, reason: 'no atoms are left to compare' };
   let facts: CrystalFacts | null = null;
   try {
-    facts = crystalFacts(record);
+    facts = crystalFacts(record, { symmetryToleranceAngstrom });
   } catch (err) {
     notes = [...notes, `density and Z could not be computed: ${stripSource((err as Error).message, record.source)}`];
   }

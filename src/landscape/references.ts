@@ -8,7 +8,9 @@ import { pdd } from '../invariants/pdd.js';
 import { amd } from '../invariants/amd.js';
 import type { ReferenceInvariants } from './locate.js';
 import type { HydrogenPolicy } from './schema.js';
-import type { CrystalRecord } from '../types.js';
+import type { CrystalFacts, CrystalRecord } from '../types.js';
+import { cellVolume } from '../geometry/cell.js';
+import { volumePerAtom } from './scale-free.js';
 
 export interface UnusableReference {
   source: string;
@@ -21,6 +23,7 @@ export async function readReferences(
   paths: string[],
   k: number,
   hydrogens: HydrogenPolicy,
+  symmetryToleranceAngstrom?: number,
 ): Promise<{ references: ReferenceInvariants[]; unusable: UnusableReference[] }> {
   const references: ReferenceInvariants[] = [];
   const unusable: UnusableReference[] = [];
@@ -30,7 +33,7 @@ export async function readReferences(
       continue;
     }
     try {
-      references.push(referenceInvariants(r.record, k, hydrogens));
+      references.push(referenceInvariants(r.record, k, hydrogens, symmetryToleranceAngstrom));
     } catch (err) {
       unusable.push({ source: r.record.source, line: r.record.line, reason: (err as Error).message });
     }
@@ -38,25 +41,29 @@ export async function readReferences(
   return { references, unusable };
 }
 
-/** Invariants of one reference record with the landscape's k and hydrogen policy. */
-export function referenceInvariants(record: CrystalRecord, k: number, hydrogens: HydrogenPolicy): ReferenceInvariants {
+/** Invariants of one reference record with the landscape's k, the comparison's hydrogen policy and the landscape's symmetry tolerance. */
+export function referenceInvariants(record: CrystalRecord, k: number, hydrogens: HydrogenPolicy, symmetryToleranceAngstrom?: number): ReferenceInvariants {
   const { set, notes } = toPeriodicSet(record, { hydrogens });
   const p = pdd(set, k);
+  const facts = factsOf(record, symmetryToleranceAngstrom);
+  const symmetryNote = facts?.symmetry.note;
   return {
     id: record.id,
     source: record.source,
     pdd: p,
     amd: Array.from(amd(p)),
-    densityGPerCm3: densityOf(record),
-    spaceGroup: record.spaceGroup,
-    notes: [...record.notes, ...notes],
+    densityGPerCm3: facts?.densityGPerCm3 ?? null,
+    spaceGroup: facts?.symmetry.symbol ?? record.spaceGroup,
+    zPrime: facts?.symmetry.zPrime ?? null,
+    volumePerAtomA3: volumePerAtom(cellVolume(record.cell), set.motif.length / 3),
+    notes: [...record.notes, ...(symmetryNote ? [symmetryNote] : []), ...notes],
   };
 }
 
-/** Density in g/cm³ as sift reports it (geometry/facts.ts: all atoms, hydrogens included); null when it cannot be computed. */
-function densityOf(record: CrystalRecord): number | null {
+/** Density and symmetry as sift reports them (geometry/facts.ts: all atoms, hydrogens included); null when they cannot be computed. */
+function factsOf(record: CrystalRecord, symmetryToleranceAngstrom?: number): CrystalFacts | null {
   try {
-    return crystalFacts(record).densityGPerCm3;
+    return crystalFacts(record, { symmetryToleranceAngstrom });
   } catch {
     return null;
   }

@@ -7,20 +7,27 @@ export type EnergyUnit = 'kJ/mol' | 'kcal/mol' | 'eV';
 
 export type HydrogenPolicy = 'keep' | 'drop';
 
+/** What the energies given to sift were per: a molecule, or a cell (divided by each structure's Z when read). */
+export type EnergyBasis = 'molecule' | 'cell';
+
 export interface SiftParameters {
   /** PDD depth (neighbours per row). */
   k: number;
   hydrogens: HydrogenPolicy;
   /** Duplicate tolerance: EMD in Å to the kept structure of a group. */
   toleranceAngstrom: number;
+  /** Symmetry tolerance: distance in Å within which atoms must map onto atoms for an operation to count. */
+  symmetryToleranceAngstrom: number;
   /** HDBSCAN minimum family size. */
   minFamilySize: number;
   /** HDBSCAN minimum samples (core distance neighbour count). */
   minSamples: number;
   /** Energy window above the lowest energy, in `energyUnit`; null for no window. */
   energyWindow: number | null;
-  /** Unit of every energy in this file. */
+  /** Unit of every energy in this file; every energy here is per molecule (after dividing per-cell energies by Z). */
   energyUnit: EnergyUnit;
+  /** What the energies given were per; 'cell' energies were divided by each structure's Z (a note on each row says which Z). */
+  energyBasis: EnergyBasis;
   /** Number of nearest kept neighbours stored per kept structure in `edges`. */
   neighbours: number;
   /** The inputs as given on the command line. */
@@ -50,9 +57,17 @@ export interface StructureRow {
   densityGPerCm3: number | null;
   /** Atoms per cell used for the invariants (after the hydrogen policy). */
   atoms: number | null;
+  /**
+   * The space group the structure has, one short spelling ('P21/c', 'P-1'): detected within the symmetry tolerance,
+   * or the declared one where detection cannot be trusted (`symmetry.source` says which). For a rejected block, the
+   * symbol its file gives, as written.
+   */
   spaceGroup: string | null;
+  /** Details of `spaceGroup` and what the file declares (null for rejected blocks). */
+  symmetry: RowSymmetry | null;
   /** Cell as read: lengths in Å, angles in degrees, volume in Å³ (null when the angles span no cell). */
   cell: { a: number; b: number; c: number; alpha: number; beta: number; gamma: number; volume: number | null } | null;
+  /** Molecules per conventional cell and per asymmetric unit of `spaceGroup`. */
   z: number | null;
   zPrime: number | null;
   formulas: string[];
@@ -72,8 +87,26 @@ export interface StructureRow {
   nnDistance: number | null;
   /** Group size (itself included) for kept structures, 0 otherwise. */
   members: number;
+  /** Kept structures: the declared space groups the members of the group were written in, with counts, most first; [] otherwise. */
+  writtenIn: Array<{ spaceGroup: string; count: number }>;
   /** Reader and energy notes a user should see (disorder policy applied, hydrogens dropped, no energy, ...). */
   notes: string[];
+}
+
+export interface RowSymmetry {
+  /** 'detected': found in the atoms within the symmetry tolerance; 'declared': the file's own group (see `note`). */
+  source: 'detected' | 'declared';
+  /** International Tables number, full Hermann–Mauguin and Hall symbols of the default setting (null when unknown). */
+  number: number | null;
+  full: string | null;
+  hall: string | null;
+  /** The group the file declares, one spelling per setting ('P1', 'P21/n'), and Z' by its operations. */
+  declared: string | null;
+  declaredZPrime: number | null;
+  /** Largest distance (Å) between an atom's image and its partner under the detected group. */
+  deviationAngstrom: number | null;
+  /** "written in P1; P21/c within 0.06 Å", or why the declared group is reported; null when nothing differs. */
+  note: string | null;
 }
 
 export interface Family {

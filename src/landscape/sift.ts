@@ -7,9 +7,11 @@ import { defaultThreads } from '../parallel/pool.js';
 import { emptyComparisons } from './compare-cache.js';
 import { VERSION } from '../version.js';
 import { makeProgress } from '../progress.js';
+import { DEFAULT_SYMMETRY_TOLERANCE_ANGSTROM } from '../geometry/detect-symmetry.js';
 import type { SiftOptions, SiftState } from './stages/state.js';
 import { readStage } from './stages/read.js';
 import { energiesStage } from './stages/energies.js';
+import { energyBasisStage } from './stages/energy-basis.js';
 import { periodicSetsStage } from './stages/periodic-sets.js';
 import { windowStage } from './stages/window.js';
 import { invariantsStage } from './stages/invariants.js';
@@ -43,6 +45,7 @@ export const SIFT_STAGES: ReadonlyArray<readonly [string, (s: SiftState) => Prom
   ['read', readStage],
   ['energies', energiesStage],
   ['periodic sets', periodicSetsStage],
+  ['energy basis', energyBasisStage],
   ['window', windowStage],
   ['invariants', invariantsStage],
   ['duplicates', duplicatesStage],
@@ -91,10 +94,12 @@ export function initialState(opts: SiftOptions): SiftState {
     k: opts.k ?? DEFAULT_K,
     hydrogens: opts.hydrogens ?? 'keep',
     toleranceAngstrom: opts.toleranceAngstrom ?? DEFAULT_TOLERANCE_ANGSTROM,
+    symmetryToleranceAngstrom: opts.symmetryToleranceAngstrom ?? DEFAULT_SYMMETRY_TOLERANCE_ANGSTROM,
     minFamilySize: opts.minFamilySize ?? DEFAULT_MIN_FAMILY_SIZE,
     minSamples: opts.minSamples ?? opts.minFamilySize ?? DEFAULT_MIN_FAMILY_SIZE,
     energyWindow: opts.energyWindow ?? null,
     energyUnit: opts.energyUnit ?? 'kJ/mol',
+    energyBasis: opts.energyBasis ?? 'molecule',
     neighbours: opts.neighbours ?? DEFAULT_NEIGHBOURS,
     inputs: opts.inputs.slice(),
     energiesFile: opts.energiesFile ?? null,
@@ -116,6 +121,7 @@ export function initialState(opts: SiftOptions): SiftState {
     cacheParams: { k: params.k, hydrogens: params.hydrogens, version: VERSION },
     cache: new Map(),
     cacheProblem: null,
+    cacheFactsChanged: false,
     prepared: new Map(),
     lowest: null,
     active: [],
@@ -140,9 +146,13 @@ export function initialState(opts: SiftOptions): SiftState {
 function checkParameters(p: SiftParameters): void {
   if (!Number.isInteger(p.k) || p.k < 1) throw new Error(`the PDD depth k must be a positive integer, not ${p.k}`);
   if (!(p.toleranceAngstrom >= 0)) throw new Error(`the duplicate tolerance must be a number of Å >= 0, not ${p.toleranceAngstrom}`);
+  if (!(p.symmetryToleranceAngstrom > 0 && p.symmetryToleranceAngstrom <= 1)) {
+    throw new Error(`the symmetry tolerance must be a distance in Å above 0 and at most 1, not ${p.symmetryToleranceAngstrom}`);
+  }
   if (!Number.isInteger(p.minFamilySize) || p.minFamilySize < 2) throw new Error(`the minimum family size must be an integer >= 2, not ${p.minFamilySize}`);
   if (!Number.isInteger(p.minSamples) || p.minSamples < 1) throw new Error(`the minimum samples must be an integer >= 1, not ${p.minSamples}`);
   if (p.energyWindow !== null && !(p.energyWindow >= 0)) throw new Error(`the energy window must be >= 0, not ${p.energyWindow}`);
   if (!Number.isInteger(p.neighbours) || p.neighbours < 1) throw new Error(`the neighbour count must be an integer >= 1, not ${p.neighbours}`);
+  if (p.energyBasis !== 'molecule' && p.energyBasis !== 'cell') throw new Error(`the energy basis must be molecule or cell, not ${String(p.energyBasis)}`);
   if (p.inputs.length === 0) throw new Error('no inputs: give CIF files or folders');
 }

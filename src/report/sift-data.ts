@@ -8,6 +8,8 @@ import { logHistogram, type LogHistogram } from './log-histogram.js';
 import { compareWithWindows, type WindowComparison } from './window-compare.js';
 import { mapQuality, type MapQuality } from './map-quality.js';
 import { convergenceRuleText, fromKjPerMol } from '../landscape/convergence.js';
+import { symbolSpellings } from '../geometry/symbol-spellings.js';
+import { formatWrittenIn } from '../landscape/written-in.js';
 
 /** Largest number of colour classes the neighbourhood lines are binned into (one SVG path each). */
 export const EDGE_CLASSES = 8;
@@ -29,6 +31,14 @@ export interface StructureColumns {
   density: Array<number | null>;
   atoms: Array<number | null>;
   spaceGroup: Array<string | null>;
+  /** International Tables number of `spaceGroup` (null when unknown). */
+  sgNumber: Array<number | null>;
+  /** 1 when the group was detected in the atoms, 0 when the declared one is reported, null for rejected blocks. */
+  sgDetected: Array<number | null>;
+  /** The group the file declares (one spelling per setting). */
+  sgDeclared: Array<string | null>;
+  /** Kept structures: the declared groups of the members, 'P1 x 7; P21/c x 2'; '' for the others. */
+  writtenIn: string[];
   z: Array<number | null>;
   zPrime: Array<number | null>;
   /** Index into `SiftPageData.formulas` (the structure's formulas joined with ", "). */
@@ -97,6 +107,15 @@ export interface SiftPageData {
   convergence: ConvergenceCurve | null;
   /** The verdict rule in words (src/landscape/convergence.ts). */
   convergenceRule: string | null;
+  /** Per space-group number (all 230): its common spellings (lower case, ' | ' between), for the table filter. */
+  groupSpellings: Array<[number, string]>;
+}
+
+let spellingsOfAll: Array<[number, string]> | null = null;
+/** The spellings of the 230 groups (about 20 kB), built once. */
+function allSpellings(): Array<[number, string]> {
+  if (spellingsOfAll === null) spellingsOfAll = Array.from({ length: 230 }, (_, i) => [i + 1, symbolSpellings(i + 1).join(' | ')]);
+  return spellingsOfAll;
 }
 
 export interface LandscapeView {
@@ -132,8 +151,8 @@ export function buildSiftPageData(landscape: Landscape, title: string): SiftPage
   const formulaIds = new Map<string, number>();
   const s: StructureColumns = {
     id: [], file: [], block: [], line: [], status: [], reason: [], energy: [], energyRel: [], density: [],
-    atoms: [], spaceGroup: [], z: [], zPrime: [], formula: [], keptIndex: [], distanceToKept: [], family: [],
-    nearestIndex: [], nearestDistance: [], nnDistance: [], members: [], notes: [], cell: [],
+    atoms: [], spaceGroup: [], sgNumber: [], sgDetected: [], sgDeclared: [], writtenIn: [], z: [], zPrime: [], formula: [], keptIndex: [],
+    distanceToKept: [], family: [], nearestIndex: [], nearestDistance: [], nnDistance: [], members: [], notes: [], cell: [],
   };
   for (let i = 0; i < n; i++) {
     const r = rows[i]!;
@@ -151,6 +170,11 @@ export function buildSiftPageData(landscape: Landscape, title: string): SiftPage
     s.density.push(sig(r.densityGPerCm3));
     s.atoms.push(r.atoms);
     s.spaceGroup.push(r.spaceGroup);
+    const sym = r.symmetry ?? null;
+    s.sgNumber.push(sym?.number ?? null);
+    s.sgDetected.push(sym === null ? null : sym.source === 'detected' ? 1 : 0);
+    s.sgDeclared.push(sym?.declared ?? null);
+    s.writtenIn.push(formatWrittenIn(r.writtenIn ?? []));
     s.z.push(r.z);
     s.zPrime.push(r.zPrime);
     s.formula.push(intern((r.formulas ?? []).join(', '), formulas, formulaIds));
@@ -203,6 +227,7 @@ export function buildSiftPageData(landscape: Landscape, title: string): SiftPage
     counts: landscape.counts,
     lowestEnergy: landscape.lowestEnergy,
     statusCodes: STATUS_CODES,
+    groupSpellings: allSpellings(),
     files,
     formulas,
     s,

@@ -5,7 +5,7 @@
 import { makeRng } from '../prng.js';
 import { mapInWorkers } from '../../parallel/pool.js';
 import { MOLECULE_NAME, orvazinone, type MoleculeTemplate } from '../molecule.js';
-import { GROUPS, type GeneratedGroup } from '../space-groups.js';
+import { GROUPS, IT_NUMBER, type GeneratedGroup } from '../space-groups.js';
 import { contactRatio, drawPacking, groupOps } from '../packing.js';
 import { basisFromCell, det, inverse, vecMat } from '../mat3.js';
 import { shuffleAtoms, wrapMolecules, type Expressed } from '../rewrite.js';
@@ -16,7 +16,6 @@ import { makeRelaxModel, relaxState, type RelaxModel, type RigidState } from './
 /** The common space groups of organic crystals the search uses by default (common practice). */
 export const SEARCH_GROUPS: GeneratedGroup[] = ['P21/c', 'P-1', 'P212121', 'C2/c', 'P21'];
 
-const IT_NUMBER: Record<GeneratedGroup, number> = { 'P21/c': 14, 'P-1': 2, P212121: 19, 'C2/c': 15, P21: 4, Pbca: 61 };
 const AVOGADRO = 6.02214076e23;
 /** Starts are scaled to this density, inside the usual 1.1–1.6 g/cm3 of organic crystals (common practice), then loosened until no contact is too short. */
 const START_DENSITY_G_PER_CM3 = 1.25;

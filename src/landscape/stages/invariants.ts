@@ -42,7 +42,9 @@ export async function invariantsStage(s: SiftState): Promise<void> {
       else {
         w.pdd = r.pdd;
         w.amd = r.amd;
-        s.cache.set(w.key, { pdd: r.pdd, atoms: w.row.atoms ?? 0, facts: w.facts, notes: w.setNotes });
+        s.cache.set(w.key, {
+          pdd: r.pdd, atoms: w.row.atoms ?? 0, facts: w.facts, notes: w.setNotes, symmetryToleranceAngstrom: s.params.symmetryToleranceAngstrom,
+        });
       }
     });
     s.progress.done();
@@ -51,7 +53,7 @@ export async function invariantsStage(s: SiftState): Promise<void> {
   for (const w of s.items) if (!w.amd) w.amd = computeAmd(w.pdd!);
   // The periodic sets are not needed after this stage.
   s.prepared.clear();
-  if (s.cacheDir && toCompute.length > 0) {
+  if (s.cacheDir && (toCompute.length > 0 || s.cacheFactsChanged)) {
     const keep = new Map<string, CacheEntry>();
     for (const w of s.items) keep.set(w.key, s.cache.get(w.key)!);
     for (const [key, e] of s.cache) if (keep.size < 2 * s.items.length && !keep.has(key)) keep.set(key, e);

@@ -5,11 +5,13 @@ import { convergenceCurve, defaultWindows } from '../convergence.js';
 import { VERSION } from '../../version.js';
 import { familiesOf } from './families.js';
 import { round6, roundTo } from './round.js';
+import { writtenInByKept } from '../written-in.js';
 import type { SiftState } from './state.js';
 
 export function buildLandscape(s: SiftState, timingsSeconds: Record<string, number>): Landscape {
   const { items, keptLocal, params } = s;
   const rows = s.work.map((w) => roundRow(w.row));
+  for (const [k, list] of writtenInByKept(rows)) if (rows[k].status === 'kept') rows[k].writtenIn = list;
   const counts = { input: rows.length, kept: 0, duplicate: 0, rejected: 0, outsideWindow: 0 };
   for (const r of rows) {
     if (r.status === 'kept') counts.kept++;
@@ -55,6 +57,9 @@ function roundRow(r: StructureRow): StructureRow {
       r.cell === null
         ? null
         : { a: round6(r.cell.a), b: round6(r.cell.b), c: round6(r.cell.c), alpha: round6(r.cell.alpha), beta: round6(r.cell.beta), gamma: round6(r.cell.gamma), volume: o(r.cell.volume) },
+    symmetry: r.symmetry === null ? null : { ...r.symmetry, deviationAngstrom: o(r.symmetry.deviationAngstrom), declaredZPrime: o(r.symmetry.declaredZPrime) },
+    z: o(r.z),
+    zPrime: o(r.zPrime),
     distanceToKept: o(r.distanceToKept),
     nearestDistance: o(r.nearestDistance),
     nnDistance: o(r.nnDistance),

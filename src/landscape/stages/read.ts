@@ -33,6 +33,7 @@ export function workFromBlock(r: BlockResult, index: number): Work {
     densityGPerCm3: null,
     atoms: null,
     spaceGroup: r.kind === 'record' ? r.record.spaceGroup : null,
+    symmetry: null,
     cell: null,
     z: null,
     zPrime: null,
@@ -46,6 +47,7 @@ export function workFromBlock(r: BlockResult, index: number): Work {
     nearestDistance: null,
     nnDistance: null,
     members: 0,
+    writtenIn: [],
     notes: r.kind === 'record' ? r.record.notes.slice() : [],
   };
   if (r.kind === 'rejected') {

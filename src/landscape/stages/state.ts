@@ -3,7 +3,7 @@
 // heavy parts of a stage (periodic sets, invariants, EMD searches) run in worker threads; the state itself stays
 // on the main thread.
 import type { CrystalFacts, CrystalRecord, Pdd, PeriodicPointSet } from '../../types.js';
-import type { EnergyUnit, Embedding, HydrogenPolicy, SiftParameters, StructureRow } from '../schema.js';
+import type { EnergyBasis, EnergyUnit, Embedding, HydrogenPolicy, SiftParameters, StructureRow } from '../schema.js';
 import type { EnergyAssignment, EnergyTable } from '../../io/energies.js';
 import type { CacheEntry, CacheParams } from '../cache.js';
 import type { Comparisons } from '../compare-cache.js';
@@ -16,10 +16,14 @@ export interface SiftOptions {
   idColumn?: string;
   energyColumn?: string;
   energyUnit?: EnergyUnit;
+  /** What the energies are per (default 'molecule'); 'cell' energies are divided by each structure's Z. */
+  energyBasis?: EnergyBasis;
   energyItem?: string | null;
   k?: number;
   hydrogens?: HydrogenPolicy;
   toleranceAngstrom?: number;
+  /** Symmetry tolerance (Å); default DEFAULT_SYMMETRY_TOLERANCE_ANGSTROM. */
+  symmetryToleranceAngstrom?: number;
   minFamilySize?: number;
   minSamples?: number;
   /** Energy window above the lowest energy, in `energyUnit`; null for none. */
@@ -82,6 +86,8 @@ export interface SiftState {
   cacheParams: CacheParams;
   cache: Map<string, CacheEntry>;
   cacheProblem: string | null;
+  /** Cached entries whose facts were recomputed (another symmetry tolerance): the cache is written again. */
+  cacheFactsChanged: boolean;
   prepared: Map<Work, PeriodicPointSet>;
   // window: the lowest energy among usable structures; the structures inside the window.
   lowest: number | null;
