@@ -36,6 +36,8 @@ export { adjustedRandIndex, spearman } from './cluster/stats.js';
 
 // Pipelines (src/landscape)
 export { sift, SIFT_STAGES } from './landscape/sift.js';
+export { localExecutor } from './parallel/executor.js';
+export { openQueue, serveQueueJobs } from './queue/lazy.js';
 export { siftFiles } from './landscape/sift-files.js';
 export { collapseDuplicates } from './landscape/collapse.js';
 export { convergenceCurve } from './landscape/convergence.js';

@@ -8,6 +8,7 @@ import { registerSift } from './commands/sift.js';
 import { registerDemo } from './commands/demo.js';
 import { registerDiff } from './commands/diff.js';
 import { registerLocate } from './commands/locate.js';
+import { registerWorker } from './commands/worker.js';
 
 export function buildProgram(): Command {
   const program = new Command();
@@ -18,6 +19,7 @@ export function buildProgram(): Command {
   registerSift(program);
   registerDiff(program);
   registerLocate(program);
+  registerWorker(program);
   registerDemo(program);
   registerInspect(program);
   registerDistance(program);

@@ -177,6 +177,12 @@
         col('Z′', num(function (i) { return S(i).zPrime === undefined ? null : S(i).zPrime; }, 3)),
         col('Nearest in other run', { value: function (i) { return S(i).nearestOther; }, text: function (i) { return S(i).nearestOther === null ? '–' : S(i).nearestOther; } }),
         col('Its EMD (Å)', { numeric: true, value: function (i) { return S(i).nearestOtherDistance; }, text: function (i) { return P.fmtDistance(S(i).nearestOtherDistance); } }),
+        // Flags (README): likely one flat minimum split across the runs, or other chemistry within the tolerance.
+        col('Flags', { value: function (i) { return (S(i).flags || []).join(' '); }, text: function (i) {
+          var f = S(i).flags || [];
+          if (f.length === 0) return '–';
+          return f.join(' ') + (S(i).flatPartner ? ' (with ' + S(i).flatPartner + ', ' + P.fmtDistance(S(i).flatPartnerDistance) + ' Å)' : '');
+        } }),
       ],
     });
   }

@@ -21,10 +21,17 @@
     return h.id + ' (' + distanceName + ' ' + P.fmtDistance(h.distanceAngstrom) + ' Å' + (h.energyRank !== null ? ', energy rank ' + h.energyRank : '') +
       (h.energyRel !== null ? ', ' + P.fmt(h.energyRel, 2) + ' ' + unit + ' above the lowest' : '') + ')';
   }
+  function isMatch(ref, h) { return ref.found && ref.match && h.index === ref.match.index; }
+  // A kept structure of another composition nearest to the reference: same geometry, other chemistry.
+  function otherChemistryText(ref) {
+    if (!ref.nearestOtherComposition || !ref.nearest.length) return '';
+    return ' Note: the nearest kept structure ' + ref.nearest[0].id + ' has another composition (' + ref.nearest[0].composition +
+      '; the reference is ' + ref.composition + '): same geometry, other chemistry, never counted as found.';
+  }
   r.references.forEach(function (ref, q) {
-    var text = ref.found ? ref.id + ': found as ' + hitText(ref.match) + ': ' + ref.decisionText :
+    var text = (ref.found ? ref.id + ': found as ' + hitText(ref.match) + ': ' + ref.decisionText :
       ref.nearest.length ? ref.id + ': not found: ' + ref.decisionText + '; nearest ' + hitText(ref.nearest[0]) :
-      ref.id + ': not found; the landscape keeps no structures';
+      ref.id + ': not found; the landscape keeps no structures') + otherChemistryText(ref);
     $('found-list').appendChild(P.el('li', { 'data-found': ref.found ? 'yes' : 'no' },
       P.el('span', { text: '■ ', style: 'color:' + data.referenceColours[q] }), text));
   });
@@ -46,7 +53,7 @@
   var shapes = [];
   r.references.forEach(function (ref, q) {
     var colour = data.referenceColours[q];
-    var near = ref.nearest.filter(function (h) { return !(ref.found && h.order === 1) && h.energyRel !== null && h.densityGPerCm3 !== null; });
+    var near = ref.nearest.filter(function (h) { return !isMatch(ref, h) && h.energyRel !== null && h.densityGPerCm3 !== null; });
     traces.push({
       type: 'scatter', mode: 'markers', name: ref.id + ': nearest',
       x: near.map(function (h) { return h.densityGPerCm3; }), y: near.map(function (h) { return h.energyRel; }),
@@ -77,23 +84,24 @@
   r.references.forEach(function (ref, q) {
     var table = P.el('table', { className: 'ps-table' },
       P.el('caption', { className: 'ps-sr', text: 'Nearest kept structures of ' + ref.id }),
-      P.el('thead', null, P.el('tr', null, ['Order', 'Id', (r.scale === 'volume' ? 'Scale-free EMD (Å)' : 'EMD (Å)'), 'Energy rank', 'Rel. energy (' + unit + ')', 'Density (g/cm³)', 'Space group', 'Z′', 'Family'].map(function (h) {
+      P.el('thead', null, P.el('tr', null, ['Order', 'Id', (r.scale === 'volume' ? 'Scale-free EMD (Å)' : 'EMD (Å)'), 'Energy rank', 'Rel. energy (' + unit + ')', 'Density (g/cm³)', 'Space group', 'Z′', 'Family', 'Composition'].map(function (h) {
         return P.el('th', { scope: 'col', text: h });
       }))),
       P.el('tbody', null, ref.nearest.map(function (h) {
-        return P.el('tr', { 'aria-selected': ref.found && h.order === 1 ? 'true' : 'false' },
+        return P.el('tr', { 'aria-selected': isMatch(ref, h) ? 'true' : 'false' },
           P.el('td', { className: 'ps-num', text: h.order }), P.el('td', { className: 'ps-id', text: h.id }),
           P.el('td', { className: 'ps-num', text: P.fmtDistance(h.distanceAngstrom) }),
           P.el('td', { className: 'ps-num', text: h.energyRank === null ? '–' : h.energyRank }),
           P.el('td', { className: 'ps-num', text: P.fmt(h.energyRel, 2) }), P.el('td', { className: 'ps-num', text: P.fmt(h.densityGPerCm3, 3) }),
           P.el('td', { text: h.spaceGroup === null ? '–' : h.spaceGroup }),
           P.el('td', { className: 'ps-num', text: h.zPrime === null || h.zPrime === undefined ? '–' : String(Math.round(h.zPrime * 1000) / 1000) }),
-          P.el('td', { className: 'ps-num', text: h.family < 0 ? 'none' : String(h.family) }));
+          P.el('td', { className: 'ps-num', text: h.family < 0 ? 'none' : String(h.family) }),
+          P.el('td', { text: h.composition === null || h.composition === undefined ? '–' : h.composition }));
       })));
     box.appendChild(P.el('section', { className: 'ps-card', 'aria-label': 'Reference ' + ref.id },
       P.el('h2', null, P.el('span', { text: '■ ', style: 'color:' + data.referenceColours[q] }), 'Reference ', P.el('span', { className: 'ps-id', text: ref.id })),
       P.el('p', { className: 'ps-muted', text: ref.source + (ref.spaceGroup ? ' · ' + ref.spaceGroup + (ref.zPrime === null || ref.zPrime === undefined ? '' : ', Z′ ' + Math.round(ref.zPrime * 1000) / 1000) : '') + (ref.densityGPerCm3 !== null ? ' · density ' + P.fmt(ref.densityGPerCm3, 3) + ' g/cm³' : '') }),
-      P.el('p', { className: 'ps-statement', text: (ref.found ? 'Found: ' : 'Not found: ') + ref.decisionText + '.' }),
+      P.el('p', { className: 'ps-statement', text: (ref.found ? 'Found: ' : 'Not found: ') + ref.decisionText + '.' + otherChemistryText(ref) }),
       P.el('div', { className: 'ps-table-wrap' }, table),
       ref.notes.length ? P.el('ul', { className: 'ps-notes' }, ref.notes.map(function (n) { return P.el('li', { text: n }); })) : null));
   });

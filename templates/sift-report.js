@@ -77,13 +77,23 @@
   }
   var groupOfSpelling = {};
   (D.groupSpellings || []).forEach(function (g) { g[1].split(' | ').forEach(function (sp) { groupOfSpelling[sp] = g[0]; }); });
+  function flagsOf(i) { return D.flagSets[S.flags[i]]; }
 
   // ---- Header ----------------------------------------------------------------------------------
   var c = D.counts;
   document.getElementById('run-line').textContent =
     c.input + ' structures read · ' + c.kept + ' kept · ' + c.duplicate + ' duplicates · ' + c.rejected + ' rejected · ' +
-    c.outsideWindow + ' outside the energy window — duplicate tolerance ' + D.parameters.toleranceAngstrom + ' Å, ' +
+    c.outsideWindow + ' outside the energy window — duplicate tolerance ' + D.parameters.toleranceAngstrom + ' Å' +
+    (D.parameters.toleranceMode === 'auto' ? ' (auto' + (D.toleranceChoice && !D.toleranceChoice.clear ? ', no clear gap' : '') + ')' : '') + ', ' +
     D.tool.name + ' ' + D.tool.version + ', ' + D.createdAt;
+  var fc = D.flagCounts;
+  if (fc.otherChemistry + fc.energyMismatch + fc.flatMinimum > 0) {
+    document.getElementById('run-line').textContent += ' · flagged: ' + [
+      fc.otherChemistry ? fc.otherChemistry + ' other chemistry' : null,
+      fc.energyMismatch ? fc.energyMismatch + ' energy mismatch' : null,
+      fc.flatMinimum ? fc.flatMinimum + ' flat minimum' : null,
+    ].filter(Boolean).join(', ') + ' (see Run summary)';
+  }
 
   // ---- Landscape -------------------------------------------------------------------------------
   var landscapeDiv = document.getElementById('landscape-plot');
@@ -384,10 +394,11 @@
       { label: 'Space group', value: function (i) { return S.spaceGroup[i]; }, text: function (i) { return S.spaceGroup[i] === null ? '–' : S.spaceGroup[i]; } },
       { label: 'Z', numeric: true, value: function (i) { return S.z[i]; }, text: function (i) { return S.z[i] === null ? '–' : String(S.z[i]); } },
       { label: 'Z′', numeric: true, value: function (i) { return S.zPrime[i]; }, text: function (i) { return zPrimeText(i); } },
+      { label: 'Flags', value: function (i) { return flagsOf(i); }, text: function (i) { return flagsOf(i) || '–'; } },
     ],
     filterInput: document.getElementById('table-filter'),
     filterText: function (i) {
-      return [S.id[i], S.spaceGroup[i] || '', familyName(S.family[i]), source(i), S.sgDeclared[i] || '', S.writtenIn[i]].join(' | ');
+      return [S.id[i], S.spaceGroup[i] || '', familyName(S.family[i]), source(i), S.sgDeclared[i] || '', S.writtenIn[i], flagsOf(i)].join(' | ');
     },
     // A query that is a space-group symbol in any common spelling ('P 21/c', 'P 1 21/c 1', 'P2_1/c', 'p21/c') or its
     // number (14) finds the structures of that group; any other query is looked for in the row's text.
@@ -436,6 +447,34 @@
     return el('button', { type: 'button', className: 'ps-link', onclick: function () { select(j, 'panel'); } }, S.id[j]);
   }
 
+  // What each flag of a structure points at, with the structures to look at as buttons.
+  function flagsFact(i) {
+    var codes = flagsOf(i);
+    if (!codes) return 'none';
+    var box = el('span');
+    function line(text, j, after) {
+      if (box.childNodes.length) box.appendChild(el('br'));
+      box.appendChild(document.createTextNode(text));
+      if (j !== null && j !== undefined) box.appendChild(structureButton(j));
+      if (after) box.appendChild(document.createTextNode(after));
+    }
+    codes.split(' ').forEach(function (code) {
+      if (code === 'other-chemistry') {
+        var j = S.otherChemistryIndex[i];
+        line('other-chemistry: ', j, ' (' + (D.formulas[S.composition[j]] || '?') + ') within ' + P.fmtDistance(S.otherChemistryDistance[i]) + ' Å');
+      } else if (code === 'energy-mismatch') {
+        line('energy-mismatch: ' + P.fmt(S.energyOffset[i], 3) + ' ' + unit + ' from its group\u2019s median energy', null, '');
+      } else if (code === 'flat-minimum') {
+        line('flat-minimum with ', null, '');
+        (S.flatPartnerIndices[i] || []).forEach(function (j, k) {
+          if (k > 0) box.appendChild(document.createTextNode(', '));
+          box.appendChild(structureButton(j));
+        });
+      } else line(code, null, '');
+    });
+    return box;
+  }
+
   function showPanel(i) {
     document.getElementById('panel-empty').hidden = true;
     document.getElementById('panel-body').hidden = false;
@@ -459,6 +498,8 @@
     fact('Volume', volumeText(i) || '–');
     fact('Atoms per cell', S.atoms[i] === null ? '–' : String(S.atoms[i]));
     fact('Formula', D.formulas[S.formula[i]] || '–');
+    fact('Compared composition', D.formulas[S.composition[i]] || '–');
+    fact('Flags', flagsFact(i));
     var nb = neighbours[i] || [];
     var nbList = el('span');
     nb.forEach(function (x, k) {
@@ -480,9 +521,10 @@
         el('td', { className: 'ps-num' }, P.fmt(S.energyRel[j], 3)),
         // The block and line; the file too when it is not the kept structure's file.
         el('td', { className: 'ps-wrap', title: source(j) },
-          (S.file[j] === S.file[i] ? blockOf(j) : source(j)) + ' (line ' + S.line[j] + ')')));
+          (S.file[j] === S.file[i] ? blockOf(j) : source(j)) + ' (line ' + S.line[j] + ')'),
+        el('td', null, flagsOf(j) ? flagsOf(j) + (S.energyOffset[j] !== null ? ' (' + P.fmt(S.energyOffset[j], 2) + ' ' + unit + ')' : '') : '–')));
     });
-    if (mem.length > 500) mbody.appendChild(el('tr', null, el('td', { colspan: 4 }, '… ' + (mem.length - 500) + ' more (all are in structures.csv)')));
+    if (mem.length > 500) mbody.appendChild(el('tr', null, el('td', { colspan: 5 }, '… ' + (mem.length - 500) + ' more (all are in structures.csv)')));
     var notes = P.clear(document.getElementById('panel-notes'));
     if (S.notes[i].length === 0) notes.appendChild(el('li', { className: 'ps-muted' }, 'none'));
     S.notes[i].forEach(function (n) { notes.appendChild(el('li', null, n)); });
@@ -617,13 +659,29 @@
     }
     var lo = Math.floor(Math.min(e[0], tolLog > -Infinity ? tolLog : e[0]));
     var hi = Math.ceil(Math.max(e[e.length - 1], tolLog > -Infinity ? tolLog : e[0]));
-    var tickvals = [], ticktext = [];
-    for (var dcd = lo; dcd <= hi; dcd++) { tickvals.push(dcd); ticktext.push(String(Number(Math.pow(10, dcd).toPrecision(1)))); }
     var shapes = [], annotations = [];
+    // With --duplicate-tolerance auto: the gap it found (shaded) and the value it chose inside it.
+    var tc = D.toleranceChoice;
+    if (tc && tc.gapLowAngstrom !== null && tc.gapHighAngstrom !== null) {
+      var g0 = Math.log10(tc.gapLowAngstrom), g1 = Math.log10(tc.gapHighAngstrom);
+      lo = Math.min(lo, Math.floor(g0));
+      hi = Math.max(hi, Math.ceil(g1));
+      shapes.push({ type: 'rect', x0: g0, x1: g1, yref: 'paper', y0: 0, y1: 1, layer: 'below', line: { width: 0 }, fillcolor: tc.clear ? 'rgba(0,158,115,0.12)' : 'rgba(213,94,0,0.10)' });
+      noteBits.push('Auto tolerance: the shaded band is the gap found between ' + P.fmtDistance(tc.gapLowAngstrom) + ' and ' +
+        (tc.gapOpen ? 'at least ' : '') + P.fmtDistance(tc.gapHighAngstrom) + ' Å in the single-linkage distances (' + P.fmt(tc.gapDecades, 2) + ' decades)' +
+        (tc.clear ? '; the tolerance sits at its middle on the log scale.' : '; it is too narrow to trust: ' + tc.warning) +
+        (tc.closestKeptAngstrom !== null ? ' The closest two kept structures lie ' + P.fmtDistance(tc.closestKeptAngstrom) + ' Å apart.' : ''));
+      document.getElementById('nn-note').textContent = noteBits.join(' ');
+    } else if (tc && tc.warning) {
+      noteBits.push('Auto tolerance: ' + tc.warning);
+      document.getElementById('nn-note').textContent = noteBits.join(' ');
+    }
     if (tolLog > -Infinity) {
       shapes.push({ type: 'line', x0: tolLog, x1: tolLog, yref: 'paper', y0: 0, y1: 1, line: { color: '#d55e00', width: 2, dash: 'dash' } });
-      annotations.push({ x: tolLog, yref: 'paper', y: 1, text: 'tolerance ' + tol + ' Å', showarrow: false, xanchor: 'left', yanchor: 'top', font: { color: '#a34400', size: 11 } });
+      annotations.push({ x: tolLog, yref: 'paper', y: 1, text: 'tolerance ' + tol + ' Å' + (tc ? ' (auto)' : ''), showarrow: false, xanchor: 'left', yanchor: 'top', font: { color: '#a34400', size: 11 } });
     }
+    var tickvals = [], ticktext = [];
+    for (var dcd = lo; dcd <= hi; dcd++) { tickvals.push(dcd); ticktext.push(String(Number(Math.pow(10, dcd).toPrecision(1)))); }
     Plotly.newPlot(div, [{ type: 'bar', x: xs, y: h.counts, width: widths, text: text, hoverinfo: 'text', textposition: 'none', marker: { color: colours } }],
       P.baseLayout({
         bargap: 0.02,
@@ -672,6 +730,14 @@
     var st = document.getElementById('status-table').tBodies[0];
     [['input structures', c.input], ['kept', c.kept], ['duplicate', c.duplicate], ['rejected', c.rejected], ['outside the energy window', c.outsideWindow]]
       .forEach(function (r) { st.appendChild(el('tr', null, el('th', { scope: 'row' }, r[0]), el('td', { className: 'ps-num' }, String(r[1])))); });
+    var ft = document.getElementById('flags-table').tBodies[0];
+    [['other-chemistry', fc.otherChemistry, fc.otherChemistryPairs + ' pairs'], ['energy-mismatch', fc.energyMismatch, null],
+      ['flat-minimum', fc.flatMinimum, fc.flatMinimumPairs + ' pairs']].forEach(function (r) {
+      ft.appendChild(el('tr', { title: D.flagMeanings[r[0]] }, el('th', { scope: 'row' }, r[0]),
+        el('td', { className: 'ps-num' }, String(r[1]) + (r[2] && r[1] ? ' (' + r[2] + ')' : '')), el('td', null, D.flagMeanings[r[0]])));
+    });
+    document.getElementById('flags-note').textContent = 'Flags mark what deserves a look; they never change which structures are kept. ' +
+      'Filter the table of kept structures by a flag\u2019s name to list them; structures.csv has every row\u2019s flags.';
     var tt = document.getElementById('timings-table').tBodies[0];
     var stages = Object.keys(D.timingsSeconds || {});
     if (stages.length === 0) tt.appendChild(el('tr', null, el('td', null, 'not recorded')));
@@ -680,8 +746,10 @@
     var pl = document.getElementById('parameters-list');
     var pr = D.parameters;
     var names = {
-      k: 'PDD depth k', hydrogens: 'Hydrogens', toleranceAngstrom: 'Duplicate tolerance (Å)', symmetryToleranceAngstrom: 'Symmetry tolerance (Å)',
-      minFamilySize: 'Minimum family size',
+      k: 'PDD depth k', hydrogens: 'Hydrogens', toleranceAngstrom: 'Duplicate tolerance (Å)', toleranceMode: 'Tolerance chosen',
+      symmetryToleranceAngstrom: 'Symmetry tolerance (Å)',
+      elementCheck: 'Element-aware check', energyMismatch: 'Energy mismatch (' + unit + ')', flatEnergy: 'Flat minimum: energy (' + unit + ')',
+      flatDensityGPerCm3: 'Flat minimum: density (g/cm³)', minFamilySize: 'Minimum family size',
       minSamples: 'Minimum samples', energyWindow: 'Energy window (' + unit + ')', energyUnit: 'Energy unit',
       energyBasis: 'Energies given per (a cell: divided by each structure\'s Z)',
       neighbours: 'Neighbours per structure', inputs: 'Inputs', energiesFile: 'Energies file', energyItem: 'Energy data item',

@@ -21,7 +21,7 @@ function row(index: number, status: StructureRow['status'], keptIndex: number | 
   return {
     index, id: `s${index}`, source: `run.cif#s${index}`, file: 'run.cif', block: `s${index}`, line: 1 + index * 40,
     status, reason: status === 'rejected' ? 'unreadable' : '', energy: energyRel === null ? null : -100 + energyRel,
-    energyRel, densityGPerCm3: 1.3, atoms: 48, spaceGroup: 'P21/c', symmetry: null, cell: null, z: 4, zPrime: 1, formulas: ['C6H6'],
+    energyRel, densityGPerCm3: 1.3, atoms: 48, spaceGroup: 'P21/c', symmetry: null, cell: null, z: 4, zPrime: 1, formulas: ['C6H6'], composition: 'CH', flags: [], otherChemistryIndex: null, otherChemistry: null, otherComposition: null, otherChemistryDistance: null, energyOffset: null, flatPartnerIndices: [], flatPartners: [], flatPartnerDistance: null,
     keptIndex, duplicateOf: status === 'duplicate' && keptIndex !== null ? `s${keptIndex}` : null,
     distanceToKept: status === 'kept' ? 0 : status === 'duplicate' ? 0.01 : null, family: -1, nearestIndex: null,
     nearest: null, nearestDistance: null, nnDistance: null, members: status === 'kept' ? 1 : 0, writtenIn: [], notes: [],

@@ -42,6 +42,8 @@ export interface SyntheticStructure {
   /** Cell as read and atoms compared (default: no cell, 40 atoms), for locate's volume per atom. */
   cell?: StructureRow['cell'];
   atoms?: number;
+  /** Reduced formula of the compared points; default C4H4NO, the invented formula below reduced. */
+  composition?: string | null;
 }
 
 /** A landscape.json-shaped object whose kept structures are exactly `kept` (no duplicates), in that input order. */
@@ -51,20 +53,22 @@ export function landscapeOf(kept: SyntheticStructure[], k: number, params: Parti
   const structures: StructureRow[] = kept.map((s, i) => ({
     index: i, id: s.id, source: `invented.cif#${s.id}`, file: 'invented.cif', block: s.id, line: 1 + 50 * i,
     status: 'kept', reason: '', energy: s.energy, energyRel: s.energy === null || lowest === null ? null : s.energy - lowest,
-    densityGPerCm3: s.densityGPerCm3, atoms: s.atoms ?? 40, spaceGroup: 'P21/c', symmetry: null, cell: s.cell ?? null, z: 4, zPrime: 1, formulas: ['C8H8N2O'],
+    densityGPerCm3: s.densityGPerCm3, atoms: s.atoms ?? 40, spaceGroup: 'P21/c', symmetry: null, cell: s.cell ?? null, z: 4, zPrime: 1, formulas: ['C8H8N2O'], composition: s.composition === undefined ? 'C4H4NO' : s.composition, flags: [], otherChemistryIndex: null, otherChemistry: null, otherComposition: null, otherChemistryDistance: null, energyOffset: null, flatPartnerIndices: [], flatPartners: [], flatPartnerDistance: null,
     keptIndex: i, duplicateOf: null, distanceToKept: 0, family: -1, nearestIndex: null, nearest: null,
     nearestDistance: null, nnDistance: null, members: 1, writtenIn: [], notes: [],
   }));
   const order = structures.map((s) => s.index);
   if (lowest !== null) order.sort((x, y) => (structures[x].energy ?? Infinity) - (structures[y].energy ?? Infinity) || x - y);
   const parameters: SiftParameters = {
-    k, hydrogens: 'keep', toleranceAngstrom: 0.05, symmetryToleranceAngstrom: 0.06, minFamilySize: 3, minSamples: 3, energyWindow: null,
+    k, hydrogens: 'keep', toleranceAngstrom: 0.05, symmetryToleranceAngstrom: 0.06, toleranceMode: 'given', elementCheck: true, energyMismatch: 1, flatEnergy: 0.01, flatDensityGPerCm3: 0.002, minFamilySize: 3, minSamples: 3, energyWindow: null,
     energyUnit: 'kJ/mol', energyBasis: 'molecule', neighbours: 5, inputs: ['invented.cif'], energiesFile: null, energyItem: null, ...params,
   };
   return {
     format: 'polysift-landscape', formatVersion: 1, tool: { name: 'polysift', version: '0.1.0' },
     run: { createdAt: '2026-01-01T00:00:00Z', timingsSeconds: {} }, parameters,
     counts: { input: kept.length, kept: kept.length, duplicate: 0, rejected: 0, outsideWindow: 0 },
+    flagCounts: { otherChemistryPairs: 0, otherChemistry: 0, energyMismatch: 0, flatMinimumPairs: 0, flatMinimum: 0 },
+    toleranceChoice: null,
     lowestEnergy: lowest, structures, kept: order, edges: [], families: [], embedding: null,
     invariants: {
       k, hydrogens: parameters.hydrogens,

@@ -61,7 +61,7 @@ describe('diff of two sifted generated runs with known overlap', async () => {
 
   it('classifies every kept structure exactly as the truth says, partners included', () => {
     const shared = SA.filter((p) => SB.includes(p));
-    expect(d.counts).toEqual({ both: shared.length, onlyA: SA.length - shared.length, onlyB: SB.length - shared.length, keptA: SA.length, keptB: SB.length });
+    expect(d.counts).toEqual({ both: shared.length, onlyA: SA.length - shared.length, onlyB: SB.length - shared.length, keptA: SA.length, keptB: SB.length, flatSplit: 0, otherChemistry: 0 });
     for (const s of d.structures) {
       const p = packingOf.get(s.id) as number;
       const inOther = s.run === 'A' ? SB.includes(p) : SA.includes(p);

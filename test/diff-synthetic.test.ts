@@ -27,7 +27,7 @@ describe('diffLandscapes on invented runs with known overlap', () => {
     const la = validateLandscape(landscapeOf(A, K), 'runA');
     const lb = validateLandscape(landscapeOf(B, K), 'runB');
     const d = await diffLandscapes(la, lb, 'runA', 'runB', { toleranceAngstrom: 0.05, threads: 1 });
-    expect(d.counts).toEqual({ both: 14, onlyA: 5, onlyB: 7, keptA: 19, keptB: 21 });
+    expect(d.counts).toEqual({ both: 14, onlyA: 5, onlyB: 7, keptA: 19, keptB: 21, flatSplit: 0, otherChemistry: 0 });
     for (const s of d.structures) {
       if (s.run === 'A') {
         const want = truth.get(s.id);

@@ -31,7 +31,7 @@ const kept: SyntheticStructure[] = [0, 1, 2].map((p) => {
   const volume = cellVolume(rec.cell);
   return {
     id: rec.id, pdd: { rows: Array.from(inv.pdd.rows), weights: Array.from(inv.pdd.weights) }, energy: g.energiesKjPerMol[g.ids.indexOf(rec.id)],
-    densityGPerCm3: inv.densityGPerCm3 as number, cell: { ...rec.cell, volume }, atoms: Math.round(volume / (inv.volumePerAtomA3 as number)),
+    densityGPerCm3: inv.densityGPerCm3 as number, cell: { ...rec.cell, volume }, atoms: Math.round(volume / (inv.volumePerAtomA3 as number)), composition: inv.composition,
   };
 });
 const root = mkdtempSync(join(tmpdir(), 'polysift-locate-cli-'));

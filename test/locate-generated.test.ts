@@ -39,7 +39,7 @@ function buildLandscape(hydrogens: HydrogenPolicy) {
     const volume = cellVolume(rec.cell);
     kept.push({
       id, pdd: { rows: Array.from(inv.pdd.rows), weights: Array.from(inv.pdd.weights) }, energy: g.energiesKjPerMol[n], densityGPerCm3: inv.densityGPerCm3 as number,
-      cell: { ...rec.cell, volume }, atoms: Math.round(volume / (inv.volumePerAtomA3 as number)),
+      cell: { ...rec.cell, volume }, atoms: Math.round(volume / (inv.volumePerAtomA3 as number)), composition: inv.composition,
     });
   }
   return validateLandscape(landscapeOf(kept, K, { hydrogens, toleranceAngstrom: 0.05 }), 'generated');

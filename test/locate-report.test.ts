@@ -30,7 +30,7 @@ describe('locate report', () => {
     const kept: SyntheticStructure[] = [];
     for (let p = 0; p < 3; p++) {
       const inv = referenceInvariants(first(p, 0), K, 'keep');
-      kept.push({ id: first(p, 0).id, pdd: { rows: Array.from(inv.pdd.rows), weights: Array.from(inv.pdd.weights) }, energy: first(p, 0).energy ?? g.energiesKjPerMol[g.ids.indexOf(first(p, 0).id)], densityGPerCm3: inv.densityGPerCm3 as number });
+      kept.push({ id: first(p, 0).id, pdd: { rows: Array.from(inv.pdd.rows), weights: Array.from(inv.pdd.weights) }, energy: first(p, 0).energy ?? g.energiesKjPerMol[g.ids.indexOf(first(p, 0).id)], densityGPerCm3: inv.densityGPerCm3 as number, composition: inv.composition });
     }
     const landscape = landscapeOf(kept, K);
     const refs = [referenceInvariants(first(1, 1), K, 'keep'), referenceInvariants(first(3, 1), K, 'keep')];

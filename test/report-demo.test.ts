@@ -236,4 +236,27 @@ describe('the demo report in a browser', () => {
     const facts = await w.page.$$eval('#panel-facts dt, #panel-facts dd', (n) => n.map((x) => x.textContent));
     expect(facts[facts.indexOf('Family') + 1]).toBe('none');
   });
+
+  it('flags nothing in the demo search and shades the gap the auto tolerance found on the histogram', async () => {
+    // The demo's relaxed search leaves copies of one minimum within 0.004 Å and distinct minima 0.18 Å or more apart
+    // with energies that differ: nothing to flag (flags on planted data are checked in report-flags.test.ts).
+    expect(land.flagCounts).toEqual({ otherChemistryPairs: 0, otherChemistry: 0, energyMismatch: 0, flatMinimumPairs: 0, flatMinimum: 0 });
+    expect(land.structures.every((r) => r.flags.length === 0)).toBe(true);
+    expect(await w.page.textContent('#run-line')).not.toContain('flagged');
+    const counts = await w.page.$$eval('#flags-table tbody tr td:first-of-type', (c) => c.map((x) => x.textContent));
+    expect(counts).toEqual(['0', '0', '0']);
+    expect(land.parameters.toleranceMode).toBe('auto');
+    const tc = land.toleranceChoice!;
+    expect(tc.clear).toBe(true);
+    const dupMax = Math.max(...land.structures.filter((r) => r.status === 'duplicate').map((r) => r.distanceToKept!));
+    expect(tc.gapLowAngstrom!).toBeGreaterThanOrEqual(dupMax);
+    expect(land.parameters.toleranceAngstrom).toBeGreaterThan(dupMax);
+    expect(await w.page.textContent('#nn-note')).toMatch(/Auto tolerance: the shaded band is the gap found between/);
+    const band = (await w.page.evaluate(
+      'document.getElementById("nn-plot").layout.shapes.filter((s) => s.type === "rect").map((s) => [s.x0, s.x1])',
+    )) as Array<[number, number]>;
+    expect(band).toHaveLength(1);
+    expect(band[0]![0]).toBeCloseTo(Math.log10(tc.gapLowAngstrom!), 9);
+    expect(w.consoleErrors).toEqual([]);
+  });
 });

@@ -85,4 +85,50 @@ describe('sift with bad input', () => {
     expect(r.stderr).toMatch(/no column 'energy'.*--energy-column/);
     expect(readdirSync(dir)).not.toContain('o3');
   }, 30000);
+
+  it('stops with one line and writes nothing when not one energy can be read, instead of sifting in input order', () => {
+    // What a spreadsheet in a decimal-comma locale writes when told to use commas between columns.
+    const bad = ['id,energy', ...gen.ids.map((id, i) => `${id},"${gen.energiesKjPerMol[i].toFixed(3).replace('.', ',')}"`)].join('\n');
+    writeFileSync(join(dir, 'comma.csv'), `${bad}\n`);
+    const out = join(dir, 'o-comma');
+    const r = polysift(['sift', join(dir, 'run.cif'), '--energies', join(dir, 'comma.csv'), '--out', out, '--quiet']);
+    expect(r.status).not.toBe(0);
+    expect(r.stderr.trim().split('\n')).toHaveLength(1);
+    expect(r.stderr).toMatch(/^polysift: .*comma.csv: no energy could be read: line 2 has '-?\d+,\d{3}' in column 'energy'; numbers with a decimal comma need a file separated by semicolons/);
+    expect(existsSync(out)).toBe(false);
+  }, 30000);
+
+  it('reads energies from a semicolon file with decimal commas exactly as from the plain CSV', () => {
+    const semi = ['id;energy', ...gen.ids.map((id, i) => `${id};${gen.energiesKjPerMol[i].toFixed(4).replace('.', ',')}`)].join('\n');
+    writeFileSync(join(dir, 'semi.csv'), `${semi}\n`);
+    writeFileSync(join(dir, 'good.cif'), gen.cif);
+    const read = (energies: string, out: string) => {
+      const r = polysift(['sift', join(dir, 'good.cif'), '--energies', join(dir, energies), '--out', join(dir, out), '--quiet', '--threads', '1']);
+      expect(r.status).toBe(0);
+      return Papa.parse<Record<string, string>>(readFileSync(join(dir, out, 'structures.csv'), 'utf8'), { header: true, skipEmptyLines: true }).data;
+    };
+    const fromPlain = read('energies.csv', 'o-plain');
+    const fromSemi = read('semi.csv', 'o-semi');
+    const withEnergy = fromSemi.filter((x) => x.energy !== '');
+    expect(withEnergy).toHaveLength(gen.ids.length);
+    expect(fromSemi.map((x) => x.energy)).toEqual(gen.energiesKjPerMol.map((e) => e.toFixed(4)).map((e) => Number(e).toFixed(6)));
+    // Rows with an energy in both runs agree exactly (the plain file had three structures without one).
+    fromPlain.forEach((x, i) => { if (x.energy !== '' && !x.reason.includes('different')) expect(x.energy).toBe(fromSemi[i].energy); });
+  }, 60000);
+
+  it('says a UTF-16 CIF file is UTF-16 text and how to convert it, not binary data', () => {
+    const text = gen.cif.split('\ndata_').slice(0, 2).join('\ndata_');
+    writeFileSync(join(dir, 'unicode.cif'), Buffer.concat([Buffer.from([0xff, 0xfe]), Buffer.from(text, 'utf16le')]));
+    writeFileSync(join(dir, 'unicode-nobom.cif'), Buffer.from(text, 'utf16le'));
+    const out = join(dir, 'o-utf16');
+    const r = polysift(['sift', join(dir, 'unicode.cif'), join(dir, 'unicode-nobom.cif'), join(dir, 'good.cif'), '--out', out, '--quiet', '--threads', '1']);
+    expect(r.status).toBe(0);
+    const csv = Papa.parse<Record<string, string>>(readFileSync(join(out, 'structures.csv'), 'utf8'), { header: true, skipEmptyLines: true }).data;
+    const rejected = csv.filter((x) => x.status === 'rejected');
+    expect(rejected.map((x) => x.file)).toEqual([join(dir, 'unicode.cif'), join(dir, 'unicode-nobom.cif')]);
+    for (const x of rejected) {
+      expect(x.reason).toMatch(/the file is UTF-16LE text; polysift reads CIF files as UTF-8 .*iconv -f UTF-16 -t UTF-8/);
+      expect(x.reason).not.toMatch(/binary/);
+    }
+  }, 30000);
 });

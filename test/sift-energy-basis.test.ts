@@ -1,10 +1,11 @@
 // Energies per cell (--energy-basis cell): periodic DFT codes report the energy of the whole cell, so sift divides
-// it by each structure's Z (molecules per cell found from the bonds). A generated landscape (src/demo/landscape.ts)
+// it by the molecules in each structure's cell as written (found from the bonds). A generated landscape (src/demo/landscape.ts)
 // writes the same packings in their own cell, in P1 and in P1 supercells, so Z differs between copies of one
 // packing. The per-cell energies here are made with a Z that does not come from polysift: gemmi (Debian
 // python3-gemmi, scripts/bond-lengths-gemmi.py) expands each block and counts its atoms per cell, divided by the
 // 11 atoms of the invented molecule.
 import { spawnSync } from 'node:child_process';
+import Papa from 'papaparse';
 import { mkdtempSync, readFileSync, writeFileSync } from 'node:fs';
 import { tmpdir } from 'node:os';
 import { join } from 'node:path';
@@ -40,9 +41,10 @@ beforeAll(async () => {
 }, 240_000);
 
 describe('energies per cell', () => {
-  it('uses Z values that differ between copies of one packing (supercells), as gemmi counts them', () => {
+  it('divides by molecule counts that differ between copies of one packing (supercells), as gemmi counts them', () => {
     expect(new Set(zOf.values()).size).toBeGreaterThan(1);
-    for (const r of perCell.landscape.structures) expect(r.z).toBe(zOf.get(r.id));
+    // The divisor is the count in the cell as written (row.z is the crystal's Z in its detected group since issue 11).
+    for (const r of perCell.landscape.structures) expect(r.notes).toContain(`energy per cell divided by ${zOf.get(r.id)}, the molecules in the cell as written (found from the bonds)`);
   });
 
   it('give the same landscape as the energies per molecule', () => {
@@ -59,10 +61,11 @@ describe('energies per cell', () => {
       expect(r.energyRel!).toBeCloseTo(s.energyRel!, 5);
     });
     // Every row says which Z it was divided by; otherwise the tables agree column by column.
-    expect(b.structures.every((r) => r.notes.includes(`energy per cell divided by Z = ${r.z} (molecules per cell found from the bonds)`))).toBe(true);
-    const strip = (csv: string) => csv.split('\n').map((line) => line.replace(/,[^,]*$/, ''));
+    expect(b.structures.every((r) => r.notes.includes(`energy per cell divided by ${zOf.get(r.id)}, the molecules in the cell as written (found from the bonds)`))).toBe(true);
+    // Every column but notes (the notes column holds the energy-per-cell codes on top).
+    const strip = (csv: string) => Papa.parse<string[]>(csv.trim()).data.map((row, _, all) => row.filter((__, c) => all[0][c] !== 'notes'));
     expect(strip(structuresCsv(b))).toEqual(strip(structuresCsv(a)));
-    expect(perCell.messages.join('\n')).toMatch(/energies are per cell: divided by each structure's Z \(molecules per cell from its bonds\): Z = \d+ for \d+, Z = \d+ for \d+/);
+    expect(perCell.messages.join('\n')).toMatch(/energies are per cell: divided by the molecules in each cell as written \(from its bonds\): \d+ for \d+, \d+ for \d+/);
   });
 
   it('gives no energy, with the reason, to a cell holding two kinds of molecule or with an unknown Z', async () => {
@@ -85,18 +88,18 @@ describe('energies per cell', () => {
     expect(m.energy).toBeNull();
     expect(m.reason).toMatch(/^no energy: the energy is per cell and the cell holds more than one kind of molecule \((H2O, H3N|H3N, H2O)\), so there is no single Z/);
     expect(o.energy!).toBeCloseTo(gen.energiesKjPerMol[0], 5);
-    expect(run.messages.join('\n')).toMatch(/1 structure\(s\) have a per-cell energy but no single Z to divide it by/);
+    expect(run.messages.join('\n')).toMatch(/1 structure\(s\) have a per-cell energy but no single molecule count to divide it by/);
 
-    // A structure whose crystal facts could not be computed has no Z: the stage leaves its energy out and says why.
+    // A structure whose crystal facts could not be computed has no molecule count: the stage leaves its energy out and says why.
     const s = initialState({ inputs: ['x.cif'], energyBasis: 'cell' });
     const b = readCifText(gen.cif, 'x.cif')[0];
     const w = workFromBlock(b, 0);
     w.row.energy = -250;
-    w.row.z = null;
+    w.facts = null;
     s.work.push(w);
     await energyBasisStage(s);
     expect(w.row.energy).toBeNull();
-    expect(w.row.reason).toBe('no energy: the energy is per cell and the molecules per cell (Z) are unknown, so it cannot be divided');
+    expect(w.row.reason).toBe('no energy: the energy is per cell and the molecules per cell are unknown, so it cannot be divided');
   });
 
   it('is asked for on the command line with --energy-basis cell, and says so', () => {
@@ -106,7 +109,7 @@ describe('energies per cell', () => {
     const r = spawnSync(tsx, [join(process.cwd(), 'src', 'cli.ts'), 'sift', cif, '--energies', join(dir, 'per-cell.csv'), '--energy-basis', 'cell',
       '--duplicate-tolerance', '0.04', '--no-cache', '--threads', '1', '--out', out], { encoding: 'utf8', timeout: 240_000 });
     expect(r.status, r.stderr).toBe(0);
-    expect(r.stderr).toMatch(/polysift: energies are per cell: divided by each structure's Z/);
+    expect(r.stderr).toMatch(/polysift: energies are per cell: divided by the molecules in each cell as written/);
     const landscape = JSON.parse(readFileSync(join(out, 'landscape.json'), 'utf8')) as typeof perCell.landscape;
     expect(landscape.parameters.energyBasis).toBe('cell');
     expect(readFileSync(join(out, 'structures.csv'), 'utf8')).toBe(structuresCsv({ ...perCell.landscape, parameters: { ...perCell.landscape.parameters, inputs: landscape.parameters.inputs } }));

@@ -51,12 +51,12 @@ describe('sift re-runs', () => {
     // The first run searched pairs within twice its tolerance (0.04 Å by default), so 0.08 Å needs no new search;
     // here the kept set is unchanged too, so its neighbours and map come from the cache (4 kept structures are too few
     // for families of 5, so no matrix is needed).
-    expect(c.cache.reused).toEqual(['pairs', 'kept neighbours', 'metric map']);
+    expect(c.cache.reused).toEqual(['pairs', 'element distances', 'kept neighbours', 'metric map']);
     expect(c.landscape.counts.kept).toBe(a.landscape.counts.kept);
     const d = await sift({ ...base, threads: 2, cacheDir, toleranceAngstrom: 0.08, minFamilySize: 3 });
-    expect(d.cache.reused).toEqual(['pairs', 'kept neighbours', 'distance matrix', 'metric map']);
+    expect(d.cache.reused).toEqual(['pairs', 'element distances', 'kept neighbours', 'distance matrix', 'metric map']);
     const e = await sift({ ...base, threads: 2, cacheDir, toleranceAngstrom: 0.06, minFamilySize: 3 });
-    expect(e.cache.reused).toEqual(['pairs', 'kept neighbours', 'families', 'metric map']);
+    expect(e.cache.reused).toEqual(['pairs', 'element distances', 'kept neighbours', 'families', 'metric map']);
     expect(e.landscape.structures.map((r) => r.family)).toEqual(d.landscape.structures.map((r) => r.family));
     // Cached invariants are the very numbers computed the first time.
     const ka = a.landscape.invariants.kept[0];

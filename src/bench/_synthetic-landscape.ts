@@ -143,7 +143,7 @@ export function syntheticLandscape(opts: SyntheticOptions): Landscape {
     const base: StructureRow = {
       index: i, id, source: `${file}#${id}`, file, block: id, line: 1 + (i % 500) * 60, status: 'kept', reason: '',
       energy: null, energyRel: null, densityGPerCm3: null, atoms: null, spaceGroup: null, symmetry: null, cell: null, z: null, zPrime: null,
-      formulas: ['C7H6N2O'], keptIndex: null, duplicateOf: null, distanceToKept: null, family: -1, nearestIndex: null,
+      formulas: ['C7H6N2O'], composition: 'C7H6N2O', flags: [], otherChemistryIndex: null, otherChemistry: null, otherComposition: null, otherChemistryDistance: null, energyOffset: null, flatPartnerIndices: [], flatPartners: [], flatPartnerDistance: null, keptIndex: null, duplicateOf: null, distanceToKept: null, family: -1, nearestIndex: null,
       nearest: null, nearestDistance: null, nnDistance: null, members: 0, writtenIn: [], notes: [],
     };
     if (kind[i] === 0) {
@@ -226,10 +226,12 @@ export function syntheticLandscape(opts: SyntheticOptions): Landscape {
     tool: { name: 'polysift', version: '0.1.0' },
     run: { createdAt: '2026-01-01T00:00:00.000Z', timingsSeconds: { read: 1.25, invariants: 10.5, neighbours: 4.75, families: 0.5 } },
     parameters: {
-      k, hydrogens: 'keep', toleranceAngstrom: 0.02, symmetryToleranceAngstrom: 0.06, minFamilySize: 5, minSamples: 5, energyWindow: 20, energyUnit: 'kJ/mol', energyBasis: 'molecule',
+      k, hydrogens: 'keep', toleranceAngstrom: 0.02, symmetryToleranceAngstrom: 0.06, toleranceMode: 'given', elementCheck: true, energyMismatch: 1, flatEnergy: 0.01, flatDensityGPerCm3: 0.002, minFamilySize: 5, minSamples: 5, energyWindow: 20, energyUnit: 'kJ/mol', energyBasis: 'molecule',
       neighbours: nbK, inputs: ['runs/'], energiesFile: 'runs/energies.csv', energyItem: null,
     },
     counts: { input: total, kept: nKept, duplicate: nDup, rejected: nRej, outsideWindow: nOut },
+    flagCounts: { otherChemistryPairs: 0, otherChemistry: 0, energyMismatch: 0, flatMinimumPairs: 0, flatMinimum: 0 },
+    toleranceChoice: null,
     lowestEnergy: -95,
     structures: rows,
     kept,

@@ -38,7 +38,7 @@ export async function run(): Promise<void> {
     );
     const refs: ReferenceInvariants[] = a.slice(0, 20).map((p, i) => {
       const q = noisy(r, p);
-      return { id: `ref-${i}`, source: `ref.cif#ref-${i}`, pdd: asPdd(q), amd: amdOf(q, K), densityGPerCm3: null, spaceGroup: null, volumePerAtomA3: null, zPrime: null, notes: [] };
+      return { id: `ref-${i}`, source: `ref.cif#ref-${i}`, pdd: asPdd(q), amd: amdOf(q, K), composition: 'C8H8N2O', densityGPerCm3: null, spaceGroup: null, volumePerAtomA3: null, zPrime: null, notes: [] };
     });
     t = performance.now();
     await locateReferences(lb, 'B', refs);
@@ -74,7 +74,7 @@ function landscape(pdds: RawPdd[], r: () => number): Landscape {
   const structures: StructureRow[] = pdds.map((_p, i) => ({
     index: i, id: `s${i}`, source: `bench.cif#s${i}`, file: 'bench.cif', block: `s${i}`, line: 1, status: 'kept', reason: '',
     energy: -100 + r() * 30, energyRel: null, densityGPerCm3: 1.2 + r() * 0.3, atoms: 40, spaceGroup: null, symmetry: null, cell: null, z: null, zPrime: null,
-    formulas: [], keptIndex: i, duplicateOf: null, distanceToKept: 0, family: -1, nearestIndex: null, nearest: null,
+    formulas: [], composition: 'C8H8N2O', flags: [], otherChemistryIndex: null, otherChemistry: null, otherComposition: null, otherChemistryDistance: null, energyOffset: null, flatPartnerIndices: [], flatPartners: [], flatPartnerDistance: null, keptIndex: i, duplicateOf: null, distanceToKept: 0, family: -1, nearestIndex: null, nearest: null,
     nearestDistance: null, nnDistance: null, members: 1, writtenIn: [], notes: [],
   }));
   const low = Math.min(...structures.map((s) => s.energy as number));
@@ -82,8 +82,10 @@ function landscape(pdds: RawPdd[], r: () => number): Landscape {
   return {
     format: 'polysift-landscape', formatVersion: 1, tool: { name: 'polysift', version: 'bench' },
     run: { createdAt: '', timingsSeconds: {} },
-    parameters: { k: K, hydrogens: 'keep', toleranceAngstrom: 0.05, symmetryToleranceAngstrom: 0.06, minFamilySize: 5, minSamples: 5, energyWindow: null, energyUnit: 'kJ/mol', energyBasis: 'molecule', neighbours: 5, inputs: [], energiesFile: null, energyItem: null },
+    parameters: { k: K, hydrogens: 'keep', toleranceAngstrom: 0.05, symmetryToleranceAngstrom: 0.06, toleranceMode: 'given', elementCheck: true, energyMismatch: 1, flatEnergy: 0.01, flatDensityGPerCm3: 0.002, minFamilySize: 5, minSamples: 5, energyWindow: null, energyUnit: 'kJ/mol', energyBasis: 'molecule', neighbours: 5, inputs: [], energiesFile: null, energyItem: null },
     counts: { input: pdds.length, kept: pdds.length, duplicate: 0, rejected: 0, outsideWindow: 0 },
+    flagCounts: { otherChemistryPairs: 0, otherChemistry: 0, energyMismatch: 0, flatMinimumPairs: 0, flatMinimum: 0 },
+    toleranceChoice: null,
     lowestEnergy: low, structures, kept: structures.map((s) => s.index), edges: [], families: [], embedding: null,
     invariants: { k: K, hydrogens: 'keep', kept: pdds.map((p, i) => ({ index: i, amd: amdOf(p, K), pddWeights: p.weights, pddRows: p.rows })) },
     convergence: null,

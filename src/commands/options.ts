@@ -55,7 +55,12 @@ export function addThreads(cmd: Command): Command {
 
 /** `--json`, `--quiet`: machine output on stdout, or nothing but errors. */
 export function addOutputModes(cmd: Command, json: string): Command {
-  return cmd.option('--json', `print ${json} as JSON on stdout`).option('--quiet', 'print nothing but errors (no progress, no summary)');
+  return addQuiet(cmd.option('--json', `print ${json} as JSON on stdout`));
+}
+
+/** `--quiet` alone, for a command with no JSON output. */
+export function addQuiet(cmd: Command): Command {
+  return cmd.option('--quiet', 'print nothing but errors (no progress, no summary)');
 }
 
 /** `--title <text>`. */
@@ -90,4 +95,11 @@ export function parseHydrogens(text: string): HydrogenPolicy {
 /** `--threads` as given, or undefined for the default. */
 export function parseThreads(text: string | undefined): number | undefined {
   return text === undefined ? undefined : parseWhole(text, '--threads', 1);
+}
+
+/** A number of seconds > 0 (decimals allowed) given to option `name`. */
+export function parseSeconds(text: string, name: string): number {
+  const v = Number(text);
+  if (text.trim() === '' || !Number.isFinite(v) || v <= 0) throw new Error(`${name} must be a number of seconds > 0, not '${text}'`);
+  return v;
 }

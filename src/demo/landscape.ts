@@ -54,6 +54,15 @@ export interface GeneratorOptions {
   idPrefix?: string;
   /** Monte Carlo moves per packing. Default 400. */
   squeezeMoves?: number;
+  /**
+   * Flat minima: this many base packings get two more packings each, the molecule turned by `flatTurnDeg`
+   * (default 1) about a random axis in the same cell, with exactly the base packing's energy, as an optimiser
+   * leaves one minimum on a flat energy surface at several nearby points. Default 0.
+   */
+  flatTriples?: number;
+  flatTurnDeg?: number;
+  /** This many copies (in different packings with at least 3 copies) get an energy 2-5 kJ/mol off, either sign. Default 0. */
+  energyFaults?: number;
 }
 
 export interface GeneratedPacking {
@@ -80,6 +89,10 @@ export interface GeneratedLandscape {
   packings: GeneratedPacking[];
   /** Pairs of packing indices that are distinct but within 0.1 kJ/mol and 0.005 g/cm3. */
   closePairs: Array<[number, number]>;
+  /** Packing indices of each planted flat minimum (base packing first). */
+  flatGroups: Array<[number, number, number]>;
+  /** Block indices of the copies given an energy fault, and the fault added (kJ/mol). */
+  energyFaults: Array<[number, number]>;
 }
 
 export function generateLandscape(options: GeneratorOptions): GeneratedLandscape {
@@ -119,6 +132,22 @@ export function generateLandscape(options: GeneratorOptions): GeneratedLandscape
     });
     closePairs.push([baseIndex, packings.length - 1]);
   }
+  // Flat minima: two turned copies of a base packing in its own cell, at the base packing's energy.
+  const flatGroups: Array<[number, number, number]> = [];
+  for (let f = 0; f < (options.flatTriples ?? 0); f++) {
+    const baseIndex = nextBase++;
+    if (baseIndex >= nBase) throw new Error(`too few base packings for ${options.flatTriples} flat minima beside ${options.closePairs} close partners`);
+    const base = packings[baseIndex];
+    const members: number[] = [baseIndex];
+    for (let t = 0; t < 2; t++) {
+      let turned: Packing | null = null;
+      for (let attempt = 0; attempt < 5 && !turned; attempt++) turned = closePartner(base.packing, mol, rng, options.flatTurnDeg ?? 1, 0);
+      if (!turned) throw new Error(`packing ${baseIndex} is too tightly packed to turn its molecule for a flat minimum`);
+      packings.push({ group: base.group, densityGPerCm3: turned.densityGPerCm3, energyKjPerMol: base.energyKjPerMol, partnerOf: baseIndex, packing: turned });
+      members.push(packings.length - 1);
+    }
+    flatGroups.push(members as [number, number, number]);
+  }
 
   // Every copy of every packing, then shuffled so copies are not adjacent in the input.
   interface Copy {
@@ -145,6 +174,8 @@ export function generateLandscape(options: GeneratorOptions): GeneratedLandscape
     kinds: [],
     packings,
     closePairs,
+    flatGroups,
+    energyFaults: [],
   };
   const kinds: CopyKind[] = ['standard', 'other-cell', 'p1', 'symbol-only', 'p1-supercell', 'other-setting'];
   copies.forEach((cp, n) => {
@@ -164,9 +195,35 @@ export function generateLandscape(options: GeneratorOptions): GeneratedLandscape
     out.atomsPerCell.push(expressed.frac.length / 3);
     out.kinds.push(kind);
   });
+  plantEnergyFaults(out, blocks, csv, options);
   out.cif = `# Invented landscape of ${mol.elements.length}-atom ${out.moleculeName} (generated, seed ${options.seed})\n${blocks.join('\n')}`;
   out.energiesCsv = `${csv.join('\n')}\n`;
   return out;
+}
+
+/**
+ * Give `energyFaults` copies an energy 2-5 kJ/mol off (either sign), at most one per packing and only in
+ * packings with at least 3 copies, so the group's median stays the true energy. Uses its own seeded stream,
+ * so the rest of the landscape is the same as without faults.
+ */
+function plantEnergyFaults(out: GeneratedLandscape, blocks: string[], csv: string[], options: GeneratorOptions): void {
+  const faults = options.energyFaults ?? 0;
+  if (faults === 0) return;
+  if (options.copiesPerPacking < 3) throw new Error('energy faults need at least 3 copies per packing');
+  if (faults > out.packings.length) throw new Error(`${faults} energy faults need as many packings, not ${out.packings.length}`);
+  const rng = makeRng(options.seed + 7919);
+  const packingsHit = rng.shuffle(out.packings.map((_, p) => p)).slice(0, faults);
+  for (const p of packingsHit) {
+    const copies = out.ids.map((_, i) => i).filter((i) => out.truth[i] === p);
+    const i = copies[rng.int(copies.length)];
+    const fault = (rng.next() < 0.5 ? -1 : 1) * rng.uniform(2, 5);
+    out.energiesKjPerMol[i] += fault;
+    out.energyFaults.push([i, fault]);
+    const energy = out.energiesKjPerMol[i].toFixed(4);
+    csv[i + 1] = `${out.ids[i]},${energy}`;
+    if (options.energyItem) blocks[i] = blocks[i].replace(new RegExp(`^_${options.energyItem} .*$`, 'm'), `_${options.energyItem} ${energy}`);
+  }
+  out.energyFaults.sort((a, b) => a[0] - b[0]);
 }
 
 function squeezeUntilUsable(group: GeneratedGroup, mol: MoleculeTemplate, rng: Rng, moves: number): Packing {

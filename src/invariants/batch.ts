@@ -3,7 +3,7 @@
 // same way, so that one message carries hundreds of structures and structured cloning stays cheap.
 import type { Pdd, PeriodicPointSet } from '../types.js';
 import { defaultThreads, mapInWorkers, type PoolOptions } from '../parallel/pool.js';
-import { DEFAULT_COLLAPSE_TOLERANCE_ANGSTROM, pdd } from './pdd.js';
+import { DEFAULT_COLLAPSE_TOLERANCE_ANGSTROM, pdd, pddWithElements, type RowElements } from './pdd.js';
 import { amd } from './amd.js';
 
 /** A chunk of periodic sets in flat arrays (structured-cloneable). */
@@ -21,6 +21,10 @@ export interface PackedSets {
   asymStart: Int32Array;
   asym: Int32Array;
   multiplicity: Int32Array;
+  /** Atomic numbers per motif point (same offsets as `motif` divided by the dimension), or empty when a set has none. */
+  atomicNumbers: Uint8Array;
+  /** count+1 offsets into `atomicNumbers` (a set without atomic numbers has an empty range). */
+  atomStart: Int32Array;
 }
 
 /** The invariants of a chunk in flat arrays; a set that failed has no rows and its message in `errors`. */
@@ -36,11 +40,21 @@ export interface PackedInvariants {
   amd: Float64Array;
   /** '' for every set that worked, else why it failed. */
   errors: string[];
+  /**
+   * Elements at the rows' centres (pdd.ts RowElements), packed: count+1 offsets into `partStart`, where a set
+   * with atomic numbers has its rows+1 part offsets (counted from its own first part) and a set without has none.
+   */
+  elementRowStart: Int32Array;
+  partStart: Int32Array;
+  partZ: Uint8Array;
+  partWeight: Float64Array;
 }
 
 export interface Invariants {
   pdd: Pdd;
   amd: Float64Array;
+  /** Elements at the centres of the PDD rows, when the set carries atomic numbers. */
+  elements?: RowElements;
 }
 
 export interface InvariantsOptions {
@@ -118,55 +132,103 @@ export function packSets(sets: PeriodicPointSet[], k: number, collapseTolerance 
   const motif = new Float64Array(motifStart[count]);
   const asym = new Int32Array(asymStart[count]);
   const multiplicity = new Int32Array(asymStart[count]);
+  const atomStart = new Int32Array(count + 1);
+  for (let i = 0; i < count; i++) {
+    const m = sets[i].motif.length / sets[i].dim;
+    atomStart[i + 1] = atomStart[i] + (sets[i].atomicNumbers.length === m ? m : 0);
+  }
+  const atomicNumbers = new Uint8Array(atomStart[count]);
   for (let i = 0; i < count; i++) {
     const s = sets[i];
+    if (atomStart[i + 1] > atomStart[i]) atomicNumbers.set(s.atomicNumbers, atomStart[i]);
     dims[i] = s.dim;
     basis.set(s.basis.subarray(0, Math.min(9, s.basis.length)), 9 * i);
     motif.set(s.motif, motifStart[i]);
     asym.set(s.asym, asymStart[i]);
     multiplicity.set(s.multiplicity.subarray(0, s.asym.length), asymStart[i]);
   }
-  return { k, collapseTolerance, count, dims, basis, motifStart, motif, asymStart, asym, multiplicity };
+  return { k, collapseTolerance, count, dims, basis, motifStart, motif, asymStart, asym, multiplicity, atomicNumbers, atomStart };
 }
 
 /** Worker entry: invariants of every set of a packed chunk. A failing set is reported, not thrown. */
 export function invariantsOfChunk(chunk: PackedSets): PackedInvariants {
   const { k, count } = chunk;
-  const pdds: Pdd[] = [];
-  const errors: string[] = [];
-  const amds = new Float64Array(count * k);
-  let totalRows = 0;
+  const out: Array<Invariants | { error: string }> = [];
   for (let i = 0; i < count; i++) {
     const dim = chunk.dims[i];
     const set: PeriodicPointSet = {
       dim,
       basis: chunk.basis.subarray(9 * i, 9 * i + dim * dim),
       motif: chunk.motif.subarray(chunk.motifStart[i], chunk.motifStart[i + 1]),
-      atomicNumbers: new Uint8Array(0),
+      atomicNumbers: chunk.atomicNumbers.subarray(chunk.atomStart[i], chunk.atomStart[i + 1]),
       asym: chunk.asym.subarray(chunk.asymStart[i], chunk.asymStart[i + 1]),
       multiplicity: chunk.multiplicity.subarray(chunk.asymStart[i], chunk.asymStart[i + 1]),
     };
-    try {
-      const p = pdd(set, k, { collapseTolerance: chunk.collapseTolerance });
-      pdds.push(p);
-      amds.set(amd(p), i * k);
-      totalRows += p.weights.length;
-      errors.push('');
-    } catch (err) {
-      pdds.push({ k, rows: new Float64Array(0), weights: new Float64Array(0) });
-      errors.push(err instanceof Error ? err.message : String(err));
+    out.push(invariantsOrError(set, k, chunk.collapseTolerance));
+  }
+  return packInvariants(k, out);
+}
+
+/** PDD and AMD of one set, or why they could not be computed. */
+export function invariantsOrError(set: PeriodicPointSet, k: number, collapseTolerance = DEFAULT_COLLAPSE_TOLERANCE_ANGSTROM): Invariants | { error: string } {
+  try {
+    // Sets carrying atomic numbers also give the elements at their rows' centres (the element-aware check).
+    if (set.atomicNumbers.length > 0) {
+      const w = pddWithElements(set, k, { collapseTolerance });
+      return { pdd: w.pdd, amd: amd(w.pdd), elements: w.elements };
     }
+    const p = pdd(set, k, { collapseTolerance });
+    return { pdd: p, amd: amd(p) };
+  } catch (err) {
+    return { error: err instanceof Error ? err.message : String(err) };
   }
+}
+
+/** Pack per-set invariants (or errors) into one message: a few flat arrays instead of two per set. */
+export function packInvariants(k: number, results: ReadonlyArray<Invariants | { error: string }>): PackedInvariants {
+  const count = results.length;
   const rowStart = new Int32Array(count + 1);
-  const rows = new Float64Array(totalRows * k);
-  const weights = new Float64Array(totalRows);
   for (let i = 0; i < count; i++) {
-    const p = pdds[i];
-    rows.set(p.rows, rowStart[i] * k);
-    weights.set(p.weights, rowStart[i]);
-    rowStart[i + 1] = rowStart[i] + p.weights.length;
+    const r = results[i];
+    rowStart[i + 1] = rowStart[i] + ('error' in r ? 0 : r.pdd.weights.length);
   }
-  return { k, count, rowStart, rows, weights, amd: amds, errors };
+  const rows = new Float64Array(rowStart[count] * k);
+  const weights = new Float64Array(rowStart[count]);
+  const amds = new Float64Array(count * k);
+  const errors: string[] = [];
+  for (let i = 0; i < count; i++) {
+    const r = results[i];
+    if ('error' in r) {
+      errors.push(r.error);
+      continue;
+    }
+    errors.push('');
+    rows.set(r.pdd.rows, rowStart[i] * k);
+    weights.set(r.pdd.weights, rowStart[i]);
+    amds.set(r.amd, i * k);
+  }
+  // Elements: per set with them, rows+1 part offsets (relative to the set's first part), then the parts.
+  const elements = results.map((r) => ('error' in r ? null : (r.elements ?? null)));
+  const elementRowStart = new Int32Array(count + 1);
+  let parts = 0;
+  for (let i = 0; i < count; i++) {
+    const e = elements[i];
+    elementRowStart[i + 1] = elementRowStart[i] + (e ? e.start.length : 0);
+    if (e) parts += e.z.length;
+  }
+  const partStart = new Int32Array(elementRowStart[count]);
+  const partZ = new Uint8Array(parts);
+  const partWeight = new Float64Array(parts);
+  let at = 0;
+  for (let i = 0; i < count; i++) {
+    const e = elements[i];
+    if (!e) continue;
+    partStart.set(e.start, elementRowStart[i]);
+    partZ.set(e.z, at);
+    partWeight.set(e.weight, at);
+    at += e.z.length;
+  }
+  return { k, count, rowStart, rows, weights, amd: amds, errors, elementRowStart, partStart, partZ, partWeight };
 }
 
 /**
@@ -176,17 +238,29 @@ export function invariantsOfChunk(chunk: PackedSets): PackedInvariants {
 export function unpackInvariants(p: PackedInvariants): Array<Invariants | { error: string }> {
   const out: Array<Invariants | { error: string }> = [];
   const k = p.k;
+  let part = 0;
   for (let i = 0; i < p.count; i++) {
+    const e0 = p.elementRowStart[i];
+    const e1 = p.elementRowStart[i + 1];
+    let elements: RowElements | undefined;
+    if (e1 > e0) {
+      const start = p.partStart.slice(e0, e1);
+      const parts = start[start.length - 1];
+      elements = { start, z: p.partZ.slice(part, part + parts), weight: p.partWeight.slice(part, part + parts) };
+      part += parts;
+    }
     if (p.errors[i] !== '') {
       out.push({ error: p.errors[i] });
       continue;
     }
     const a = p.rowStart[i];
     const b = p.rowStart[i + 1];
-    out.push({
+    const inv: Invariants = {
       pdd: { k, rows: p.rows.slice(a * k, b * k), weights: p.weights.slice(a, b) },
       amd: p.amd.slice(i * k, (i + 1) * k),
-    });
+    };
+    if (elements) inv.elements = elements;
+    out.push(inv);
   }
   return out;
 }

@@ -19,6 +19,8 @@ export const DEFAULT_COLLAPSE_TOLERANCE_ANGSTROM = 1e-8;
 export interface PddOptions extends NeighbourOptions {
   /** Rows within this L-infinity distance (Å) merge; default DEFAULT_COLLAPSE_TOLERANCE_ANGSTROM. */
   collapseTolerance?: number;
+  /** When given (length = asymmetric-unit points), receives the PDD row each point's row went into. */
+  rowOf?: Int32Array;
 }
 
 /** The PDD of `set` with k neighbours per row. */
@@ -38,7 +40,50 @@ export function pdd(set: PeriodicPointSet, k: number, opts: PddOptions = {}): Pd
   const rows = nearestNeighbourDistances(prep, k, asym, opts);
   const weights = new Float64Array(asym.length);
   for (let i = 0; i < asym.length; i++) weights[i] = mult[i] / m;
-  return collapseRows(rows, weights, k, opts.collapseTolerance ?? DEFAULT_COLLAPSE_TOLERANCE_ANGSTROM);
+  return collapseRows(rows, weights, k, opts.collapseTolerance ?? DEFAULT_COLLAPSE_TOLERANCE_ANGSTROM, opts.rowOf);
+}
+
+/**
+ * The elements at the centres of each PDD row: row r of the PDD gathers the asymmetric-unit points
+ * parts [start[r], start[r+1]), each of element `z` carrying `weight` (their weights add up to the row's).
+ * Usually one element per row; rows of different elements with equal distances share a row.
+ */
+export interface RowElements {
+  start: Int32Array;
+  z: Uint8Array;
+  weight: Float64Array;
+}
+
+/** The PDD of `set` and the elements at the centres of its rows (the set's atomic numbers). */
+export function pddWithElements(set: PeriodicPointSet, k: number, opts: PddOptions = {}): { pdd: Pdd; elements: RowElements } {
+  const m = set.motif.length / set.dim;
+  if (set.atomicNumbers.length !== m) throw new Error(`the set has ${set.atomicNumbers.length} atomic numbers for ${m} points`);
+  const rowOf = new Int32Array(set.asym.length);
+  const p = pdd(set, k, { ...opts, rowOf });
+  return { pdd: p, elements: rowElements(rowOf, set, p.weights.length) };
+}
+
+/** Group the asymmetric-unit points by PDD row and element (deterministic order: row, then atomic number). */
+function rowElements(rowOf: Int32Array, set: PeriodicPointSet, rows: number): RowElements {
+  const m = set.motif.length / set.dim;
+  const parts: Array<Map<number, number>> = Array.from({ length: rows }, () => new Map());
+  for (let i = 0; i < rowOf.length; i++) {
+    const z = set.atomicNumbers[set.asym[i]];
+    const part = parts[rowOf[i]];
+    part.set(z, (part.get(z) ?? 0) + set.multiplicity[i]);
+  }
+  const start = new Int32Array(rows + 1);
+  for (let r = 0; r < rows; r++) start[r + 1] = start[r] + parts[r].size;
+  const z = new Uint8Array(start[rows]);
+  const weight = new Float64Array(start[rows]);
+  for (let r = 0; r < rows; r++) {
+    let t = start[r];
+    for (const [zz, count] of [...parts[r]].sort((a, b) => a[0] - b[0])) {
+      z[t] = zz;
+      weight[t++] = count / m;
+    }
+  }
+  return { start, z, weight };
 }
 
 /**
@@ -49,7 +94,7 @@ export function pdd(set: PeriodicPointSet, k: number, opts: PddOptions = {}): Pd
  * its own values. To find close rows cheaply, rows are visited in order of their sums: rows within
  * the tolerance in every column have sums within k times the tolerance.
  */
-export function collapseRows(rows: Float64Array, weights: Float64Array, k: number, toleranceAngstrom: number): Pdd {
+export function collapseRows(rows: Float64Array, weights: Float64Array, k: number, toleranceAngstrom: number, rowOf?: Int32Array): Pdd {
   const n = weights.length;
   if (rows.length !== n * k) throw new Error(`expected ${n}*${k} row entries, got ${rows.length}`);
   if (!(toleranceAngstrom >= 0)) throw new Error(`the collapse tolerance must be >= 0, not ${toleranceAngstrom}`);
@@ -68,6 +113,7 @@ export function collapseRows(rows: Float64Array, weights: Float64Array, k: numbe
   order.sort((a, b) => sums[a] - sums[b] || a - b);
   const kept = new Int32Array(n); // source row of each kept row
   const keptWeight = new Float64Array(n);
+  const into_ = new Int32Array(n); // kept row each source row went into
   let nKept = 0;
   for (let s = 0; s < n; s++) {
     const i = order[s];
@@ -87,7 +133,9 @@ export function collapseRows(rows: Float64Array, weights: Float64Array, k: numbe
     }
     if (into >= 0) {
       keptWeight[into] += weights[i];
+      into_[i] = into;
     } else {
+      into_[i] = nKept;
       kept[nKept] = i;
       keptWeight[nKept] = weights[i];
       nKept++;
@@ -110,6 +158,12 @@ export function collapseRows(rows: Float64Array, weights: Float64Array, k: numbe
     const src = kept[final[t]];
     outRows.set(rows.subarray(src * k, src * k + k), t * k);
     outWeights[t] = keptWeight[final[t]];
+  }
+  if (rowOf) {
+    // Output row of every source row, for callers that keep something per source row (the centre's element).
+    const position = new Int32Array(nKept);
+    for (let t = 0; t < nKept; t++) position[final[t]] = t;
+    for (let i = 0; i < n; i++) rowOf[i] = position[into_[i]];
   }
   return { k, rows: outRows, weights: outWeights };
 }

@@ -2,6 +2,7 @@
 // stated by the user. Every problem is kept, per row and per structure, so nothing is dropped silently:
 // ids that match no structure, structures with no energy, repeated ids, values that are not numbers.
 import Papa from 'papaparse';
+import { utf16Kind } from './text-encoding.js';
 import type { EnergyUnit } from '../landscape/schema.js';
 
 /** kJ/mol per kcal/mol: the thermochemical calorie is 4.184 J exactly (NIST SP 811, 2008). */
@@ -69,22 +70,45 @@ export interface EnergyCsvOptions {
   energyColumn?: string;
 }
 
+/** Column separators tried, in this order, on the header line: the first that shows both named columns is used. */
+const DELIMITERS = [',', ';', '\t'] as const;
+
 /**
- * Parse an energies CSV. Throws (one line, naming the file) when a required column is missing; other
- * problems are per row in `issues`. Columns are matched exactly first, then ignoring case and spaces.
+ * Parse an energies CSV. Throws (one line, naming the file) when a required column is missing, or when not one
+ * energy can be read from the file (showing the first bad value and what to change); other problems are per
+ * row in `issues`. Columns are matched exactly first, then ignoring case and spaces. The separator is a comma,
+ * a semicolon or a tab, whichever shows both columns in the header; in a file separated by semicolons or tabs
+ * (what spreadsheets write in locales with a decimal comma) a decimal comma is read as a decimal point.
  */
 export function parseEnergyCsv(text: string, file: string, opts: EnergyCsvOptions = {}): EnergyTable {
   const idColumn = opts.idColumn ?? 'id';
   const energyColumn = opts.energyColumn ?? 'energy';
-  const parsed = Papa.parse<string[]>(text.replace(/^\uFEFF/, ''), { skipEmptyLines: false });
-  const data = parsed.data;
+  const body = text.replace(/^\uFEFF/, '');
   const table: EnergyTable = { file, energies: new Map(), repeats: new Map(), conflicts: new Set(), issues: [], lineOf: new Map(), rows: 0 };
+  let data: string[][] = [];
+  let header: string[] = [];
+  let idAt = -1;
+  let energyAt = -1;
+  let delimiter: string = DELIMITERS[0];
+  for (const d of DELIMITERS) {
+    const parsed = Papa.parse<string[]>(body, { delimiter: d, skipEmptyLines: false }).data;
+    const h = (parsed[0] ?? []).map((x) => x.trim());
+    if (d === DELIMITERS[0]) {
+      data = parsed;
+      header = h;
+    }
+    if (findColumn(h, idColumn) >= 0 && findColumn(h, energyColumn) >= 0) {
+      data = parsed;
+      header = h;
+      delimiter = d;
+      break;
+    }
+  }
   if (data.length === 0 || (data.length === 1 && data[0].every((c) => c.trim() === ''))) {
     throw new Error(`${file}: the energies file is empty; it needs a header line with columns '${idColumn}' and '${energyColumn}'`);
   }
-  const header = data[0].map((h) => h.trim());
-  const idAt = findColumn(header, idColumn);
-  const energyAt = findColumn(header, energyColumn);
+  idAt = findColumn(header, idColumn);
+  energyAt = findColumn(header, energyColumn);
   const missing = [idAt < 0 ? idColumn : null, energyAt < 0 ? energyColumn : null].filter((x) => x !== null);
   if (missing.length > 0) {
     throw new Error(
@@ -92,8 +116,10 @@ export function parseEnergyCsv(text: string, file: string, opts: EnergyCsvOption
         'name the columns with --id-column and --energy-column',
     );
   }
+  const decimalComma = delimiter !== ',';
   const firstLine = new Map<string, number>();
   const valueOf = new Map<string, number>();
+  let firstBad: { line: number; raw: string } | null = null;
   for (let r = 1; r < data.length; r++) {
     const row = data[r];
     const line = r + 1;
@@ -106,8 +132,9 @@ export function parseEnergyCsv(text: string, file: string, opts: EnergyCsvOption
       continue;
     }
     if (!table.lineOf.has(id)) table.lineOf.set(id, line);
-    const value = DECIMAL.test(raw) ? Number(raw) : NaN;
+    const value = readDecimal(raw, decimalComma);
     if (!Number.isFinite(value)) {
+      if (!firstBad) firstBad = { line, raw };
       table.issues.push({ line, id, issue: raw === '' ? `no energy for ${id}` : `energy '${clip(raw)}' is not a number` });
       continue;
     }
@@ -129,11 +156,52 @@ export function parseEnergyCsv(text: string, file: string, opts: EnergyCsvOption
       table.issues.push({ line, id, issue: `id repeated (lines ${lines.join(', ')}) with the same energy` });
     }
   }
+  // Not one value could be read: sifting in input order would mislead, so stop with what to change.
+  if (valueOf.size === 0) {
+    const column = `column '${header[energyAt]}'`;
+    if (table.rows === 0) throw new Error(`${file}: no energy could be read: the file has a header but no rows`);
+    if (!firstBad) throw new Error(`${file}: no energy could be read: no row has an id in column '${header[idAt]}'; choose the id column with --id-column`);
+    throw new Error(`${file}: no energy could be read: line ${firstBad.line} has ${firstBad.raw === '' ? 'nothing' : `'${clip(firstBad.raw)}'`} in ${column}; ${howToFix(firstBad.raw, delimiter)}`);
+  }
   return table;
 }
 
 /** A plain decimal number (no hex, no 'Infinity'). */
 const DECIMAL = /^[-+]?(?:\d+\.?\d*|\.\d+)(?:[eE][-+]?\d+)?$/;
+/** The same with a decimal comma. */
+const DECIMAL_COMMA = /^[-+]?(?:\d+,?\d*|,\d+)(?:[eE][-+]?\d+)?$/;
+
+/** The number in `raw`, or NaN; with `decimalComma` one comma may stand for the decimal point. */
+export function readDecimal(raw: string, decimalComma: boolean): number {
+  if (DECIMAL.test(raw)) return Number(raw);
+  if (decimalComma && DECIMAL_COMMA.test(raw)) return Number(raw.replace(',', '.'));
+  return NaN;
+}
+
+/** What to change when the energy column holds no number at all. */
+function howToFix(raw: string, delimiter: string): string {
+  const numberLike = /^[-+\u2212]?[\d.,\s\u00a0']+(?:[eE][-+]?\d+)?$/.test(raw) && /\d/.test(raw);
+  if (numberLike && delimiter === ',' && /^[-+]?\d+,\d+$/.test(raw)) {
+    return 'numbers with a decimal comma need a file separated by semicolons (or tabs): save it so, or write a decimal point';
+  }
+  if (numberLike) return 'write plain numbers such as -95.12 (no thousands separators, a minus sign from the keyboard, a decimal point or, in a file separated by semicolons or tabs, a decimal comma)';
+  return 'the energy column must hold plain numbers such as -95.12; choose the column with --energy-column';
+}
+
+/**
+ * The text of an energies file from its bytes: UTF-8 (a byte-order mark is dropped) or UTF-16, which some
+ * spreadsheets write as "Unicode text" (recognised by its byte-order mark, or by zero bytes between ASCII
+ * characters). `encoding` says which was read.
+ */
+export function decodeEnergyFile(bytes: Uint8Array): { text: string; encoding: 'UTF-8' | 'UTF-16LE' | 'UTF-16BE' } {
+  const utf16 = utf16Kind(bytes);
+  if (utf16) {
+    const text = new TextDecoder(utf16 === 'UTF-16LE' ? 'utf-16le' : 'utf-16be').decode(bytes);
+    return { text: text.replace(/^\uFEFF/, ''), encoding: utf16 };
+  }
+  return { text: new TextDecoder('utf-8').decode(bytes).replace(/^\uFEFF/, ''), encoding: 'UTF-8' };
+}
+
 
 function findColumn(header: string[], name: string): number {
   const exact = header.indexOf(name);
@@ -158,29 +226,36 @@ export interface EnergyAssignment {
 /**
  * Match an energy table to the structures' ids. A structure whose id is absent, or listed with conflicting
  * values, gets null and a problem sentence; ids in the table that match no structure are returned.
+ * `names` (optional, one per structure) are the block names: a structure whose id differs from its block name
+ * (a name shared by several input blocks, src/landscape/unique-ids.ts) takes the energy listed under its id; a
+ * row listing only the shared block name cannot tell those structures apart and gives them none.
  */
-export function assignEnergies(ids: readonly string[], table: EnergyTable): EnergyAssignment {
+export function assignEnergies(ids: readonly string[], table: EnergyTable, names?: readonly string[]): EnergyAssignment {
   const energy: Array<number | null> = [];
   const problem: string[] = [];
   const badRows = new Map<string, EnergyIssue>();
   for (const issue of table.issues) if (issue.id !== '' && !badRows.has(issue.id)) badRows.set(issue.id, issue);
   const present = new Set(ids);
-  // An id shared by several input structures (the same block name in two files) cannot be told apart by the CSV.
+  const nameOf = (i: number) => names?.[i] ?? ids[i];
+  // A name shared by several input structures (the same block name in two files) cannot be told apart by the CSV.
   const uses = new Map<string, number>();
-  for (const id of ids) uses.set(id, (uses.get(id) ?? 0) + 1);
-  for (const id of ids) {
-    const shared = uses.get(id)!;
-    if (shared > 1 && table.lineOf.has(id)) {
+  ids.forEach((_, i) => uses.set(nameOf(i), (uses.get(nameOf(i)) ?? 0) + 1));
+  for (const n of uses.keys()) present.add(n);
+  ids.forEach((id, i) => {
+    const name = nameOf(i);
+    const shared = uses.get(name)!;
+    if (shared > 1 && table.lineOf.has(name) && (id === name || !table.lineOf.has(id))) {
       energy.push(null);
-      problem.push(`no energy: the id is shared by ${shared} structures in the inputs, so ${table.file} cannot tell them apart`);
-      continue;
+      const byId = id === name ? '' : ` (block name ${name}); list each one by its id (this one is ${id})`;
+      problem.push(`no energy: the id is shared by ${shared} structures in the inputs, so ${table.file} cannot tell them apart${byId}`);
+      return;
     }
     const e = table.energies.get(id);
     if (e !== undefined) {
       energy.push(e);
       const rep = table.repeats.get(id);
       problem.push(rep ? `listed ${rep.length} times in ${table.file} (lines ${rep.join(', ')}) with the same energy` : '');
-      continue;
+      return;
     }
     energy.push(null);
     if (table.conflicts.has(id)) {
@@ -189,7 +264,7 @@ export function assignEnergies(ids: readonly string[], table: EnergyTable): Ener
       const b = badRows.get(id)!;
       problem.push(`no energy: ${table.file} line ${b.line}: ${b.issue}`);
     } else problem.push(`no energy: id not found in ${table.file}`);
-  }
+  });
   const unmatched: EnergyIssue[] = [];
   for (const [id, line] of table.lineOf) if (!present.has(id)) unmatched.push({ line, id, issue: 'id matches no structure in the inputs' });
   return { energy, problem, unmatched };

@@ -41,7 +41,7 @@ export const NOTE_KINDS: readonly NoteKind[] = [
   { code: 'special-positions', pattern: /site\(s\) on special positions/ },
   { code: 'sites-merged', pattern: /(coincide with earlier sites|is a symmetry copy of site|share one position)/ },
   { code: 'hydrogens-dropped', pattern: /^hydrogens dropped/ },
-  // Crystal facts (src/geometry/facts.ts, molecules.ts, src/landscape/prepare.ts).
+  // Crystal facts (src/geometry/facts.ts, molecules.ts, src/landscape/blocks-job.ts).
   { code: 'no-radius', pattern: /^no covalent radius/ },
   { code: 'extended', pattern: /^(bonds extend through|\d+ bonded component)/ },
   { code: 'overlap', pattern: /pair\(s\) of atoms closer than/ },
@@ -50,6 +50,15 @@ export const NOTE_KINDS: readonly NoteKind[] = [
   { code: 'z-stated', pattern: /^_cell_formula_units_Z says/ },
   { code: 'composition', pattern: /which is not a whole multiple of _chemical_formula_sum/ },
   { code: 'no-facts', pattern: /^density and Z could not be computed/ },
+  // Symmetry detection (src/geometry/crystal-symmetry.ts).
+  { code: 'written-in', pattern: /^written in .*; .* within [\d.]+ Å/ },
+  { code: 'symmetry-disorder', pattern: /^disordered sites: .* as declared is reported/ },
+  { code: 'symmetry-no-hydrogen', pattern: /^hydrogen sites missing: .* as declared is reported/ },
+  { code: 'symmetry-overlap', pattern: /^overlapping atoms: .* as declared is reported/ },
+  { code: 'symmetry-failed', pattern: /^symmetry not detected within/ },
+  { code: 'symmetry-ops-missed', pattern: /^the file's own \d+ operations are not all found within/ },
+  // Repeated block names (src/landscape/unique-ids.ts).
+  { code: 'shared-name', pattern: /^the block name .* is used by \d+ input blocks/ },
   // Energies (src/io/energies.ts, src/landscape/stages/energies.ts, energy-basis.ts, window.ts).
   { code: 'no-energy-window', pattern: /^no energy, so the energy window/ },
   { code: 'energy-per-cell', pattern: /^energy per cell/ },

@@ -11,6 +11,7 @@ import type { Readable } from 'node:stream';
 import type { BlockResult } from '../types.js';
 import { CifBlockSplitter, CifByteSplitter, type RawBlock } from './cif-split.js';
 import { blockResult, type ReadOptions } from './crystal-record.js';
+import { utf16Kind } from './text-encoding.js';
 
 export type { ReadOptions } from './crystal-record.js';
 
@@ -142,6 +143,12 @@ async function* streamBlocks(file: string, source: AsyncIterable<Uint8Array>, gz
       if (first) {
         // A byte-order mark (as some Windows editors write) would hide the first data_ line.
         if (bytes.length >= 3 && bytes[0] === 0xef && bytes[1] === 0xbb && bytes[2] === 0xbf) bytes = bytes.subarray(3);
+        // UTF-16 text (Windows editors' "Unicode") is not binary data; say what it is and how to convert it.
+        const utf16 = utf16Kind(bytes);
+        if (utf16) {
+          yield fileRejected(file, `the file is ${utf16} text; polysift reads CIF files as UTF-8 (or ASCII): save it as UTF-8, e.g. iconv -f UTF-16 -t UTF-8`);
+          return;
+        }
         const headText = Buffer.from(bytes.buffer, bytes.byteOffset, Math.min(bytes.length, 4 * BINARY_HEAD_CHARS)).toString('utf8');
         if (binaryAt(headText.slice(0, BINARY_HEAD_CHARS), true)) {
           yield fileRejected(file, `binary data (not CIF text) near line ${splitter.linesRead}; the rest of the file is not read`);

@@ -3,12 +3,15 @@
 // change invariants (PDD depth k, hydrogen policy, tool version), so a change of any of them starts afresh.
 // Layout of `<cacheDir>/invariants-k<k>-h<policy>-v<version>.bin`:
 //   "PSIC1\n", uint32 (LE) header length, header JSON, zero padding to a multiple of 8,
-//   then per entry in header order: PDD rows (nRows*k float64 LE) and weights (nRows float64 LE).
+//   then per entry in header order: PDD rows (nRows*k float64 LE) and weights (nRows float64 LE), then the
+//   elements at the rows' centres: nRows+1 part offsets, the parts' atomic numbers and weights (float64 LE).
+// Entries written without a composition or elements (an older file) are left out, so they are computed again.
 // Values are stored as float64, so a cached run writes exactly the numbers of an uncached one.
 import { createHash } from 'node:crypto';
 import { existsSync, readFileSync } from 'node:fs';
 import { join } from 'node:path';
 import type { CrystalFacts, Pdd } from '../types.js';
+import type { RowElements } from '../invariants/pdd.js';
 import type { HydrogenPolicy } from './schema.js';
 import { writeFilesAtomically } from '../io/outputs.js';
 
@@ -26,6 +29,10 @@ export interface CacheEntry {
   notes: string[];
   /** Symmetry tolerance (Å) the facts were computed with (null in files written before it was stored). */
   symmetryToleranceAngstrom: number | null;
+  /** Reduced formula of the compared points (src/geometry/composition.ts). */
+  composition: string;
+  /** Elements at the centres of the PDD rows (src/invariants/pdd.ts). */
+  elements: RowElements;
 }
 
 export interface CacheParams {
@@ -50,6 +57,9 @@ interface HeaderEntry {
   facts: CrystalFacts | null;
   notes: string[];
   symmetryToleranceAngstrom?: number;
+  composition?: string;
+  /** Number of (row, element) parts; absent in files written before elements were kept. */
+  parts?: number;
 }
 
 /** Load the cache for `p` from `dir` (empty when absent; an unreadable file is ignored and reported via `problem`). */
@@ -74,8 +84,17 @@ export function loadCache(dir: string, p: CacheParams): { entries: Map<string, C
       const weights = data.subarray(offset, offset + h.rows);
       offset += h.rows;
       if (weights.length !== h.rows) throw new Error('cache file is truncated');
+      if (h.parts === undefined || h.composition === undefined) continue;
+      const start = Int32Array.from(data.subarray(offset, offset + h.rows + 1));
+      offset += h.rows + 1;
+      const z = Uint8Array.from(data.subarray(offset, offset + h.parts));
+      offset += h.parts;
+      const weight = data.subarray(offset, offset + h.parts);
+      offset += h.parts;
+      if (weight.length !== h.parts) throw new Error('cache file is truncated');
       entries.set(h.key, {
-        pdd: { k: p.k, rows, weights }, atoms: h.atoms, facts: h.facts, notes: h.notes, symmetryToleranceAngstrom: h.symmetryToleranceAngstrom ?? null,
+        pdd: { k: p.k, rows, weights }, atoms: h.atoms, facts: h.facts, notes: h.notes, composition: h.composition, elements: { start, z, weight },
+        symmetryToleranceAngstrom: h.symmetryToleranceAngstrom ?? null,
       });
     }
     return { entries, problem: null };
@@ -90,11 +109,12 @@ export function saveCache(dir: string, p: CacheParams, entries: Map<string, Cach
   let floats = 0;
   for (const [key, e] of entries) {
     if (e.pdd.k !== p.k) throw new Error(`cache entry ${key} has k = ${e.pdd.k}, not ${p.k}`);
+    const parts = e.elements.z.length;
     header.entries.push({
-      key, rows: e.pdd.weights.length, atoms: e.atoms, facts: e.facts, notes: e.notes,
+      key, rows: e.pdd.weights.length, atoms: e.atoms, facts: e.facts, notes: e.notes, composition: e.composition, parts,
       ...(e.symmetryToleranceAngstrom === null ? {} : { symmetryToleranceAngstrom: e.symmetryToleranceAngstrom }),
     });
-    floats += e.pdd.rows.length + e.pdd.weights.length;
+    floats += e.pdd.rows.length + e.pdd.weights.length + e.elements.start.length + 2 * parts;
   }
   const headerBytes = Buffer.from(JSON.stringify(header), 'utf8');
   const dataStart = align8(MAGIC.length + 4 + headerBytes.length);
@@ -109,6 +129,12 @@ export function saveCache(dir: string, p: CacheParams, entries: Map<string, Cach
     o += e.pdd.rows.length;
     data.set(e.pdd.weights, o);
     o += e.pdd.weights.length;
+    data.set(e.elements.start, o);
+    o += e.elements.start.length;
+    data.set(e.elements.z, o);
+    o += e.elements.z.length;
+    data.set(e.elements.weight, o);
+    o += e.elements.weight.length;
   }
   return writeFilesAtomically(dir, [[cacheFileName(p), out]])[0];
 }

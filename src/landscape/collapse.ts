@@ -1,7 +1,8 @@
 // Duplicate collapse: structures are visited in order of increasing energy (input order without energies,
 // ties by input index); each joins the NEAREST already kept structure within the tolerance (EMD, Å), or is
 // kept itself. So the kept structure of a group is its lowest-energy member and every member lies within the
-// tolerance of it: groups never chain (common practice for duplicate removal in structure prediction; the
+// tolerance of it: groups never chain. Structures of different composition never join each other, and an
+// optional check (the element-aware comparison) can refuse a pair (common practice for duplicate removal in structure prediction; the
 // metric is EMD between PDDs, "Resolving the data ambiguity for periodic crystals", NeurIPS 2022).
 
 export interface CloseEdges {
@@ -18,6 +19,21 @@ export interface CollapseResult {
   distanceToKept: Float64Array;
   /** Kept structures in visit order (lowest energy first). */
   kept: number[];
+  /** Pairs (structure, kept structure, EMD) within the tolerance that `accept` refused, in visit order. */
+  refused: Array<[number, number, number]>;
+}
+
+export interface CollapseChemistry {
+  /**
+   * Per structure: its composition class; structures of different classes are never duplicates of each other,
+   * whatever their distance (PDD and EMD see geometry only).
+   */
+  classOf?: Int32Array;
+  /**
+   * Asked, nearest first, for each kept structure of the same class within the tolerance until it answers
+   * true: whether structure s may join kept structure t (the element-aware check). Refused pairs are returned.
+   */
+  accept?: (s: number, t: number) => boolean;
 }
 
 /**
@@ -25,13 +41,22 @@ export interface CollapseResult {
  * within the tolerance (pairs farther apart are ignored whatever they contain). Ties in distance go to the
  * kept structure visited first.
  */
-export function collapseDuplicates(n: number, order: ArrayLike<number>, edges: CloseEdges, toleranceAngstrom: number): CollapseResult {
+export function collapseDuplicates(
+  n: number,
+  order: ArrayLike<number>,
+  edges: CloseEdges,
+  toleranceAngstrom: number,
+  chemistry: CollapseChemistry = {},
+): CollapseResult {
+  const classOf = chemistry.classOf;
+  if (classOf && classOf.length !== n) throw new Error(`collapseDuplicates: ${classOf.length} classes for ${n} structures`);
+  const sameClass = (a: number, b: number) => !classOf || classOf[a] === classOf[b];
   const m = edges.i.length;
   if (edges.j.length !== m || edges.d.length !== m) throw new Error('collapseDuplicates: edge arrays differ in length');
   // Compressed adjacency lists of the close pairs, both directions.
   const degree = new Int32Array(n + 1);
   for (let t = 0; t < m; t++) {
-    if (!(edges.d[t] <= toleranceAngstrom)) continue;
+    if (!(edges.d[t] <= toleranceAngstrom) || !sameClass(edges.i[t], edges.j[t])) continue;
     degree[edges.i[t] + 1]++;
     degree[edges.j[t] + 1]++;
   }
@@ -40,7 +65,7 @@ export function collapseDuplicates(n: number, order: ArrayLike<number>, edges: C
   const nbr = new Int32Array(degree[n]);
   const dist = new Float64Array(degree[n]);
   for (let t = 0; t < m; t++) {
-    if (!(edges.d[t] <= toleranceAngstrom)) continue;
+    if (!(edges.d[t] <= toleranceAngstrom) || !sameClass(edges.i[t], edges.j[t])) continue;
     const a = edges.i[t];
     const b = edges.j[t];
     nbr[fill[a]] = b;
@@ -54,17 +79,35 @@ export function collapseDuplicates(n: number, order: ArrayLike<number>, edges: C
   // Visit rank of each kept structure, to break distance ties towards the one visited first.
   const keptRank = new Int32Array(n).fill(-1);
   const kept: number[] = [];
+  const refused: Array<[number, number, number]> = [];
+  const accept = chemistry.accept;
+  const candidates: Array<[number, number]> = [];
   for (let r = 0; r < order.length; r++) {
     const s = order[r];
     let best = -1;
     let bestD = Infinity;
-    for (let e = degree[s]; e < degree[s + 1]; e++) {
-      const t = nbr[e];
-      if (keptRank[t] < 0) continue; // not visited yet, or a duplicate
-      const d = dist[e];
-      if (d < bestD || (d === bestD && keptRank[t] < keptRank[best])) {
-        best = t;
-        bestD = d;
+    if (!accept) {
+      for (let e = degree[s]; e < degree[s + 1]; e++) {
+        const t = nbr[e];
+        if (keptRank[t] < 0) continue; // not visited yet, or a duplicate
+        const d = dist[e];
+        if (d < bestD || (d === bestD && keptRank[t] < keptRank[best])) {
+          best = t;
+          bestD = d;
+        }
+      }
+    } else {
+      // Kept candidates nearest first (ties to the one visited first); the first one accepted wins.
+      candidates.length = 0;
+      for (let e = degree[s]; e < degree[s + 1]; e++) if (keptRank[nbr[e]] >= 0) candidates.push([nbr[e], dist[e]]);
+      candidates.sort((x, y) => x[1] - y[1] || keptRank[x[0]] - keptRank[y[0]]);
+      for (const [t, d] of candidates) {
+        if (accept(s, t)) {
+          best = t;
+          bestD = d;
+          break;
+        }
+        refused.push([s, t, d]);
       }
     }
     if (best >= 0) {
@@ -77,7 +120,7 @@ export function collapseDuplicates(n: number, order: ArrayLike<number>, edges: C
       kept.push(s);
     }
   }
-  return { keptOf, distanceToKept, kept };
+  return { keptOf, distanceToKept, kept, refused };
 }
 
 /**

@@ -34,10 +34,12 @@ export interface Comparisons {
   /** HDBSCAN labels per kept set and options. */
   labels: Array<{ keptKey: string; minFamilySize: number; minSamples: number; dense: boolean; labels: number[] }>;
   embedding: { keptKey: string; method: string; embedding: Embedding } | null;
+  /** Element-aware EMDs the collapse computed for this compared set (positions in it), whatever the tolerance. */
+  elementDistances?: { itemsKey: string; i: number[]; j: number[]; d: number[] } | null;
 }
 
 export function emptyComparisons(): Comparisons {
-  return { pairs: null, keptGraph: null, matrix: null, labels: [], embedding: null };
+  return { pairs: null, keptGraph: null, matrix: null, labels: [], embedding: null, elementDistances: null };
 }
 
 /** Hash of a list of block keys (order matters). */

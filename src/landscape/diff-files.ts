@@ -20,7 +20,12 @@ export const DIFF_STRUCTURE_COLUMNS: ReadonlyArray<Column<DiffStructure>> = [
   { name: 'partner', quantity: 'text', value: (s) => s.partner },
   { name: 'partner_distance', quantity: 'distance', value: (s) => s.partnerDistance },
   { name: 'nearest_other', quantity: 'text', value: (s) => s.nearestOther },
-  { name: 'nearest_other_distance', quantity: 'distance', value: (s) => s.nearestOtherDistance },  { name: 'z_prime', quantity: 'z-prime', value: (s) => s.zPrime },
+  { name: 'nearest_other_distance', quantity: 'distance', value: (s) => s.nearestOtherDistance },
+  { name: 'z_prime', quantity: 'z-prime', value: (s) => s.zPrime },
+  { name: 'composition', quantity: 'text', value: (s) => s.composition },
+  { name: 'flags', quantity: 'text', value: (s) => s.flags.join(' ') },
+  { name: 'flat_minimum_with', quantity: 'text', value: (s) => s.flatPartner },
+  { name: 'flat_minimum_distance', quantity: 'distance', value: (s) => s.flatPartnerDistance },
 ];
 
 export const DIFF_PAIR_COLUMNS: ReadonlyArray<Column<MatchedPair>> = [

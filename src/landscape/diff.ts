@@ -9,10 +9,14 @@
 // 4. Matched pairs are "in both"; the rest "only in A" / "only in B". For matched pairs: energy rank in each
 //    run, energy and density shifts, and Spearman's rank correlation of the energies over the pairs.
 import { matchOneToOne } from './matching.js';
-import { energyRanks, invariantsByIndex } from './load.js';
-import { crossNeighbours, toPdd } from './cross.js';
+import { energyRanks, ensureUniqueIds, invariantsByIndex } from './load.js';
+import { crossNeighbours, toPdd, type CrossResult } from './cross.js';
 import { spearman } from '../cluster/stats.js';
 import type { EnergyUnit, Landscape } from './schema.js';
+import { FLAG_CODES, isFlatPair } from './flags.js';
+
+/** Nearest kept structures of the other run looked at per structure for a flat minimum split across the runs. */
+const FLAT_CANDIDATES = 5;
 
 export interface DiffOptions {
   /** EMD (Å) within which two structures count as the same; default the larger of the runs' duplicate tolerances. */
@@ -57,6 +61,16 @@ export interface DiffStructure {
   nearestOtherIndex: number | null;
   nearestOther: string | null;
   nearestOtherDistance: number | null;
+  /** Reduced formula of the compared points (null from landscapes written before compositions were kept). */
+  composition: string | null;
+  /** Short codes (FLAG_CODES): other-chemistry (the nearest of the other run lies within the tolerance but has
+   * another composition, so it is never a match), flat-minimum (unmatched, and an unmatched structure of the other
+   * run just beyond the tolerance agrees in energy and density: likely one minimum split across the runs). */
+  flags: string[];
+  /** For flat-minimum: the other run's structure (index and id) and the EMD (Å). */
+  flatPartnerIndex: number | null;
+  flatPartner: string | null;
+  flatPartnerDistance: number | null;
 }
 
 export interface MatchedPair {
@@ -89,7 +103,7 @@ export interface LandscapeDiff {
   toleranceAngstrom: number;
   energyUnit: EnergyUnit;
   matching: { objective: string; method: string };
-  counts: { both: number; onlyA: number; onlyB: number; keptA: number; keptB: number };
+  counts: { both: number; onlyA: number; onlyB: number; keptA: number; keptB: number; flatSplit: number; otherChemistry: number };
   /** Spearman's rank correlation of energies over matched pairs with energies in both runs (null when under 2 such pairs or constant). */
   spearman: number | null;
   spearmanPairs: number;
@@ -122,6 +136,10 @@ export async function diffLandscapes(
   const tol = options.toleranceAngstrom ?? Math.max(a.parameters.toleranceAngstrom, b.parameters.toleranceAngstrom);
   if (!Number.isFinite(tol) || tol < 0) throw new Error(`the matching tolerance must be a non-negative number of Å, got ${tol}`);
   const notes: string[] = [];
+  for (const [label, l] of [['Run A', a], ['Run B', b]] as const) {
+    const note = ensureUniqueIds(l, label);
+    if (note) notes.push(note);
+  }
   if (options.toleranceAngstrom === undefined && a.parameters.toleranceAngstrom !== b.parameters.toleranceAngstrom) {
     notes.push(`The runs used different duplicate tolerances (${a.parameters.toleranceAngstrom} Å and ${b.parameters.toleranceAngstrom} Å); the larger one is used for matching.`);
   }
@@ -143,10 +161,24 @@ export async function diffLandscapes(
   const amdA = keptA.map((i) => invA.get(i)!.amd);
   const amdB = keptB.map((i) => invB.get(i)!.amd);
 
-  // Exact nearest across, and all within-tolerance pairs, in both directions.
-  const ab = await crossNeighbours(pddsA, amdA, pddsB, amdB, tol, options.threads);
-  const ba = await crossNeighbours(pddsB, amdB, pddsA, amdA, tol, options.threads);
-  const matching = matchOneToOne(keptA.length, keptB.length, ab.pairs);
+  // Exact nearest across (a few, for flat minima), and all within-tolerance pairs, in both directions.
+  const ab = await crossNeighbours(pddsA, amdA, pddsB, amdB, tol, options.threads, FLAT_CANDIDATES);
+  const ba = await crossNeighbours(pddsB, amdB, pddsA, amdA, tol, options.threads, FLAT_CANDIDATES);
+  // Structures of different composition are never the same crystal, however close their geometry.
+  const compA = keptA.map((i) => a.structures[i].composition);
+  const compB = keptB.map((i) => b.structures[i].composition);
+  const sameChemistry = (x: number, y: number) => compA[x] === null || compB[y] === null || compA[x] === compB[y];
+  if (compA.some((c) => c === null) || compB.some((c) => c === null)) {
+    notes.push('One run was sifted before compositions were recorded, so structures of different composition could not be kept apart; sift it again to compare chemistry.');
+  }
+  const keep: number[] = [];
+  for (let e = 0; e < ab.pairs.a.length; e++) if (sameChemistry(ab.pairs.a[e], ab.pairs.b[e])) keep.push(e);
+  const candidates = {
+    a: Int32Array.from(keep, (e) => ab.pairs.a[e]),
+    b: Int32Array.from(keep, (e) => ab.pairs.b[e]),
+    cost: Float64Array.from(keep, (e) => ab.pairs.cost[e]),
+  };
+  const matching = matchOneToOne(keptA.length, keptB.length, candidates);
 
   const ranksA = energyRanks(a);
   const ranksB = energyRanks(b);
@@ -184,6 +216,7 @@ export async function diffLandscapes(
       partnerDistance: partner >= 0 ? pairCost(matching.pairs, j) : null,
       nearestOtherIndex: near >= 0 ? keptB[near] : null, nearestOther: near >= 0 ? b.structures[keptB[near]].id : null,
       nearestOtherDistance: near >= 0 ? ab.nearestDistance[j] : null,
+      composition: compA[j], flags: [], flatPartnerIndex: null, flatPartner: null, flatPartnerDistance: null,
     });
   });
   keptB.forEach((i, j) => {
@@ -198,8 +231,24 @@ export async function diffLandscapes(
       partnerDistance: partner >= 0 ? pairCost(matching.pairs, partner) : null,
       nearestOtherIndex: near >= 0 ? keptA[near] : null, nearestOther: near >= 0 ? a.structures[keptA[near]].id : null,
       nearestOtherDistance: near >= 0 ? ba.nearestDistance[j] : null,
+      composition: compB[j], flags: [], flatPartnerIndex: null, flatPartner: null, flatPartnerDistance: null,
     });
   });
+  const flagged = flagAcrossRuns(structures, keptA.length, ab, ba, matching, {
+    sameChemistry, tol, scaleB,
+    flat: { toleranceAngstrom: tol, flatEnergy: a.parameters.flatEnergy, flatDensityGPerCm3: a.parameters.flatDensityGPerCm3 },
+    energyA: keptA.map((i) => a.structures[i].energy), energyB: keptB.map((i) => b.structures[i].energy),
+    densityA: keptA.map((i) => a.structures[i].densityGPerCm3), densityB: keptB.map((i) => b.structures[i].densityGPerCm3),
+  });
+  if (flagged.flatSplit > 0) {
+    notes.push(
+      `${flagged.flatSplit} pair(s) split across the runs (one only in A, one only in B) lie just beyond the tolerance with the same energy and density ` +
+        `(flag ${FLAG_CODES.flatMinimum}): likely one minimum on a flat energy surface, not a structure one run missed.`,
+    );
+  }
+  if (flagged.otherChemistry > 0) {
+    notes.push(`${flagged.otherChemistry} structure(s) have a structure of another composition in the other run within the tolerance (flag ${FLAG_CODES.otherChemistry}); they are never matched.`);
+  }
 
   // Spearman's rank correlation of the energies of matched pairs (both energies known).
   const withE = pairs.filter((p) => p.energyRelA !== null && p.energyRelB !== null);
@@ -223,13 +272,75 @@ export async function diffLandscapes(
       objective: 'one-to-one pairs with EMD within the tolerance: as many pairs as possible, then the least total EMD',
       method: 'Hungarian algorithm (Kuhn 1955; Munkres 1957) on each connected group of within-tolerance pairs',
     },
-    counts: { both, onlyA: keptA.length - both, onlyB: keptB.length - both, keptA: keptA.length, keptB: keptB.length },
+    counts: {
+      both, onlyA: keptA.length - both, onlyB: keptB.length - both, keptA: keptA.length, keptB: keptB.length,
+      flatSplit: flagged.flatSplit, otherChemistry: flagged.otherChemistry,
+    },
     spearman: rho,
     spearmanPairs: withE.length,
     pairs,
     structures,
     notes,
   };
+}
+
+/**
+ * Flags of the diff's structures (A's first, then B's): other-chemistry when the nearest of the other run lies
+ * within the tolerance with another composition; flat-minimum when an unmatched structure has an unmatched one
+ * of the other run among its nearest few that is just beyond the tolerance with the same energy (absolute, in
+ * A's unit: both runs must use one energy model) and density, by run A's flat-minimum thresholds.
+ */
+function flagAcrossRuns(
+  structures: DiffStructure[],
+  nA: number,
+  ab: CrossResult,
+  ba: CrossResult,
+  matching: { partnerOfA: Int32Array; partnerOfB: Int32Array },
+  o: {
+    sameChemistry: (x: number, y: number) => boolean;
+    tol: number;
+    scaleB: number;
+    flat: { toleranceAngstrom: number; flatEnergy: number; flatDensityGPerCm3: number };
+    energyA: Array<number | null>;
+    energyB: Array<number | null>;
+    densityA: Array<number | null>;
+    densityB: Array<number | null>;
+  },
+): { flatSplit: number; otherChemistry: number } {
+  let flatSplit = 0;
+  let otherChemistry = 0;
+  const eB = o.energyB.map((e) => (e === null ? null : e * o.scaleB));
+  for (const [side, cross, own, other] of [
+    ['A', ab, matching.partnerOfA, matching.partnerOfB],
+    ['B', ba, matching.partnerOfB, matching.partnerOfA],
+  ] as const) {
+    const n = own.length;
+    for (let j = 0; j < n; j++) {
+      const st = structures[side === 'A' ? j : nA + j];
+      const near = cross.nearest[j];
+      const chem = (x: number) => (side === 'A' ? o.sameChemistry(j, x) : o.sameChemistry(x, j));
+      if (near >= 0 && cross.nearestDistance[j] <= o.tol && !chem(near)) {
+        st.flags.push(FLAG_CODES.otherChemistry);
+        otherChemistry++;
+      }
+      if (own[j] >= 0) continue;
+      for (let c = 0; c < cross.found[j]; c++) {
+        const t = cross.neighbours[j * cross.count + c];
+        const d = cross.neighbourDistance[j * cross.count + c];
+        if (other[t] >= 0 || !chem(t)) continue;
+        const [ea, eb, da, db] = side === 'A' ? [o.energyA[j], eB[t], o.densityA[j], o.densityB[t]] : [eB[j], o.energyA[t], o.densityB[j], o.densityA[t]];
+        if (!isFlatPair(d, ea, eb, da, db, o.flat)) continue;
+        const partner = structures[side === 'A' ? nA + t : t];
+        st.flags.push(FLAG_CODES.flatMinimum);
+        st.flatPartnerIndex = partner.index;
+        st.flatPartner = partner.id;
+        st.flatPartnerDistance = d;
+        if (side === 'A') flatSplit++;
+        break;
+      }
+    }
+  }
+  return { flatSplit, otherChemistry };
 }
 
 /** Factor taking energies in `from` into `to` (kJ/mol; kcal = 4.184 kJ, NIST SP 811; eV·N_A = 96.485 332 12 kJ/mol, CODATA 2018). */

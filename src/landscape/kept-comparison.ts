@@ -3,6 +3,7 @@
 // against a landscape sifted with hydrogens) they are computed now from unique.cif, which holds the kept blocks
 // exactly as read, and kept in the invariants cache beside the landscape (src/landscape/cache.ts, the same files
 // `sift` uses, keyed by the SHA-256 of each block's text), so the next locate reads them back.
+import { reducedComposition } from '../geometry/composition.js';
 import { existsSync } from 'node:fs';
 import { dirname, join } from 'node:path';
 import type { HydrogenPolicy, Landscape } from './schema.js';
@@ -99,7 +100,12 @@ export async function keptWithPolicy(
     });
     const invariants = await computeInvariants(sets.map((s) => s.set), k, { threads: opts.threads });
     sets.forEach((s, m) => {
-      loaded.entries.set(keys[s.j], { pdd: invariants[m].pdd, atoms: s.set.motif.length / 3, facts: null, notes: s.notes, symmetryToleranceAngstrom: null });
+      const elements = invariants[m].elements;
+      if (!elements) throw new Error(`internal: no elements for the rows of ${records[s.j].source}`);
+      loaded.entries.set(keys[s.j], {
+        pdd: invariants[m].pdd, atoms: s.set.motif.length / 3, facts: null, notes: s.notes, symmetryToleranceAngstrom: null,
+        composition: reducedComposition(s.set.atomicNumbers), elements,
+      });
     });
     if (cacheDir) saveCache(cacheDir, params, loaded.entries);
   }

@@ -2,8 +2,15 @@
 // `diff` and `locate` can trust every index and array length they use. Each problem names the file and the field.
 import { existsSync, readFileSync, statSync } from 'node:fs';
 import { join } from 'node:path';
-import type { KeptInvariants, Landscape, StructureRow } from './schema.js';
+import type { EnergyUnit, KeptInvariants, Landscape, StructureRow } from './schema.js';
+import { DEFAULT_ENERGY_MISMATCH_KJ_PER_MOL, DEFAULT_FLAT_DENSITY_G_PER_CM3, DEFAULT_FLAT_ENERGY_KJ_PER_MOL, inUnit } from './flags.js';
+import { sharedNameNote, uniqueIds } from './unique-ids.js';
 
+/** Row fields added after the first landscapes were written, with the value an older file stands for. */
+const ROW_DEFAULTS: ReadonlyArray<[string, unknown]> = [
+  ['flags', []], ['otherChemistryIndex', null], ['otherChemistry', null], ['otherComposition', null], ['otherChemistryDistance', null],
+  ['energyOffset', null], ['flatPartnerIndices', []], ['flatPartners', []], ['flatPartnerDistance', null],
+];
 const STATUSES = new Set(['kept', 'duplicate', 'rejected', 'outside-window']);
 const UNITS = new Set(['kJ/mol', 'kcal/mol', 'eV']);
 
@@ -55,6 +62,15 @@ export function validateLandscape(data: unknown, where: string): Landscape {
   if (p.energyBasis === undefined) p.energyBasis = 'molecule';
   else if (p.energyBasis !== 'molecule' && p.energyBasis !== 'cell') fail('"parameters.energyBasis"', 'must be "molecule" or "cell"');
 
+  // Parameters added after the first landscapes were written: the behaviour those runs had, defaults for the flags.
+  if (p.toleranceMode === undefined) p.toleranceMode = 'given';
+  if (p.elementCheck === undefined) p.elementCheck = false;
+  const unit = p.energyUnit as EnergyUnit;
+  if (p.energyMismatch === undefined) p.energyMismatch = inUnit(DEFAULT_ENERGY_MISMATCH_KJ_PER_MOL, unit);
+  if (p.flatEnergy === undefined) p.flatEnergy = inUnit(DEFAULT_FLAT_ENERGY_KJ_PER_MOL, unit);
+  if (p.flatDensityGPerCm3 === undefined) p.flatDensityGPerCm3 = DEFAULT_FLAT_DENSITY_G_PER_CM3;
+  if (data.toleranceChoice === undefined) data.toleranceChoice = null;
+
   const rows = data.structures;
   if (!Array.isArray(rows)) return fail('"structures"', 'is missing or not a list');
   const n = rows.length;
@@ -71,6 +87,11 @@ export function validateLandscape(data: unknown, where: string): Landscape {
     if (s.status === 'kept' && s.keptIndex !== i) fail(`${f}.keptIndex`, `must be ${i} for a kept structure`);
     if (!Array.isArray(s.formulas)) fail(`${f}.formulas`, 'must be a list');
     if (!Array.isArray(s.notes)) fail(`${f}.notes`, 'must be a list');
+    // Landscapes written before rows carried their composition and flags read as unknown and unflagged.
+    if (s.composition === undefined) s.composition = null;
+    else if (s.composition !== null && typeof s.composition !== 'string') fail(`${f}.composition`, 'must be a string or null');
+    for (const [key, empty] of ROW_DEFAULTS) if (s[key] === undefined) s[key] = structuredClone(empty);
+    if (!Array.isArray(s.flags)) fail(`${f}.flags`, 'must be a list');
     // Landscapes written before rows carried their cell, or their symmetry, read as unknown.
     if (s.cell === undefined) s.cell = null;
     if (s.symmetry === undefined) s.symmetry = null;
@@ -124,8 +145,33 @@ export function validateLandscape(data: unknown, where: string): Landscape {
   for (const k2 of kept as number[]) {
     if (!withInvariants.has(k2)) fail('"invariants.kept"', `has no entry for kept structure ${k2} (${(rows[k2] as StructureRow).id})`);
   }
+  if (data.flagCounts === undefined) data.flagCounts = { otherChemistryPairs: 0, otherChemistry: 0, energyMismatch: 0, flatMinimumPairs: 0, flatMinimum: 0 };
   if (data.lowestEnergy !== null && !isFiniteNumber(data.lowestEnergy)) fail('"lowestEnergy"', 'must be a number or null');
   return data as unknown as Landscape;
+}
+
+/**
+ * Landscapes written before ids were made unique can repeat an id (one block name in two input files). Give
+ * such structures the ids sift gives them now (src/landscape/unique-ids.ts), in place, and re-derive the
+ * references by index, so that diff and locate tables name one structure each. Returns a note, or null when
+ * every id was already unique.
+ */
+export function ensureUniqueIds(landscape: Landscape, label: string): string | null {
+  const rows = landscape.structures;
+  const { ids, shared } = uniqueIds(rows.map((r) => r.id));
+  let renamed = 0;
+  rows.forEach((r, i) => {
+    if (ids[i] === r.id) return;
+    r.notes = [...r.notes, sharedNameNote(r.id, shared[i], ids[i])];
+    r.id = ids[i];
+    renamed++;
+  });
+  if (renamed === 0) return null;
+  for (const r of rows) {
+    if (r.status === 'duplicate' && typeof r.keptIndex === 'number' && rows[r.keptIndex]) r.duplicateOf = rows[r.keptIndex].id;
+    if (typeof r.nearestIndex === 'number' && rows[r.nearestIndex]) r.nearest = rows[r.nearestIndex].id;
+  }
+  return `${label} repeats ${renamed} structure id(s) (block names shared by several inputs); they are called name~n here, n their place in input order.`;
 }
 
 /** The stored invariants of each kept structure, keyed by structure index. */

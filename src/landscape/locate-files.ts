@@ -18,11 +18,15 @@ interface LocateLine {
   reason: string | null;
 }
 
-/** found (the matched row), not found (the nearest of a reference not found), farther (the other neighbours). */
+/**
+ * found (the matched row), not found (the nearest of a reference not found), farther (the other neighbours; the nearest
+ * too when it has another composition than the reference and a farther one was found).
+ */
 function verdict(l: LocateLine): string {
   if (l.reason !== null) return 'unusable';
   if (!l.ref || !l.hit) return 'not found';
-  if (l.hit.order === 1) return l.ref.found ? 'found' : 'not found';
+  if (l.ref.match !== null && l.ref.match.index === l.hit.index) return 'found';
+  if (l.hit.order === 1) return l.ref.found ? 'farther' : 'not found';
   return 'farther';
 }
 
@@ -58,6 +62,8 @@ export const LOCATE_COLUMNS: ReadonlyArray<Column<LocateLine>> = [
   { name: 'z_prime', quantity: 'z-prime', value: (l) => l.hit?.zPrime ?? null },
   { name: 'reference_space_group', quantity: 'text', value: (l) => l.ref?.spaceGroup ?? null },
   { name: 'reference_z_prime', quantity: 'z-prime', value: (l) => l.ref?.zPrime ?? null },
+  { name: 'reference_composition', quantity: 'text', value: (l) => l.ref?.composition ?? null },
+  { name: 'composition', quantity: 'text', value: (l) => l.hit?.composition ?? null },
   { name: 'rule', quantity: 'text', value: (l) => (first(l) ? l.ref!.decision.rule : null) },
   { name: 'clarity', quantity: 'text', value: (l) => (first(l) ? l.ref!.decision.clarity : null) },
   { name: 'margin', quantity: 'ratio', value: (l) => (first(l) ? l.ref!.decision.margin : null) },

@@ -5,7 +5,8 @@
 // their energy rank and energy above the lowest; and whether it was found, by locate's own criterion
 // (found-criterion.ts: a tolerance for experiment-versus-prediction differences, and the gap to the second nearest).
 import { crossNeighbours } from './cross.js';
-import { energyRanks } from './load.js';
+import { energyRanks, ensureUniqueIds } from './load.js';
+import { sharedNameNote, uniqueIds } from './unique-ids.js';
 import type { EnergyUnit, HydrogenPolicy, Landscape } from './schema.js';
 import type { Pdd } from '../types.js';
 import { amd } from '../invariants/amd.js';
@@ -21,6 +22,8 @@ export interface ReferenceInvariants {
   source: string;
   pdd: Pdd;
   amd: number[];
+  /** Reduced formula of the compared points (src/geometry/composition.ts). */
+  composition: string;
   densityGPerCm3: number | null;
   /** The space group the reference has (detected within the landscape's symmetry tolerance, or declared) and its Z'. */
   spaceGroup: string | null;
@@ -66,19 +69,28 @@ export interface LocateHit {
   spaceGroup: string | null;
   zPrime: number | null;
   family: number;
+  /** The kept structure's composition (null in landscapes written before compositions were kept). */
+  composition: string | null;
 }
 
 export interface LocatedReference {
   id: string;
   source: string;
+  /** Whether a kept structure of the reference's composition lies within the tolerance. */
   found: boolean;
-  /** The kept structure matched (the nearest, when found). */
+  /** The kept structure matched: the nearest listed one of the reference's composition, when found. */
   match: LocateHit | null;
   /** Which rule decided and how clearly (found-criterion.ts). */
   decision: FoundDecision;
   /** The decision in words. */
   decisionText: string;
   nearest: LocateHit[];
+  composition: string;
+  /**
+   * When the nearest kept structure has another composition than the reference: its id (a structure of other
+   * chemistry with the same geometry never counts as found).
+   */
+  nearestOtherComposition: string | null;
   densityGPerCm3: number | null;
   spaceGroup: string | null;
   volumePerAtomA3: number | null;
@@ -101,7 +113,7 @@ export interface LocateResult {
   energyUnit: EnergyUnit;
   keptCount: number;
   references: LocatedReference[];
-  /** Run-level notes (recomputed invariants, a scale that could not be applied). */
+  /** Run-level notes (recomputed invariants, a scale that could not be applied, repeated ids made unique). */
   notes: string[];
   /** Reference blocks that could not be read or used, with the reason (filled by the caller that read them). */
   unusable: Array<{ source: string; line: number; reason: string }>;
@@ -144,6 +156,12 @@ export async function locateReferences(
   const refLength = references.map((r) => (scale === 'volume' ? lengthScale(r.volumePerAtomA3 as number) : 1));
   const targets = kept.pdds.map((p, t) => (scale === 'volume' ? scaledPdd(p, keptLength[t]) : p));
   const queries = references.map((r, q) => (scale === 'volume' ? scaledPdd(r.pdd, refLength[q]) : r.pdd));
+  const landscapeNote = ensureUniqueIds(landscape, landscapePath);
+  if (landscapeNote) notes.push(landscapeNote);
+  // References sharing a block name get ids of their own, as sift gives its structures.
+  const refIds = uniqueIds(references.map((r) => r.id));
+  const renamedRefs = refIds.ids.filter((id, q) => id !== references[q].id).length;
+  if (renamedRefs > 0) notes.push(`${renamedRefs} reference(s) share a block name with another reference; they are called name~n here.`);
   const cross = await crossNeighbours(
     queries, queries.map((p) => Array.from(amd(p))), targets, targets.map((p) => Array.from(amd(p))), -1, options.threads, searched,
   );
@@ -165,14 +183,24 @@ export async function locateReferences(
         scaledEmdAngstrom: scale === 'volume' ? distance : null,
         scaleFactor: vr !== null && vk !== null ? scaleFactor(vr, vk) : null,
         energyRank: ranks.get(s.index) ?? null, energyRel: s.energyRel, densityGPerCm3: s.densityGPerCm3,
-        spaceGroup: s.spaceGroup, zPrime: s.zPrime ?? null, family: s.family,
+        spaceGroup: s.spaceGroup, zPrime: s.zPrime ?? null, family: s.family, composition: s.composition,
       });
     }
-    const decision = decideFound(hits[0]?.distanceAngstrom ?? null, hits[1]?.distanceAngstrom ?? null, criterion);
+    // Structures of another composition are never the reference, however close (geometry only in PDD and EMD): the
+    // found criterion looks at the nearest and second-nearest of the reference's composition.
+    const sameChemistry = (h: LocateHit) => h.composition === null || h.composition === r.composition;
+    const candidates = hits.filter(sameChemistry);
+    const decision = decideFound(candidates[0]?.distanceAngstrom ?? null, candidates[1]?.distanceAngstrom ?? null, criterion);
+    const id = refIds.ids[q];
     return {
-      id: r.id, source: r.source, found: decision.found, match: decision.found ? hits[0] : null, decision,
-      decisionText: decisionPhrase(decision, criterion), nearest: hits.slice(0, count),
-      densityGPerCm3: r.densityGPerCm3, spaceGroup: r.spaceGroup, volumePerAtomA3: r.volumePerAtomA3, zPrime: r.zPrime, notes: r.notes,
+      id, source: r.source, found: decision.found, match: decision.found ? candidates[0] : null, decision,
+      decisionText: candidates.length === 0 && hits.length > 0
+        ? `no kept structure of its composition (${r.composition}) among the ${hits.length} nearest`
+        : decisionPhrase(decision, criterion),
+      nearest: hits.slice(0, count), composition: r.composition,
+      nearestOtherComposition: hits.length > 0 && !sameChemistry(hits[0]) ? hits[0].id : null,
+      densityGPerCm3: r.densityGPerCm3, spaceGroup: r.spaceGroup, volumePerAtomA3: r.volumePerAtomA3, zPrime: r.zPrime,
+      notes: id === r.id ? r.notes : [...r.notes, sharedNameNote(r.id, refIds.shared[q], id)],
     };
   });
   return {
@@ -188,9 +216,12 @@ export function locateSentence(r: LocatedReference, unit: EnergyUnit): string {
     `${h.id} (${h.scaledEmdAngstrom !== null ? `scale-free EMD ${fmt(h.distanceAngstrom)} Å, EMD ${fmt(h.emdAngstrom)} Å, scale ${h.scaleFactor!.toFixed(4)}` : `EMD ${fmt(h.emdAngstrom)} Å`}` +
     (h.energyRank !== null ? `, energy rank ${h.energyRank}` : '') +
     (h.energyRel !== null ? `, ${h.energyRel.toFixed(2)} ${unit} above the lowest` : '') + ')';
+  const other = r.nearestOtherComposition !== null && r.nearest.length > 0
+    ? ` Note: the nearest kept structure, ${fmtHit(r.nearest[0])}, has another composition (${r.nearest[0].composition}; the reference is ${r.composition}): same geometry, other chemistry.`
+    : '';
   if (r.nearest.length === 0) return `${r.id}: not found; the landscape keeps no structures.`;
-  if (r.found && r.match) return `${r.id}: found as ${fmtHit(r.match)}: ${r.decisionText}.`;
-  return `${r.id}: not found: ${r.decisionText}; nearest ${fmtHit(r.nearest[0])}.`;
+  if (r.found && r.match) return `${r.id}: found as ${fmtHit(r.match)}: ${r.decisionText}.${other}`;
+  return `${r.id}: not found: ${r.decisionText}; nearest ${fmtHit(r.nearest[0])}.${other}`;
 }
 
 function fmt(x: number): string {

@@ -6,6 +6,7 @@ import { toPeriodicSet } from '../geometry/periodic-set.js';
 import { crystalFacts } from '../geometry/facts.js';
 import { pdd } from '../invariants/pdd.js';
 import { amd } from '../invariants/amd.js';
+import { reducedComposition } from '../geometry/composition.js';
 import type { ReferenceInvariants } from './locate.js';
 import type { HydrogenPolicy } from './schema.js';
 import type { CrystalFacts, CrystalRecord } from '../types.js';
@@ -52,6 +53,7 @@ export function referenceInvariants(record: CrystalRecord, k: number, hydrogens:
     source: record.source,
     pdd: p,
     amd: Array.from(amd(p)),
+    composition: reducedComposition(set.atomicNumbers),
     densityGPerCm3: facts?.densityGPerCm3 ?? null,
     spaceGroup: facts?.symmetry.symbol ?? record.spaceGroup,
     zPrime: facts?.symmetry.zPrime ?? null,

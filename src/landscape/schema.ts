@@ -18,6 +18,18 @@ export interface SiftParameters {
   toleranceAngstrom: number;
   /** Symmetry tolerance: distance in Å within which atoms must map onto atoms for an operation to count. */
   symmetryToleranceAngstrom: number;
+  /** 'given' (a number, or the default) or 'auto' (chosen from the run's own gap; `Landscape.toleranceChoice`). */
+  toleranceMode: 'given' | 'auto';
+  /**
+   * Whether two structures of one composition must also agree within the tolerance under the element-aware EMD
+   * (rows labelled by the element of their centre atom) to be duplicates.
+   */
+  elementCheck: boolean;
+  /** Duplicates whose energy lies further than this from their group's median are flagged (in `energyUnit`). */
+  energyMismatch: number;
+  /** Kept pairs just beyond the tolerance within this energy and density of each other are flagged as one flat minimum. */
+  flatEnergy: number;
+  flatDensityGPerCm3: number;
   /** HDBSCAN minimum family size. */
   minFamilySize: number;
   /** HDBSCAN minimum samples (core distance neighbour count). */
@@ -71,6 +83,11 @@ export interface StructureRow {
   z: number | null;
   zPrime: number | null;
   formulas: string[];
+  /**
+   * Reduced formula (Hill order) of the compared points, after the hydrogen policy (src/geometry/composition.ts);
+   * structures of different composition are never duplicates. Null for structures that were never built.
+   */
+  composition: string | null;
   /** Structure index of the kept structure of its group (itself for kept ones, null for rejected/outside-window). */
   keptIndex: number | null;
   /** Id of the kept structure it was collapsed into (duplicates only). */
@@ -91,6 +108,27 @@ export interface StructureRow {
   writtenIn: Array<{ spaceGroup: string; count: number }>;
   /** Reader and energy notes a user should see (disorder policy applied, hydrogens dropped, no energy, ...). */
   notes: string[];
+  /** Short codes of what deserves a look (FLAG_CODES in src/landscape/flags.ts; meanings in the README). */
+  flags: string[];
+  /**
+   * The nearest other structure within the duplicate tolerance whose chemistry differs (another composition, or
+   * the same composition with atoms of other elements at the same places), its composition and EMD (Å); null
+   * when there is none. Identical geometry with other chemistry is a data or atom-assignment problem.
+   */
+  otherChemistryIndex: number | null;
+  otherChemistry: string | null;
+  otherComposition: string | null;
+  otherChemistryDistance: number | null;
+  /** Energy minus its duplicate group's median energy (the lower middle value for even sizes), in `energyUnit`. */
+  energyOffset: number | null;
+  /**
+   * Kept structures that look like the same minimum on a flat energy surface: just beyond the tolerance,
+   * with energy and density far closer than distinct minima (structure indices and ids, nearest first, and the
+   * EMD in Å to the nearest of them). Empty for others.
+   */
+  flatPartnerIndices: number[];
+  flatPartners: string[];
+  flatPartnerDistance: number | null;
 }
 
 export interface RowSymmetry {
@@ -159,6 +197,44 @@ export interface ConvergenceCurve {
 /** Whether a search still finds new low-energy structures near its end. */
 export type ConvergenceVerdict = 'growing' | 'slowing' | 'levelled-off';
 
+/** How many rows carry each flag, and how many pairs stand behind the pair flags (src/landscape/flags.ts). */
+export interface FlagCounts {
+  /** Pairs within the tolerance with different chemistry, and rows flagged for it. */
+  otherChemistryPairs: number;
+  otherChemistry: number;
+  /** Members of duplicate groups far from their group's median energy. */
+  energyMismatch: number;
+  /** Pairs of kept structures that look like one flat minimum, and kept structures flagged for it. */
+  flatMinimumPairs: number;
+  flatMinimum: number;
+}
+
+/** How `--tolerance auto` chose the tolerance from the run's own distances (src/landscape/auto-tolerance.ts). */
+export interface ToleranceChoice {
+  /** The tolerance used (Å): inside the gap, or the fixed default when no clear gap was found. */
+  chosenAngstrom: number;
+  /** The gap: the longest edge below it and the shortest above it (Å); null when no gap was found. */
+  gapLowAngstrom: number | null;
+  gapHighAngstrom: number | null;
+  /** Width of the gap in decades, log10(high / low). */
+  gapDecades: number | null;
+  /** True when no distance lies above the noise within the search radius: the gap reaches at least that far. */
+  gapOpen: boolean;
+  /** The closest two kept structures turned out to be this far apart (Å), after the collapse; null with fewer than two. */
+  closestKeptAngstrom: number | null;
+  /** Whether the gap is wide enough to trust; when not, `warning` says why and the default is used. */
+  clear: boolean;
+  warning: string | null;
+  /** Pairs were searched within this EMD (Å); edges beyond it are not known. */
+  searchRadiusAngstrom: number;
+  /**
+   * The distribution searched: lengths (Å, ascending) of the single-linkage (minimum spanning forest) edges
+   * within the search radius, among structures of one composition: within a group each structure's nearest
+   * neighbour, between groups each group's nearest other group.
+   */
+  edgeLengthsAngstrom: number[];
+}
+
 export interface Landscape {
   format: 'polysift-landscape';
   formatVersion: 1;
@@ -167,6 +243,10 @@ export interface Landscape {
   run: { createdAt: string; timingsSeconds: Record<string, number> };
   parameters: SiftParameters;
   counts: { input: number; kept: number; duplicate: number; rejected: number; outsideWindow: number };
+  /** Flags of the run (rows carry the codes); absent in landscapes written before flags, read as zeros. */
+  flagCounts: FlagCounts;
+  /** How the duplicate tolerance was chosen with `auto`; null when it was given (or the default). */
+  toleranceChoice: ToleranceChoice | null;
   /** Lowest energy among usable structures (null without energies). */
   lowestEnergy: number | null;
   structures: StructureRow[];

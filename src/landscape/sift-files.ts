@@ -26,6 +26,8 @@ interface UniqueLine {
   densityMin: number | null;
   densityMax: number | null;
   maxDistanceToKept: number;
+  /** Flags carried by any member of the group, each with its count (e.g. "energy-mismatch:2"). */
+  groupFlags: string;
 }
 
 /** Family number, or null (an empty cell) for a structure in no family. */
@@ -72,6 +74,15 @@ export const STRUCTURES_COLUMNS: ReadonlyArray<Column<StructureLine>> = [
   { name: 'space_group_declared', quantity: 'text', value: ({ r }) => r.symmetry?.declared ?? null },
   { name: 'space_group_source', quantity: 'text', value: ({ r }) => r.symmetry?.source ?? null },
   { name: 'symmetry_note', quantity: 'text', value: ({ r }) => r.symmetry?.note ?? null },
+  // Chemistry and flags (src/landscape/flags.ts).
+  { name: 'composition', quantity: 'text', value: ({ r }) => r.composition },
+  { name: 'flags', quantity: 'text', value: ({ r }) => r.flags.join(' ') },
+  { name: 'other_chemistry_neighbour', quantity: 'text', value: ({ r }) => r.otherChemistry },
+  { name: 'other_chemistry_composition', quantity: 'text', value: ({ r }) => r.otherComposition },
+  { name: 'other_chemistry_distance', quantity: 'distance', value: ({ r }) => r.otherChemistryDistance },
+  { name: 'energy_offset', quantity: 'energy', value: ({ r }) => r.energyOffset },
+  { name: 'flat_minimum_with', quantity: 'text', value: ({ r }) => r.flatPartners.join(' ') },
+  { name: 'flat_minimum_distance', quantity: 'distance', value: ({ r }) => r.flatPartnerDistance },
 ];
 
 export const UNIQUE_COLUMNS: ReadonlyArray<Column<UniqueLine>> = [
@@ -95,6 +106,9 @@ export const UNIQUE_COLUMNS: ReadonlyArray<Column<UniqueLine>> = [
   { name: 'formula', quantity: 'text', value: ({ r }) => r.formulas.join(' ') },
   { name: 'space_group_declared', quantity: 'text', value: ({ r }) => r.symmetry?.declared ?? null },
   { name: 'written_in', quantity: 'text', value: ({ r }) => formatWrittenIn(r.writtenIn) },
+  { name: 'composition', quantity: 'text', value: ({ r }) => r.composition },
+  { name: 'flags', quantity: 'text', value: ({ r }) => r.flags.join(' ') },
+  { name: 'group_flags', quantity: 'text', value: (u) => u.groupFlags },
   ...cellColumns((u: UniqueLine) => u.r),
 ];
 
@@ -146,9 +160,16 @@ export function uniqueCsv(l: Landscape): string {
     };
     const [energyMin, energyMax] = range((x) => x.energy);
     const [densityMin, densityMax] = range((x) => x.densityGPerCm3);
-    return { r, energyMin, energyMax, densityMin, densityMax, maxDistanceToKept: Math.max(...g.map((x) => x.distanceToKept ?? 0)) };
+    return { r, energyMin, energyMax, densityMin, densityMax, maxDistanceToKept: Math.max(...g.map((x) => x.distanceToKept ?? 0)), groupFlags: groupFlags(g) };
   });
   return tableCsv(UNIQUE_COLUMNS, lines, l.parameters.energyUnit);
+}
+
+/** Flags carried by any member of a group, each with its count (e.g. "energy-mismatch:2"). */
+function groupFlags(g: StructureRow[]): string {
+  const count = new Map<string, number>();
+  for (const r of g) for (const f of r.flags) count.set(f, (count.get(f) ?? 0) + 1);
+  return [...count].map(([f, c]) => `${f}:${c}`).join(' ');
 }
 
 /** The kept blocks' text as read, lowest energy first, separated by one blank line. */

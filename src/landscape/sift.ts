@@ -13,19 +13,24 @@ import { readStage } from './stages/read.js';
 import { energiesStage } from './stages/energies.js';
 import { energyBasisStage } from './stages/energy-basis.js';
 import { periodicSetsStage } from './stages/periodic-sets.js';
+import { localExecutor } from '../parallel/executor.js';
 import { windowStage } from './stages/window.js';
 import { invariantsStage } from './stages/invariants.js';
 import { duplicatesStage } from './stages/duplicates.js';
 import { neighboursStage } from './stages/neighbours.js';
 import { familiesStage } from './stages/families.js';
+import { flagsStage } from './stages/flags.js';
 import { buildLandscape } from './stages/landscape.js';
+import { renameBlockText } from './unique-ids.js';
+import { DEFAULT_ENERGY_MISMATCH_KJ_PER_MOL, DEFAULT_FLAT_DENSITY_G_PER_CM3, DEFAULT_FLAT_ENERGY_KJ_PER_MOL, inUnit } from './flags.js';
 
 export type { SiftOptions } from './stages/state.js';
 export { PAIR_RADIUS_FACTOR } from './stages/duplicates.js';
 export { DENSE_LIMIT, EMBED_LIMIT, LANDMARKS } from './stages/families.js';
 
 /**
- * Default duplicate tolerance, EMD in Å, chosen from measurements on the generator's landscapes
+ * Fixed duplicate tolerance, EMD in Å: what `auto` (the default, src/landscape/auto-tolerance.ts) falls back to
+ * when a run shows no clear gap, and what a run searches pairs around (twice it). Chosen from measurements on the generator's landscapes
  * (`npm run bench`, module sift-tolerance; k = 100, hydrogens kept). Copies of one minimum with optimiser-like
  * noise of sigma Å per coordinate (plus 2e-4 relative on cell lengths) lie at most 0.008 / 0.014 / 0.020 /
  * 0.031 Å apart for sigma = 0.001 / 0.002 / 0.003 / 0.005 Å; distinct packings whose molecule is turned by only
@@ -50,6 +55,7 @@ export const SIFT_STAGES: ReadonlyArray<readonly [string, (s: SiftState) => Prom
   ['invariants', invariantsStage],
   ['duplicates', duplicatesStage],
   ['neighbours', neighboursStage],
+  ['flags', flagsStage],
   ['families and map', familiesStage],
 ];
 
@@ -81,7 +87,7 @@ export async function sift(opts: SiftOptions): Promise<SiftRun> {
   timings.total = Math.round(performance.now() - t0) / 1000;
   return {
     landscape,
-    keptTexts: s.keptLocal.map((p) => s.items[p].text),
+    keptTexts: s.keptLocal.map((p) => renameBlockText(s.items[p].text, s.items[p].row.block, s.items[p].row.id)),
     energyTable: s.energyTable,
     energyAssignment: s.energyAssignment,
     messages: s.messages,
@@ -90,15 +96,23 @@ export async function sift(opts: SiftOptions): Promise<SiftRun> {
 }
 
 export function initialState(opts: SiftOptions): SiftState {
+  const unit = opts.energyUnit ?? 'kJ/mol';
   const params: SiftParameters = {
     k: opts.k ?? DEFAULT_K,
     hydrogens: opts.hydrogens ?? 'keep',
-    toleranceAngstrom: opts.toleranceAngstrom ?? DEFAULT_TOLERANCE_ANGSTROM,
+    // Auto (the default) lets the duplicates stage choose; the fixed default stands in until then, and stays when
+    // the run shows no clear gap.
+    toleranceAngstrom: typeof opts.toleranceAngstrom === 'number' ? opts.toleranceAngstrom : DEFAULT_TOLERANCE_ANGSTROM,
+    toleranceMode: typeof opts.toleranceAngstrom === 'number' ? 'given' : 'auto',
+    elementCheck: opts.elementCheck ?? true,
+    energyMismatch: opts.energyMismatch ?? inUnit(DEFAULT_ENERGY_MISMATCH_KJ_PER_MOL, unit),
+    flatEnergy: opts.flatEnergy ?? inUnit(DEFAULT_FLAT_ENERGY_KJ_PER_MOL, unit),
+    flatDensityGPerCm3: opts.flatDensityGPerCm3 ?? DEFAULT_FLAT_DENSITY_G_PER_CM3,
     symmetryToleranceAngstrom: opts.symmetryToleranceAngstrom ?? DEFAULT_SYMMETRY_TOLERANCE_ANGSTROM,
     minFamilySize: opts.minFamilySize ?? DEFAULT_MIN_FAMILY_SIZE,
     minSamples: opts.minSamples ?? opts.minFamilySize ?? DEFAULT_MIN_FAMILY_SIZE,
     energyWindow: opts.energyWindow ?? null,
-    energyUnit: opts.energyUnit ?? 'kJ/mol',
+    energyUnit: unit,
     energyBasis: opts.energyBasis ?? 'molecule',
     neighbours: opts.neighbours ?? DEFAULT_NEIGHBOURS,
     inputs: opts.inputs.slice(),
@@ -106,9 +120,14 @@ export function initialState(opts: SiftOptions): SiftState {
     energyItem: opts.energyItem ?? null,
   };
   checkParameters(params);
+  if (opts.blocksPerJob !== undefined && !(Number.isInteger(opts.blocksPerJob) && opts.blocksPerJob >= 1))
+    throw new Error(`the blocks per job must be a whole number >= 1, not ${opts.blocksPerJob}`);
+  const threads = opts.threads ?? defaultThreads();
   return {
     params,
-    threads: opts.threads ?? defaultThreads(),
+    threads,
+    executor: opts.executor ?? localExecutor(threads),
+    blocksPerJob: opts.blocksPerJob ?? null,
     cacheDir: opts.cacheDir ?? null,
     denseLimit: opts.denseLimit,
     idColumn: opts.idColumn,
@@ -122,7 +141,7 @@ export function initialState(opts: SiftOptions): SiftState {
     cache: new Map(),
     cacheProblem: null,
     cacheFactsChanged: false,
-    prepared: new Map(),
+    computed: new Map(),
     lowest: null,
     active: [],
     items: [],
@@ -133,10 +152,14 @@ export function initialState(opts: SiftOptions): SiftState {
     comparisonsChanged: false,
     reused: [],
     close: null,
+    compositionClass: new Int32Array(0),
+    elementDistances: new Map(),
     collapsed: null,
     keptLocal: [],
     keptPos: new Int32Array(0),
     keptNeighbours: null,
+    toleranceChoice: null,
+    flagCounts: { otherChemistryPairs: 0, otherChemistry: 0, energyMismatch: 0, flatMinimumPairs: 0, flatMinimum: 0 },
     edges: [],
     familyLabels: new Int32Array(0),
     embedding: null,
@@ -151,6 +174,9 @@ function checkParameters(p: SiftParameters): void {
   }
   if (!Number.isInteger(p.minFamilySize) || p.minFamilySize < 2) throw new Error(`the minimum family size must be an integer >= 2, not ${p.minFamilySize}`);
   if (!Number.isInteger(p.minSamples) || p.minSamples < 1) throw new Error(`the minimum samples must be an integer >= 1, not ${p.minSamples}`);
+  if (!(p.energyMismatch > 0)) throw new Error(`the energy mismatch must be an energy > 0, not ${p.energyMismatch}`);
+  if (!(p.flatEnergy >= 0)) throw new Error(`the flat-minimum energy must be an energy >= 0, not ${p.flatEnergy}`);
+  if (!(p.flatDensityGPerCm3 >= 0)) throw new Error(`the flat-minimum density must be >= 0 g/cm3, not ${p.flatDensityGPerCm3}`);
   if (p.energyWindow !== null && !(p.energyWindow >= 0)) throw new Error(`the energy window must be >= 0, not ${p.energyWindow}`);
   if (!Number.isInteger(p.neighbours) || p.neighbours < 1) throw new Error(`the neighbour count must be an integer >= 1, not ${p.neighbours}`);
   if (p.energyBasis !== 'molecule' && p.energyBasis !== 'cell') throw new Error(`the energy basis must be molecule or cell, not ${String(p.energyBasis)}`);

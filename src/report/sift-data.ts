@@ -10,6 +10,7 @@ import { mapQuality, type MapQuality } from './map-quality.js';
 import { convergenceRuleText, fromKjPerMol } from '../landscape/convergence.js';
 import { symbolSpellings } from '../geometry/symbol-spellings.js';
 import { formatWrittenIn } from '../landscape/written-in.js';
+import { FLAG_MEANINGS } from '../landscape/flags.js';
 
 /** Largest number of colour classes the neighbourhood lines are binned into (one SVG path each). */
 export const EDGE_CLASSES = 8;
@@ -53,6 +54,14 @@ export interface StructureColumns {
   notes: string[][];
   /** a, b, c (Å), alpha, beta, gamma (degrees) and volume (Å³, null when the angles span no cell) as read, or null. */
   cell: Array<Array<number | null> | null>;
+  /** Index into `SiftPageData.flagSets` (the row's flag codes joined with a space; '' for none). */
+  flags: number[];
+  /** Index into `SiftPageData.formulas` of the compared composition ('' when unknown). */
+  composition: number[];
+  otherChemistryIndex: Array<number | null>;
+  otherChemistryDistance: Array<number | null>;
+  energyOffset: Array<number | null>;
+  flatPartnerIndices: Array<number[] | null>;
 }
 
 export interface EdgeClasses {
@@ -77,6 +86,13 @@ export interface SiftPageData {
   statusCodes: readonly Status[];
   files: string[];
   formulas: string[];
+  /** Distinct flag sets of the rows (joined codes), '' first. */
+  flagSets: string[];
+  /** Flag code -> what it means (src/landscape/flags.ts), and the run's counts. */
+  flagMeanings: Record<string, string>;
+  flagCounts: Landscape['flagCounts'];
+  /** How the duplicate tolerance was chosen (null when given). */
+  toleranceChoice: Landscape['toleranceChoice'];
   s: StructureColumns;
   kept: number[];
   /** Flat [i, j, EMD Å] triplets. */
@@ -153,7 +169,10 @@ export function buildSiftPageData(landscape: Landscape, title: string): SiftPage
     id: [], file: [], block: [], line: [], status: [], reason: [], energy: [], energyRel: [], density: [],
     atoms: [], spaceGroup: [], sgNumber: [], sgDetected: [], sgDeclared: [], writtenIn: [], z: [], zPrime: [], formula: [], keptIndex: [],
     distanceToKept: [], family: [], nearestIndex: [], nearestDistance: [], nnDistance: [], members: [], notes: [], cell: [],
+    flags: [], composition: [], otherChemistryIndex: [], otherChemistryDistance: [], energyOffset: [], flatPartnerIndices: [],
   };
+  const flagSets: string[] = [''];
+  const flagSetIds = new Map<string, number>([['', 0]]);
   for (let i = 0; i < n; i++) {
     const r = rows[i]!;
     if (r.index !== i) throw new Error(`landscape: structures[${i}] has index ${r.index}; structures must be in input order`);
@@ -187,6 +206,12 @@ export function buildSiftPageData(landscape: Landscape, title: string): SiftPage
     s.members.push(r.members);
     s.notes.push(r.notes ?? []);
     s.cell.push(cellOf(r));
+    s.flags.push(intern((r.flags ?? []).join(' '), flagSets, flagSetIds));
+    s.composition.push(intern(r.composition ?? '', formulas, formulaIds));
+    s.otherChemistryIndex.push(r.otherChemistryIndex ?? null);
+    s.otherChemistryDistance.push(sig(r.otherChemistryDistance));
+    s.energyOffset.push(sig(r.energyOffset));
+    s.flatPartnerIndices.push(r.flatPartnerIndices && r.flatPartnerIndices.length > 0 ? r.flatPartnerIndices : null);
   }
   for (const k of landscape.kept) {
     if (!(k >= 0 && k < n) || rows[k]!.status !== 'kept') throw new Error(`landscape: kept entry ${k} is not a kept structure`);
@@ -230,6 +255,10 @@ export function buildSiftPageData(landscape: Landscape, title: string): SiftPage
     groupSpellings: allSpellings(),
     files,
     formulas,
+    flagSets,
+    flagMeanings: FLAG_MEANINGS,
+    flagCounts: landscape.flagCounts ?? { otherChemistryPairs: 0, otherChemistry: 0, energyMismatch: 0, flatMinimumPairs: 0, flatMinimum: 0 },
+    toleranceChoice: landscape.toleranceChoice ?? null,
     s,
     kept: landscape.kept,
     edges,

@@ -2,7 +2,7 @@
 // CIF data item. Problems (missing, unparsable, repeated ids) stay on the row as a note and a reason; the
 // structure is still compared.
 import { readFileSync } from 'node:fs';
-import { assignEnergies, energySummary, parseEnergyCsv } from '../../io/energies.js';
+import { assignEnergies, decodeEnergyFile, energySummary, parseEnergyCsv } from '../../io/energies.js';
 import type { SiftState } from './state.js';
 
 export async function energiesStage(s: SiftState): Promise<void> {
@@ -10,13 +10,15 @@ export async function energiesStage(s: SiftState): Promise<void> {
   if (p.energiesFile !== null) {
     let text: string;
     try {
-      text = readFileSync(p.energiesFile, 'utf8');
+      const decoded = decodeEnergyFile(readFileSync(p.energiesFile));
+      text = decoded.text;
+      if (decoded.encoding !== 'UTF-8') s.messages.push(`${p.energiesFile} is ${decoded.encoding} text (as some spreadsheets save "Unicode text"); read as such`);
     } catch (err) {
       throw new Error(`cannot read the energies file ${p.energiesFile}: ${(err as NodeJS.ErrnoException).code ?? (err as Error).message}`);
     }
     const table = parseEnergyCsv(text, p.energiesFile, { idColumn: s.idColumn, energyColumn: s.energyColumn });
     const recordsAt = s.work.filter((w) => w.record !== null);
-    const assignment = assignEnergies(recordsAt.map((w) => w.row.id), table);
+    const assignment = assignEnergies(recordsAt.map((w) => w.row.id), table, recordsAt.map((w) => w.row.block));
     recordsAt.forEach((w, i) => {
       w.row.energy = assignment.energy[i];
       const problem = assignment.problem[i];

@@ -1,6 +1,7 @@
 // Stage "energy basis": energies given per cell (periodic DFT outputs usually are) become energies per molecule,
-// divided by each structure's Z, the number of molecules per cell found from its bonds (src/geometry/facts.ts), so
-// a P1 supercell written by a search (twice the cell, twice the energy) divides by twice the Z. A structure whose Z
+// divided by the number of molecules in each structure's cell as written, found from its bonds (facts.z,
+// src/geometry/facts.ts), so a P1 supercell written by a search (twice the cell, twice the energy) divides by twice
+// as many. (The row's `z` is the crystal's Z in its detected space group, not this number.) A structure whose count
 // is unknown, or whose cell holds more than one kind of molecule (no single Z to divide by), gets no energy and says
 // why; no energy is ever divided by a guess. Each converted row says which Z was used (a note), and the run's
 // messages count them. With energies per molecule (the default) this stage does nothing.
@@ -13,9 +14,11 @@ export async function energyBasisStage(s: SiftState): Promise<void> {
   for (const w of s.work) {
     const row = w.row;
     if (row.energy === null) continue;
+    // Molecules in the cell as written (not the crystal's Z, which may be of a smaller conventional cell).
+    const inCell = w.facts?.z ?? null;
     const problem =
-      row.z === null || !(row.z > 0)
-        ? 'no energy: the energy is per cell and the molecules per cell (Z) are unknown, so it cannot be divided'
+      inCell === null || !(inCell > 0)
+        ? 'no energy: the energy is per cell and the molecules per cell are unknown, so it cannot be divided'
         : row.formulas.length > 1
           ? `no energy: the energy is per cell and the cell holds more than one kind of molecule (${row.formulas.join(', ')}), so there is no single Z to divide by; give energies per formula unit with --energy-basis molecule`
           : null;
@@ -27,12 +30,12 @@ export async function energyBasisStage(s: SiftState): Promise<void> {
       unusable++;
       continue;
     }
-    const z = row.z as number;
+    const z = inCell as number;
     row.energy /= z;
-    row.notes.push(`energy per cell divided by Z = ${z} (molecules per cell found from the bonds)`);
+    row.notes.push(`energy per cell divided by ${z}, the molecules in the cell as written (found from the bonds)`);
     byZ.set(z, (byZ.get(z) ?? 0) + 1);
   }
-  const counts = [...byZ].sort((a, b) => a[0] - b[0]).map(([z, n]) => `Z = ${z} for ${n}`).join(', ');
-  s.messages.push(`energies are per cell: divided by each structure's Z (molecules per cell from its bonds): ${counts || 'none converted'}`);
-  if (unusable > 0) s.messages.push(`${unusable} structure(s) have a per-cell energy but no single Z to divide it by, so no energy (reason per row in structures.csv)`);
+  const counts = [...byZ].sort((a, b) => a[0] - b[0]).map(([z, n]) => `${z} for ${n}`).join(', ');
+  s.messages.push(`energies are per cell: divided by the molecules in each cell as written (from its bonds): ${counts || 'none converted'}`);
+  if (unusable > 0) s.messages.push(`${unusable} structure(s) have a per-cell energy but no single molecule count to divide it by, so no energy (reason per row in structures.csv)`);
 }

@@ -32,6 +32,15 @@ export function buildLandscape(s: SiftState, timingsSeconds: Record<string, numb
     run: { createdAt: new Date().toISOString(), timingsSeconds },
     parameters: params,
     counts,
+    flagCounts: { ...s.flagCounts },
+    toleranceChoice: s.toleranceChoice && {
+      ...s.toleranceChoice,
+      gapLowAngstrom: s.toleranceChoice.gapLowAngstrom === null ? null : round6(s.toleranceChoice.gapLowAngstrom),
+      gapHighAngstrom: s.toleranceChoice.gapHighAngstrom === null ? null : round6(s.toleranceChoice.gapHighAngstrom),
+      gapDecades: s.toleranceChoice.gapDecades === null ? null : round6(s.toleranceChoice.gapDecades),
+      edgeLengthsAngstrom: s.toleranceChoice.edgeLengthsAngstrom.map(round6),
+      closestKeptAngstrom: closestKept(rows),
+    },
     lowestEnergy: s.lowest === null ? null : round6(s.lowest),
     structures: rows,
     kept: keptLocal.map((p) => items[p].row.index),
@@ -43,6 +52,13 @@ export function buildLandscape(s: SiftState, timingsSeconds: Record<string, numb
   };
   landscape.convergence = convergenceCurve(rows, defaultWindows(params.energyUnit), { energyUnit: params.energyUnit });
   return landscape;
+}
+
+/** The smallest EMD between two kept structures (their nearest kept neighbours), or null. */
+function closestKept(rows: StructureRow[]): number | null {
+  let d: number | null = null;
+  for (const r of rows) if (r.status === 'kept' && r.nearestDistance !== null && (d === null || r.nearestDistance < d)) d = r.nearestDistance;
+  return d;
 }
 
 /** Output rounding of a row: Å, Å³, degrees, g/cm3 and energies to 6 decimals. */
@@ -63,5 +79,11 @@ function roundRow(r: StructureRow): StructureRow {
     distanceToKept: o(r.distanceToKept),
     nearestDistance: o(r.nearestDistance),
     nnDistance: o(r.nnDistance),
+    otherChemistryDistance: o(r.otherChemistryDistance),
+    energyOffset: o(r.energyOffset),
+    flatPartnerDistance: o(r.flatPartnerDistance),
+    flags: r.flags.slice(),
+    flatPartnerIndices: r.flatPartnerIndices.slice(),
+    flatPartners: r.flatPartners.slice(),
   };
 }

@@ -1,14 +1,17 @@
 // The one data structure the sift stages pass along (src/landscape/sift.ts lists the stages). Each stage reads
 // what earlier stages left here and adds its own results; no stage reaches back into another's internals. The
-// heavy parts of a stage (periodic sets, invariants, EMD searches) run in worker threads; the state itself stays
-// on the main thread.
-import type { CrystalFacts, CrystalRecord, Pdd, PeriodicPointSet } from '../../types.js';
-import type { EnergyBasis, EnergyUnit, Embedding, HydrogenPolicy, SiftParameters, StructureRow } from '../schema.js';
+// heavy parts of a stage (periodic sets, invariants, EMD searches) run as jobs on the state's executor (local
+// worker threads, or a Redis queue: src/parallel/executor.ts); the state itself stays on the main thread.
+import type { CrystalFacts, CrystalRecord, Pdd } from '../../types.js';
+import type { Invariants } from '../../invariants/batch.js';
+import type { Executor } from '../../parallel/executor.js';
+import type { EnergyBasis, EnergyUnit, Embedding, FlagCounts, HydrogenPolicy, SiftParameters, StructureRow, ToleranceChoice } from '../schema.js';
 import type { EnergyAssignment, EnergyTable } from '../../io/energies.js';
 import type { CacheEntry, CacheParams } from '../cache.js';
 import type { Comparisons } from '../compare-cache.js';
 import type { CollapseResult } from '../collapse.js';
 import type { Progress } from '../../progress.js';
+import type { RowElements } from '../../invariants/pdd.js';
 
 export interface SiftOptions {
   inputs: string[];
@@ -21,9 +24,17 @@ export interface SiftOptions {
   energyItem?: string | null;
   k?: number;
   hydrogens?: HydrogenPolicy;
-  toleranceAngstrom?: number;
   /** Symmetry tolerance (Å); default DEFAULT_SYMMETRY_TOLERANCE_ANGSTROM. */
   symmetryToleranceAngstrom?: number;
+  /** Duplicate tolerance in Å, or 'auto' (the default) to choose it from the run's own gap (src/landscape/auto-tolerance.ts). */
+  toleranceAngstrom?: number | 'auto';
+  /** Compare elements too (element-aware EMD) before two structures of one composition become duplicates; default true. */
+  elementCheck?: boolean;
+  /** Energy mismatch threshold in `energyUnit` (default 1 kJ/mol converted; src/landscape/flags.ts). */
+  energyMismatch?: number;
+  /** Flat-minimum thresholds: energy in `energyUnit` (default 0.01 kJ/mol converted) and density. */
+  flatEnergy?: number;
+  flatDensityGPerCm3?: number;
   minFamilySize?: number;
   minSamples?: number;
   /** Energy window above the lowest energy, in `energyUnit`; null for none. */
@@ -35,6 +46,10 @@ export interface SiftOptions {
   progress?: Progress;
   /** Kept-structure count up to which the full EMD matrix is used (default DENSE_LIMIT; for tests and benchmarks). */
   denseLimit?: number;
+  /** Where the heavy jobs run; default: local worker threads (`threads` of them). The caller closes it. */
+  executor?: Executor;
+  /** Blocks per periodic-set and invariants job (default BLOCKS_PER_JOB, less for small runs). */
+  blocksPerJob?: number;
 }
 
 /** One input block on its way through the stages. */
@@ -49,6 +64,8 @@ export interface Work {
   facts: CrystalFacts | null;
   /** Notes of the periodic-set construction (what the invariants cache stores beside the PDD). */
   setNotes: string[];
+  /** Elements at the centres of the PDD rows (invariants stage), for the element-aware comparison. */
+  elements: RowElements | null;
 }
 
 /** Pairs of compared structures (positions in `items`) with their EMD in Å, found within `radius`. */
@@ -69,6 +86,9 @@ export interface KeptNeighbours {
 export interface SiftState {
   params: SiftParameters;
   threads: number;
+  executor: Executor;
+  /** Blocks per job as asked for; null for the default. */
+  blocksPerJob: number | null;
   cacheDir: string | null;
   denseLimit: number | undefined;
   idColumn: string | undefined;
@@ -82,13 +102,14 @@ export interface SiftState {
   // energies
   energyTable: EnergyTable | null;
   energyAssignment: EnergyAssignment | null;
-  // periodic sets: the invariants cache as loaded, and the sets built for blocks it did not hold.
+  // periodic sets: the invariants cache as loaded, and the invariants computed with the periodic sets of blocks it
+  // did not hold (or why they failed), for the invariants stage to take.
   cacheParams: CacheParams;
   cache: Map<string, CacheEntry>;
   cacheProblem: string | null;
   /** Cached entries whose facts were recomputed (another symmetry tolerance): the cache is written again. */
   cacheFactsChanged: boolean;
-  prepared: Map<Work, PeriodicPointSet>;
+  computed: Map<Work, Invariants | { error: string }>;
   // window: the lowest energy among usable structures; the structures inside the window.
   lowest: number | null;
   active: Work[];
@@ -104,6 +125,10 @@ export interface SiftState {
   reused: string[];
   // duplicates: pairs within the search radius, the collapse, kept structures as positions in `items`.
   close: ClosePairs | null;
+  /** Per position in `items`: composition class (equal reduced formula, src/geometry/composition.ts). */
+  compositionClass: Int32Array;
+  /** Element-aware EMDs (Å) computed by the collapse's check, keyed by pairKey (stages/duplicates.ts). */
+  elementDistances: Map<string, number>;
   collapsed: CollapseResult | null;
   keptLocal: number[];
   /** Per position in `items`: rank in `keptLocal`, -1 for duplicates. */
@@ -111,6 +136,10 @@ export interface SiftState {
   // neighbours
   keptNeighbours: KeptNeighbours | null;
   edges: Array<[number, number, number]>;
+  // duplicates: how `auto` chose the tolerance (null when given)
+  toleranceChoice: ToleranceChoice | null;
+  // flags
+  flagCounts: FlagCounts;
   // families and map: per kept structure (keptLocal order).
   familyLabels: Int32Array;
   embedding: Embedding | null;
