@@ -79,7 +79,10 @@ describe('a flat minimum in a real search (seed 4)', async () => {
     for (const r of flat) {
       expect(r.status).toBe('kept');
       expect(r.energy!.toFixed(2)).toBe('-75.04');
+      // Written in P-1 by the search, and detected as P-1 within 0.06 Å (issue 11): the declared and detected groups agree.
       expect(r.spaceGroup).toBe('P-1');
+      expect(r.symmetry!.declared).toBe('P-1');
+      expect(r.symmetry!.source).toBe('detected');
       expect(r.flatPartnerDistance!).toBeGreaterThan(auto.parameters.toleranceAngstrom);
       expect(r.flatPartnerDistance!).toBeLessThan(0.12);
     }

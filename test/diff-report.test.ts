@@ -28,7 +28,7 @@ describe('diff report', () => {
     // The CSVs hold one row per kept structure / matched pair, with the documented columns.
     const structuresCsv = readFileSync(join(dir, 'diff-structures.csv'), 'utf8').trim().split('\n');
     expect(structuresCsv[0]).toBe(tableHeaders(DIFF_STRUCTURE_COLUMNS, d.energyUnit).join(','));
-    expect(structuresCsv[0]).toBe('run,id,source,presence,energy_rank,energy_rel_kj_per_mol,density_g_per_cm3,space_group,partner,partner_distance_angstrom,nearest_other,nearest_other_distance_angstrom,z_prime');
+    expect(structuresCsv[0]).toBe('run,id,source,presence,energy_rank,energy_rel_kj_per_mol,density_g_per_cm3,space_group,partner,partner_distance_angstrom,nearest_other,nearest_other_distance_angstrom,z_prime,composition,flags,flat_minimum_with,flat_minimum_distance_angstrom');
     expect(structuresCsv.length - 1).toBe(A.length + B.length);
     const pairsCsv = readFileSync(join(dir, 'diff-pairs.csv'), 'utf8').trim().split('\n');
     expect(pairsCsv[0]).toBe(tableHeaders(DIFF_PAIR_COLUMNS, d.energyUnit).join(','));

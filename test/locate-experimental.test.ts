@@ -106,6 +106,7 @@ describe('locate with experimental-like references', () => {
       indices: all.indices.filter((_, j) => j !== out.j),
       pdds: all.pdds.filter((_, j) => j !== out.j),
       volumePerAtomA3: all.volumePerAtomA3.filter((_, j) => j !== out.j),
+      compositions: all.compositions.filter((_, j) => j !== out.j),
     };
     const refs = [recordOf(out.j + 1), variant(out.j + 1, { stretch: [1.01, 1.01, 1.01] }), variant(out.j + 1, { shortenHydrogenBondsAngstrom: 0.1 })];
     const result = await locate(refs, { kept: without });

@@ -35,7 +35,7 @@ describe('queue payloads', () => {
   it('carry a periodic-set and invariants job and its result unchanged', () => {
     const g = generateLandscape({ seed: 3, packings: 2, copiesPerPacking: 2, closePairs: 0 });
     const blocks = readCifText(g.cif, 'g.cif').flatMap((r) => (r.kind === 'record' ? [{ file: 'g.cif', line: r.record.line, text: r.record.text, invariants: true }] : []));
-    const input = { blocks, k: 20, hydrogens: 'keep' as const };
+    const input = { blocks, k: 20, hydrogens: 'keep' as const, symmetryToleranceAngstrom: 0.06 };
     const direct = blocksJob(input);
     const viaText = blocksJob(decodePayload(encodePayload(input)));
     const back = decodePayload<typeof direct>(encodePayload(viaText));

@@ -24,6 +24,8 @@ export interface KeptComparison {
   pdds: Pdd[];
   /** Cell volume / atoms compared (Å³), null when unknown. */
   volumePerAtomA3: Array<number | null>;
+  /** Reduced composition of the compared atoms (after this comparison's hydrogen policy), null when unknown. */
+  compositions: Array<string | null>;
   hydrogens: HydrogenPolicy;
   /** What was done to get them, for the result's notes. */
   notes: string[];
@@ -40,6 +42,7 @@ export function keptFromLandscape(landscape: Landscape): KeptComparison {
       const s = landscape.structures[i];
       return volumePerAtom(s.cell?.volume ?? null, s.atoms);
     }),
+    compositions: landscape.kept.map((i) => landscape.structures[i].composition ?? null),
     hydrogens: landscape.invariants.hydrogens,
     notes: [],
   };
@@ -119,6 +122,7 @@ export async function keptWithPolicy(
     indices: landscape.kept.slice(),
     pdds: entries.map((e) => e.pdd),
     volumePerAtomA3: records.map((r, j) => volumePerAtom(volumeOrNull(r.cell), entries[j].atoms)),
+    compositions: entries.map((e) => e.composition || null),
     hydrogens,
     notes,
   };

@@ -183,7 +183,7 @@ export async function locateReferences(
         scaledEmdAngstrom: scale === 'volume' ? distance : null,
         scaleFactor: vr !== null && vk !== null ? scaleFactor(vr, vk) : null,
         energyRank: ranks.get(s.index) ?? null, energyRel: s.energyRel, densityGPerCm3: s.densityGPerCm3,
-        spaceGroup: s.spaceGroup, zPrime: s.zPrime ?? null, family: s.family, composition: s.composition,
+        spaceGroup: s.spaceGroup, zPrime: s.zPrime ?? null, family: s.family, composition: kept.compositions[t],
       });
     }
     // Structures of another composition are never the reference, however close (geometry only in PDD and EMD): the
