@@ -14,7 +14,7 @@ import { runDemo, type DemoResult } from '../src/demo/run-demo.js';
 import type { ConvergenceCurve, Landscape } from '../src/landscape/schema.js';
 import { compareWithWindows } from '../src/report/window-compare.js';
 import { BIN_DENSITY_G_PER_CM3, BIN_ENERGY_KJ_PER_MOL } from '../src/demo/window-binning.js';
-import { clickIsolatedKeptMarker, launchChromium, openFile, plotArea, tracePixels, type PageWatch } from './helpers/browser.js';
+import { clickIsolatedKeptMarker, launchChromium, openFile, plotArea, tracePixels, toleranceBands, type PageWatch } from './helpers/browser.js';
 
 interface LinesState { shown: number; segments: number }
 
@@ -252,9 +252,7 @@ describe('the demo report in a browser', () => {
     expect(tc.gapLowAngstrom!).toBeGreaterThanOrEqual(dupMax);
     expect(land.parameters.toleranceAngstrom).toBeGreaterThan(dupMax);
     expect(await w.page.textContent('#nn-note')).toMatch(/Auto tolerance: the shaded band is the gap found between/);
-    const band = (await w.page.evaluate(
-      'document.getElementById("nn-plot").layout.shapes.filter((s) => s.type === "rect").map((s) => [s.x0, s.x1])',
-    )) as Array<[number, number]>;
+    const band = await toleranceBands(w.page);
     expect(band).toHaveLength(1);
     expect(band[0]![0]).toBeCloseTo(Math.log10(tc.gapLowAngstrom!), 9);
     expect(w.consoleErrors).toEqual([]);

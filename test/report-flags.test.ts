@@ -14,7 +14,7 @@ import { sift } from '../src/landscape/sift.js';
 import { renderSiftReport } from '../src/report/sift-report.js';
 import { FLAG_CODES } from '../src/landscape/flags.js';
 import type { Landscape } from '../src/landscape/schema.js';
-import { launchChromium, openFile, type PageWatch } from './helpers/browser.js';
+import { launchChromium, openFile, toleranceBands, type PageWatch } from './helpers/browser.js';
 
 const SCREENS = join(process.cwd(), 'reports', 'test-screens');
 
@@ -101,9 +101,7 @@ describe('flags in the sift report', () => {
     expect(land.parameters.toleranceMode).toBe('auto');
     expect(tc.clear).toBe(true);
     expect(await w.page.textContent('#nn-note')).toMatch(/Auto tolerance: the shaded band is the gap found between/);
-    const band = (await w.page.evaluate(
-      'document.getElementById("nn-plot").layout.shapes.filter((s) => s.type === "rect").map((s) => [s.x0, s.x1])',
-    )) as Array<[number, number]>;
+    const band = await toleranceBands(w.page);
     expect(band).toHaveLength(1);
     expect(band[0]![0]).toBeCloseTo(Math.log10(tc.gapLowAngstrom!), 9);
     expect(band[0]![1]).toBeCloseTo(Math.log10(tc.gapHighAngstrom!), 9);

@@ -67,3 +67,10 @@ export async function clickIsolatedKeptMarker(page: Page): Promise<{ point: numb
   await page.mouse.click(x, y);
   return { point, gapPx };
 }
+
+/** The shaded band of the sift report's nearest-neighbour histogram (the gap auto tolerance found), as log10 Å ends. */
+export async function toleranceBands(page: Page): Promise<Array<[number, number]>> {
+  return (await page.evaluate(
+    'document.getElementById("nn-plot").layout.shapes.filter((s) => s.type === "rect").map((s) => [s.x0, s.x1])',
+  )) as Array<[number, number]>;
+}
