@@ -52,7 +52,7 @@ export interface StructureColumns {
   nnDistance: Array<number | null>;
   members: number[];
   notes: string[][];
-  /** a, b, c (Å), alpha, beta, gamma (degrees) and volume (Å³, null when the angles span no cell) as read, or null. */
+  /** a, b, c (Å), alpha, beta, gamma (degrees) and volume (Å³, null when the angles span no cell) as read, rounded as shown, or null. */
   cell: Array<Array<number | null> | null>;
   /** Index into `SiftPageData.flagSets` (the row's flag codes joined with a space; '' for none). */
   flags: number[];
@@ -476,13 +476,19 @@ export function unpackAmdRow(packed: PackedAmd, row: number): Float64Array {
 }
 
 /**
- * The row's cell as [a, b, c, alpha, beta, gamma, volume], each to 7 significant digits, or null when the row has
- * no cell. The volume alone may be null (angles that span no cell).
+ * The row's cell as [a, b, c, alpha, beta, gamma, volume] rounded as the page shows them (lengths to 0.001 Å, angles
+ * to 0.01 degrees, volume to 0.1 Å³; the page then prints them exactly, and 25,000 rows cost about a third less than at
+ * 7 significant digits), or null when the row has no cell. The volume alone may be null (angles that span no cell).
  */
 function cellOf(r: StructureRow): Array<number | null> | null {
   const c = r.cell;
   if (!c) return null;
-  return [sig(c.a), sig(c.b), sig(c.c), sig(c.alpha), sig(c.beta), sig(c.gamma), sig(c.volume)];
+  return [fixed(c.a, 3), fixed(c.b, 3), fixed(c.c, 3), fixed(c.alpha, 2), fixed(c.beta, 2), fixed(c.gamma, 2), fixed(c.volume, 1)];
+}
+
+/** A number rounded to `decimals` places (as toFixed rounds), or null when missing. */
+function fixed(x: number | null, decimals: number): number | null {
+  return x === null || !Number.isFinite(x) ? null : Number(x.toFixed(decimals));
 }
 
 function intern(value: string, table: string[], ids: Map<string, number>): number {
