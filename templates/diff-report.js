@@ -84,7 +84,7 @@
   var bar = bounds.length > 1 ? [{
     type: 'scatter', mode: 'markers', x: [null], y: [null], hoverinfo: 'skip', showlegend: false,
     marker: { color: [bounds[0]], cmin: bounds[0], cmax: bounds[bounds.length - 1], colorscale: data.pairClasses.colourscale, showscale: true,
-      colorbar: { title: { text: 'EMD (Å)' }, thickness: 14 } },
+      colorbar: { title: { text: 'EMD (Å)' }, thickness: 14, tickvals: bounds, ticktext: data.pairClasses.tickText } },
   }] : [];
   var overlay = $('overlay-plot');
   Plotly.newPlot(overlay, lineTraces.concat(markerTraces, bar), P.baseLayout({
@@ -116,13 +116,29 @@
   }), P.plotConfig).then(function () { P.markReady('rank'); });
 
   var shifted = d.pairs.filter(function (p) { return p.energyRelShift !== null; });
+  // The shift axis: when every pair shifted by (nearly) the same amount, the library would stretch rounding noise
+  // over the whole axis; instead the range spans zero and the shift with a margin, and labels are rounded.
+  var sLo = Infinity, sHi = -Infinity;
+  shifted.forEach(function (p) { sLo = Math.min(sLo, p.energyRelShift); sHi = Math.max(sHi, p.energyRelShift); });
+  var shiftAxis = { title: { text: 'Shift B − A (' + unit + ')' }, zeroline: true };
+  if (shifted.length > 0) {
+    var lo = Math.min(0, sLo), hi = Math.max(0, sHi);
+    var margin = Math.max(0.05, 0.2 * (hi - lo));
+    shiftAxis.range = [lo - margin, hi + margin];
+    shiftAxis.tickformat = hi - lo + 2 * margin >= 5 ? '.0f' : hi - lo + 2 * margin >= 0.5 ? '.1f' : '.2f';
+  }
+  var constantShift = shifted.length > 1 && sHi - sLo <= 0.005 ? (sLo + sHi) / 2 : null;
+  $('shift-note').textContent = 'Energy above the lowest in B minus that in A, for each matched pair, against its energy in A.' +
+    (constantShift === null ? '' : ' Every matched pair shifted by the same ' + rel(constantShift) + ' ' + unit +
+      ' (within 0.005): the matched structures have the same energies relative to each other in both runs, and the ' +
+      'shift is the difference between the two runs\u2019 zero points (each run measures from its own lowest structure).');
   Plotly.newPlot($('shift-plot'), [
     { type: P.scatterType(shifted.length), mode: 'markers', x: shifted.map(function (p) { return p.energyRelA; }), y: shifted.map(function (p) { return p.energyRelShift; }),
       text: shifted.map(function (p) { return esc(p.idA) + ' ↔ ' + esc(p.idB) + '<br>shift ' + rel(p.energyRelShift) + ' ' + esc(unit) + '<br>density shift ' + P.fmt(p.densityShiftGPerCm3, 4) + ' g/cm³'; }),
       hoverinfo: 'text', marker: { size: 8, color: '#0b6e69' } },
   ], P.baseLayout({
     xaxis: { title: { text: 'Energy above the lowest in A (' + unit + ')' } },
-    yaxis: { title: { text: 'Shift B − A (' + unit + ')' }, zeroline: true },
+    yaxis: shiftAxis,
   }), P.plotConfig).then(function () { P.markReady('shift'); });
 
   // Tables.

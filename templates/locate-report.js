@@ -95,7 +95,7 @@
           P.el('td', { className: 'ps-num', text: P.fmt(h.energyRel, 2) }), P.el('td', { className: 'ps-num', text: P.fmt(h.densityGPerCm3, 3) }),
           P.el('td', { text: h.spaceGroup === null ? '–' : h.spaceGroup }),
           P.el('td', { className: 'ps-num', text: h.zPrime === null || h.zPrime === undefined ? '–' : String(Math.round(h.zPrime * 1000) / 1000) }),
-          P.el('td', { className: 'ps-num', text: h.family }),
+          P.el('td', { className: 'ps-num', text: h.family < 0 ? 'none' : String(h.family) }),
           P.el('td', { text: h.composition === null || h.composition === undefined ? '–' : h.composition }));
       })));
     box.appendChild(P.el('section', { className: 'ps-card', 'aria-label': 'Reference ' + ref.id },

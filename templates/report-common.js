@@ -54,7 +54,15 @@
   /** A number with a fixed count of decimals, or an en dash when missing. */
   function fmt(x, decimals) {
     if (x === null || x === undefined || typeof x !== 'number' || !isFinite(x)) return '–';
-    return x.toFixed(decimals === undefined ? 3 : decimals);
+    var t = x.toFixed(decimals === undefined ? 3 : decimals);
+    // A value that rounds to zero prints without a sign ("0.0000", not "-0.0000").
+    return /^-0(\.0*)?$/.test(t) ? t.slice(1) : t;
+  }
+
+  /** The shortest plain form of a number (at most 6 significant digits): 10, 2.39, 0.5. */
+  function fmtNumber(x) {
+    if (x === null || x === undefined || typeof x !== 'number' || !isFinite(x)) return '–';
+    return String(Number(x.toPrecision(6)));
   }
 
   /** A distance in Å with enough digits for small values (optimiser noise is thousandths of an Å). */
@@ -349,6 +357,7 @@
     clear: clear,
     fmt: fmt,
     fmtDistance: fmtDistance,
+    fmtNumber: fmtNumber,
     hasWebGL: hasWebGL,
     scatterType: scatterType,
     packedRows: packedRows,

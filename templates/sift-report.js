@@ -52,8 +52,18 @@
   function familyColour(f) { return f < 0 ? D.unassignedColour : D.familyColours[f % D.familyColours.length]; }
   function familySymbol(f) { return f < 0 ? 'circle' : SYMBOLS[Math.floor(f / D.familyColours.length) % SYMBOLS.length]; }
   function familyChar(f) { return f < 0 ? '●' : SYMBOL_CHARS[Math.floor(f / D.familyColours.length) % SYMBOL_CHARS.length]; }
-  function familyName(f) { return f < 0 ? 'unassigned' : 'family ' + f; }
+  // One spelling for a structure HDBSCAN leaves in no family, everywhere on the page.
+  function familyLabel(f) { return f < 0 ? 'none' : String(f); }
+  function familyName(f) { return 'family ' + familyLabel(f); }
   function markerSize(members) { return Math.min(24, 6 + 4 * Math.sqrt(Math.max(0, members - 1))); }
+  /** The cell as one line, lengths in Å and angles in degrees (null when not known); its volume in Å³ apart. */
+  function cellText(i) {
+    var c = S.cell[i];
+    if (!c) return null;
+    return 'a, b, c ' + P.fmt(c[0], 3) + ', ' + P.fmt(c[1], 3) + ', ' + P.fmt(c[2], 3) + ' Å; α, β, γ ' +
+      P.fmt(c[3], 2) + ', ' + P.fmt(c[4], 2) + ', ' + P.fmt(c[5], 2) + '°';
+  }
+  function volumeText(i) { return S.cell[i] && S.cell[i][6] !== null ? P.fmt(S.cell[i][6], 1) + ' Å³' : null; }
   function energyText(i) { return hasEnergies ? P.fmt(S.energyRel[i], 3) + ' ' + unit : 'no energy'; }
   function zPrimeText(i) { return S.zPrime[i] === null ? '–' : String(Math.round(S.zPrime[i] * 1000) / 1000); }
   // 'P21/c, Z′ 1 (written in P1)': the group the crystal has, and what its file declared when that differs.
@@ -98,8 +108,11 @@
   // (under the markers, clipped to the plot area) and redrawn after every zoom or pan. As line traces the
   // plotting library spends seconds on 30,000 edges (measured with src/bench/report.ts); here it is one
   // pass over the edges mapping data to pixels.
-  var showLines = true;
+  var lineRank = D.view.lineRank;
+  var lineMaxAngstrom = D.view.lineMaxAngstrom === null ? Infinity : D.view.lineMaxAngstrom;
   var linesGroup = null;
+  /** Whether edge q is shown under the current line controls. */
+  function edgeShown(q) { return D.edgeRank[q] <= lineRank && D.edges[3 * q + 2] <= lineMaxAngstrom; }
   function drawLines() {
     var plotLayer = landscapeDiv.querySelector('.overplot > .xy');
     var fl = landscapeDiv._fullLayout;
@@ -110,14 +123,15 @@
       linesGroup.setAttribute('pointer-events', 'none');
       plotLayer.insertBefore(linesGroup, plotLayer.firstChild);
     }
-    linesGroup.style.display = showLines ? '' : 'none';
-    if (!showLines) return;
+    var shownCount = 0;
     var xa = fl.xaxis, ya = fl.yaxis;
     var px = new Float64Array(S.density.length), py = new Float64Array(S.density.length);
     var seen = new Uint8Array(S.density.length);
     var d = [];
     for (var k = 0; k < classes.colours.length; k++) d.push([]);
     for (var q = 0; q < D.edgeClass.length; q++) {
+      if (!edgeShown(q)) continue;
+      shownCount++;
       var ea = D.edges[3 * q], eb = D.edges[3 * q + 1];
       if (!seen[ea]) { px[ea] = xa.l2p(S.density[ea]); py[ea] = ya.l2p(yOf(ea)); seen[ea] = 1; }
       if (!seen[eb]) { px[eb] = xa.l2p(S.density[eb]); py[eb] = ya.l2p(yOf(eb)); seen[eb] = 1; }
@@ -134,6 +148,8 @@
       path.setAttribute('stroke-opacity', '0.75');
       linesGroup.appendChild(path);
     });
+    report.linesShown = shownCount;
+    document.getElementById('line-count').textContent = shownCount + ' of ' + D.edgeClass.length + ' lines shown';
   }
   if (classes.colours.length > 0) {
     // The colour bar legend for the lines: an invisible point carrying the stepped colour scale.
@@ -146,7 +162,7 @@
         colorscale: classes.colourscale, showscale: true,
         colorbar: {
           title: { text: 'EMD (Å)', side: 'right' }, thickness: 14, len: 0.75,
-          tickvals: bounds, ticktext: bounds.map(P.fmtDistance),
+          tickvals: bounds, ticktext: classes.tickText,
         },
       },
     });
@@ -192,7 +208,8 @@
     var lines = ['<b>' + P.escapeForPlot(S.id[i]) + '</b>',
       'rel. energy ' + energyText(i) + ', density ' + P.fmt(S.density[i], 4) + ' g/cm³',
       P.escapeForPlot(symmetryText(i)),
-      familyName(S.family[i]) + ', ' + S.members[i] + (S.members[i] === 1 ? ' member' : ' members')];
+      'family: ' + familyLabel(S.family[i]) + ', ' + S.members[i] + (S.members[i] === 1 ? ' member' : ' members')];
+    if (S.cell[i]) lines.push(cellText(i) + (volumeText(i) ? '; V ' + volumeText(i) : ''));
     var nb = neighbours[i] || [];
     if (nb.length > 0) {
       lines.push('nearest: ' + nb.slice(0, 5).map(function (x) {
@@ -202,21 +219,143 @@
     return lines.join('<br>');
   }
 
+  var zoom = D.view.zoom;
+  var zoomed = zoom !== null;
   var landscapeLayout = P.baseLayout({
     xaxis: { title: { text: 'Density (g/cm³)' }, zeroline: false, gridcolor: '#e6eaee' },
     yaxis: { title: { text: hasEnergies ? 'Energy above the lowest (' + unit + ')' : 'No energies given (all at 0)' }, zeroline: false, gridcolor: '#e6eaee' },
     margin: { l: 70, r: 10, t: 10, b: 52 },
+    shapes: [], annotations: [],
   });
+  if (zoom) {
+    landscapeLayout.xaxis.range = zoom.densityRange.slice();
+    landscapeLayout.yaxis.range = zoom.energyRange.slice();
+  }
 
   // Family legend (HTML): colour and symbol of each family with its size.
   var legend = document.getElementById('family-legend');
+  legend.appendChild(el('span', { className: 'ps-legend-head' }, 'Families (kept structures):'));
   var shown = D.familySizes.slice(0, 40);
   shown.forEach(function (fs) {
     legend.appendChild(el('span', null,
       el('span', { className: 'ps-swatch', style: 'color:' + familyColour(fs[0]), 'aria-hidden': 'true' }, familyChar(fs[0])),
-      familyName(fs[0]) + ' (' + fs[1] + ')'));
+      familyLabel(fs[0]) + ' (' + fs[1] + ')'));
   });
   if (D.familySizes.length > shown.length) legend.appendChild(el('span', null, '… and ' + (D.familySizes.length - shown.length) + ' more families'));
+
+  // ---- Line controls: how many lines per structure, and up to which EMD ----------------------------
+  var rankSelect = document.getElementById('line-rank');
+  var maxRank = 0;
+  for (var r0 = 0; r0 < D.edgeRank.length; r0++) maxRank = Math.max(maxRank, D.edgeRank[r0]);
+  for (var rk = 0; rk <= maxRank; rk++) {
+    rankSelect.appendChild(el('option', { value: String(rk) },
+      rk === 0 ? 'none' : rk === 1 ? '1 (nearest neighbour)' : rk === maxRank ? rk + ' (all stored)' : String(rk)));
+  }
+  rankSelect.value = String(Math.min(lineRank, maxRank));
+  var slider = document.getElementById('line-max');
+  var sliderOut = document.getElementById('line-max-value');
+  var bLo = classes.boundsAngstrom.length ? classes.boundsAngstrom[0] : 0;
+  var bHi = classes.boundsAngstrom.length ? classes.boundsAngstrom[classes.boundsAngstrom.length - 1] : 0;
+  var SLIDER_STEPS = 100;
+  slider.max = String(SLIDER_STEPS);
+  // The slider starts at the first view's cut (the position at or above it), and reads "any EMD" at its end.
+  slider.value = String(lineMaxAngstrom === Infinity || bHi <= bLo ? SLIDER_STEPS
+    : Math.min(SLIDER_STEPS, Math.ceil(((lineMaxAngstrom - bLo) / (bHi - bLo)) * SLIDER_STEPS)));
+  function sliderAngstrom() {
+    var v = Number(slider.value);
+    return v >= SLIDER_STEPS ? Infinity : bLo + ((bHi - bLo) * v) / SLIDER_STEPS;
+  }
+  function showSlider() {
+    sliderOut.textContent = lineMaxAngstrom === Infinity ? 'any EMD' : P.fmtDistance(lineMaxAngstrom) + ' Å';
+  }
+  showSlider();
+  function setLines() {
+    lineRank = Number(rankSelect.value);
+    lineMaxAngstrom = sliderAngstrom();
+    showSlider();
+    drawLines();
+    if (report.traces.lineLegend !== undefined) Plotly.restyle(landscapeDiv, { visible: lineRank > 0 }, [report.traces.lineLegend]);
+  }
+  rankSelect.addEventListener('change', setLines);
+  slider.addEventListener('input', setLines);
+  if (D.edgeClass.length === 0) document.querySelector('.ps-line-controls').hidden = true;
+
+  // ---- First view: the low-energy region, the whole landscape one click away --------------------
+  var zoomButton = document.getElementById('zoom-toggle');
+  var viewNote = document.getElementById('view-note');
+  var lowText = D.view.lowWindow === null ? '' : P.fmtNumber(D.view.lowWindow) + ' ' + unit;
+  function showViewState() {
+    if (!zoom) {
+      viewNote.hidden = true;
+      return;
+    }
+    zoomButton.hidden = false;
+    var outside = D.kept.length - D.view.inView;
+    if (zoomed) {
+      viewNote.textContent = 'Showing the ' + D.view.inView + ' kept structures within ' + lowText + ' of the lowest energy, where ' +
+        'decisions are made (polymorph energy differences rarely exceed that; common practice); ' + outside +
+        ' more lie outside this view.';
+      zoomButton.textContent = 'Show the whole landscape';
+    } else {
+      viewNote.textContent = 'Showing the whole landscape: all ' + D.kept.length + ' kept structures.';
+      zoomButton.textContent = 'Zoom to the lowest ' + lowText;
+    }
+  }
+  function setZoom(on) {
+    zoomed = on;
+    showViewState();
+    var upd = on
+      ? { 'xaxis.range': zoom.densityRange.slice(), 'yaxis.range': zoom.energyRange.slice() }
+      : { 'xaxis.autorange': true, 'yaxis.autorange': true };
+    return Plotly.relayout(landscapeDiv, upd);
+  }
+  zoomButton.addEventListener('click', function () { setZoom(!zoomed); });
+  report.setZoom = setZoom;
+  showViewState();
+
+  // ---- The pair energy/density windows would merge ----------------------------------------------
+  var W = D.windows;
+  var pairShapes = [], pairAnnotations = [];
+  (function windowsNote() {
+    if (!W) return;
+    var note = document.getElementById('windows-note');
+    note.hidden = false;
+    note.appendChild(el('strong', null, 'What windows would lose: '));
+    note.appendChild(document.createTextNode('energy/density windows (' + P.fmtNumber(W.energyWindow) + ' ' + unit + ', ' +
+      W.densityWindowGPerCm3 + ' g/cm³) would leave ' + W.groups + ' groups of these ' + W.compared + ' distinct structures, folding ' +
+      W.lost + ' of them into others.'));
+    if (!W.example) return;
+    var a = W.example.a, b = W.example.b;
+    function times(i) { return S.members[i] === 1 ? 'once' : S.members[i] + ' times'; }
+    note.appendChild(document.createTextNode(' For example they would merge '));
+    note.appendChild(structureButton(a));
+    note.appendChild(document.createTextNode(' and '));
+    note.appendChild(structureButton(b));
+    note.appendChild(document.createTextNode(' (' + (S.spaceGroup[a] === S.spaceGroup[b] ? 'both ' + (S.spaceGroup[a] || 'no space group') : (S.spaceGroup[a] || '–') + ' and ' + (S.spaceGroup[b] || '–')) +
+      '; ' + P.fmt(S.energyRel[a], 2) + ' and ' + P.fmt(S.energyRel[b], 2) + ' ' + unit + '; ' + P.fmt(S.density[a], 3) + ' and ' +
+      P.fmt(S.density[b], 3) + ' g/cm³; found ' + times(a) + ' and ' + times(b) + '), which are ' + P.fmtDistance(W.example.emdAngstrom) +
+      ' Å apart, ' + W.example.toleranceMultiple.toFixed(1) + ' times the duplicate tolerance: two distinct structures. ' +
+      'They are marked on the plot.'));
+    pairShapes.push({ type: 'line', xref: 'x', yref: 'y', x0: S.density[a], y0: yOf(a), x1: S.density[b], y1: yOf(b), layer: 'above',
+      line: { color: '#d55e00', width: 2.5, dash: 'dot' } });
+    var right = S.density[b] >= S.density[a] ? b : a;
+    pairAnnotations.push({ x: S.density[right], y: yOf(right), xref: 'x', yref: 'y', ax: 50, ay: -48, showarrow: true, arrowhead: 2,
+      arrowcolor: '#d55e00', font: { color: '#a34400', size: 11 }, bgcolor: 'rgba(255,255,255,0.6)',
+      text: 'windows merge ' + P.escapeForPlot(S.id[a]) + ' and ' + P.escapeForPlot(S.id[b]) + '<br>EMD ' + P.fmtDistance(W.example.emdAngstrom) + ' Å' });
+    report.windowPair = [a, b];
+  })();
+  landscapeLayout.shapes = pairShapes.slice();
+  landscapeLayout.annotations = pairAnnotations.slice();
+
+  function onPlotClick(ev, plot) {
+    if (!ev || !ev.points || ev.points.length === 0) return;
+    var pt = ev.points[0];
+    var idx = null;
+    if (plot === 'landscape' && pt.curveNumber === report.traces.kept) idx = D.kept[pt.pointNumber];
+    else if (plot === 'landscape' && pt.curveNumber === report.traces.duplicates) idx = S.keptIndex[duplicates[pt.pointNumber]];
+    else if (plot === 'map' && pt.curveNumber === report.traces.mapKept) idx = D.kept[pt.pointNumber];
+    if (idx !== null && idx !== undefined) select(idx, 'plot');
+  }
 
   performance.mark('polysift:traces');
   Plotly.newPlot(landscapeDiv, traces, landscapeLayout, P.plotConfig).then(function () {
@@ -238,21 +377,6 @@
   document.getElementById('show-duplicates').addEventListener('change', function (ev) {
     Plotly.restyle(landscapeDiv, { visible: ev.target.checked }, [report.traces.duplicates]);
   });
-  document.getElementById('show-lines').addEventListener('change', function (ev) {
-    showLines = ev.target.checked;
-    drawLines();
-    if (report.traces.lineLegend !== undefined) Plotly.restyle(landscapeDiv, { visible: showLines }, [report.traces.lineLegend]);
-  });
-
-  function onPlotClick(ev, plot) {
-    if (!ev || !ev.points || ev.points.length === 0) return;
-    var pt = ev.points[0];
-    var idx = null;
-    if (plot === 'landscape' && pt.curveNumber === report.traces.kept) idx = D.kept[pt.pointNumber];
-    else if (plot === 'landscape' && pt.curveNumber === report.traces.duplicates) idx = S.keptIndex[duplicates[pt.pointNumber]];
-    else if (plot === 'map' && pt.curveNumber === report.traces.mapKept) idx = D.kept[pt.pointNumber];
-    if (idx !== null && idx !== undefined) select(idx, 'plot');
-  }
 
   // ---- Table of kept structures ----------------------------------------------------------------
   var keptTable = P.createTable({
@@ -264,7 +388,7 @@
       { label: 'Rel. energy (' + unit + ')', numeric: true, value: function (i) { return S.energyRel[i]; }, text: function (i) { return P.fmt(S.energyRel[i], 3); } },
       { label: 'Density (g/cm³)', numeric: true, value: function (i) { return S.density[i]; }, text: function (i) { return P.fmt(S.density[i], 4); } },
       { label: 'Members', numeric: true, value: function (i) { return S.members[i]; }, text: function (i) { return String(S.members[i]); } },
-      { label: 'Family', numeric: true, value: function (i) { return S.family[i]; }, text: function (i) { return S.family[i] < 0 ? '–' : String(S.family[i]); } },
+      { label: 'Family', numeric: true, value: function (i) { return S.family[i]; }, text: function (i) { return familyLabel(S.family[i]); } },
       { label: 'Nearest', value: function (i) { return S.nearestIndex[i] === null ? null : S.id[S.nearestIndex[i]]; }, text: function (i) { return S.nearestIndex[i] === null ? '–' : S.id[S.nearestIndex[i]]; } },
       { label: 'EMD to nearest (Å)', numeric: true, value: function (i) { return S.nearestDistance[i]; }, text: function (i) { return P.fmtDistance(S.nearestDistance[i]); } },
       { label: 'Space group', value: function (i) { return S.spaceGroup[i]; }, text: function (i) { return S.spaceGroup[i] === null ? '–' : S.spaceGroup[i]; } },
@@ -294,7 +418,7 @@
   // ---- Selection: marker, map, row and panel follow one structure ------------------------------
   function select(i, from) {
     report.selected = i;
-    Plotly.relayout(landscapeDiv, { shapes: [ring(S.density[i], yOf(i), 13)] });
+    Plotly.relayout(landscapeDiv, { shapes: pairShapes.concat([ring(S.density[i], yOf(i), 13)]) });
     if (report.mapDrawn && keptPos[i] !== undefined) {
       var xy = D.embedding.coords[keptPos[i]];
       Plotly.relayout(mapDiv, { shapes: [ring(xy[0], xy[1], 11)] });
@@ -312,7 +436,7 @@
     document.getElementById('panel-body').hidden = true;
     document.getElementById('panel-empty').hidden = false;
     report.selected = null;
-    Plotly.relayout(landscapeDiv, { shapes: [] });
+    Plotly.relayout(landscapeDiv, { shapes: pairShapes.slice() });
     if (report.mapDrawn) Plotly.relayout(mapDiv, { shapes: [] });
   });
   document.getElementById('amd-difference').addEventListener('change', function () {
@@ -363,13 +487,15 @@
     fact('Rel. energy', energyText(i));
     fact('Energy', S.energy[i] === null ? '–' : P.fmt(S.energy[i], 3) + ' ' + unit);
     fact('Density', P.fmt(S.density[i], 4) + ' g/cm³');
-    fact('Family', familyName(S.family[i]));
+    fact('Family', familyLabel(S.family[i]));
     fact('Members', String(S.members[i]));
     fact('Space group', S.spaceGroup[i] === null ? '–' : S.spaceGroup[i] + (S.sgNumber[i] === null ? '' : ' (No. ' + S.sgNumber[i] + ')') +
       (S.sgDetected[i] === 1 ? ', detected within ' + D.parameters.symmetryToleranceAngstrom + ' Å' : S.sgDetected[i] === 0 ? ', as declared (see notes)' : ''));
     fact('Declared', S.sgDeclared[i] === null ? '–' : S.sgDeclared[i]);
     if (S.writtenIn[i]) fact('Members written in', S.writtenIn[i]);
     fact('Z / Z′', (S.z[i] === null ? '–' : String(S.z[i])) + ' / ' + zPrimeText(i));
+    fact('Cell', cellText(i) || '–');
+    fact('Volume', volumeText(i) || '–');
     fact('Atoms per cell', S.atoms[i] === null ? '–' : String(S.atoms[i]));
     fact('Formula', D.formulas[S.formula[i]] || '–');
     fact('Compared composition', D.formulas[S.composition[i]] || '–');
@@ -456,20 +582,43 @@
 
   function drawMap() {
     var note = document.getElementById('map-note');
+    var fold = document.getElementById('map-fold');
     if (!D.embedding || D.embedding.coords.length === 0) {
       note.textContent = 'This landscape holds no metric map (too few kept structures, or none was computed).';
-      mapDiv.hidden = true;
+      fold.hidden = true;
       return;
     }
+    var q = D.mapQuality;
+    var stressText = q && q.stress !== null ? 'Kruskal stress-1 ' + P.fmt(q.stress, 2) + ' (' + q.grade + '; 0.2 is poor, 0.1 fair, 0.05 good)' : 'no stress given';
+    var trustText = q && q.trustworthiness !== null ? ', trustworthiness ' + P.fmt(q.trustworthiness, 2) +
+      ' (the share of each structure\u2019s map neighbours that are near it under EMD too)' : '';
+    note.textContent = 'Kept structures placed in 2D so that distances on the map follow their EMD (Å), to show which ones the metric ' +
+      'puts together. How far to trust it: ' + stressText + trustText + '. Method: ' + D.embedding.method + '.';
+    if (q && q.folded) {
+      // A poor map is no finding: fold it, and draw it only when the reader asks.
+      fold.open = false;
+      document.getElementById('map-summary').textContent = 'Folded: with a stress this high the map\u2019s shapes can mislead ' +
+        '(the EMDs do not fit in two dimensions). Show it anyway';
+      var foldedText = document.getElementById('map-summary').textContent;
+      fold.addEventListener('toggle', function () {
+        document.getElementById('map-summary').textContent = fold.open ? 'Fold the map again (its stress is poor)' : foldedText;
+        if (fold.open && !report.mapDrawn) plotMap();
+      });
+      report.mapFolded = true;
+      return;
+    }
+    document.getElementById('map-summary').textContent = 'Map';
+    plotMap();
+  }
+
+  function plotMap() {
     var em = D.embedding;
-    note.textContent = 'Kept structures placed in 2D so that plotted distances follow their EMD (Å). Method: ' + em.method +
-      '. Quality: ' + (em.quality.length ? em.quality.map(function (q) { return q.name + ' = ' + P.fmt(q.value, 3); }).join('; ') : 'not given') + '.';
     var traces = [];
     report.traces.mapKept = 0;
     traces.push({
       type: P.scatterType(em.coords.length), mode: 'markers', name: 'Kept structures',
       x: em.coords.map(function (p) { return p[0]; }), y: em.coords.map(function (p) { return p[1]; }),
-      text: D.kept.map(function (i) { return '<b>' + P.escapeForPlot(S.id[i]) + '</b><br>' + familyName(S.family[i]) + ', ' + energyText(i); }),
+      text: D.kept.map(function (i) { return '<b>' + P.escapeForPlot(S.id[i]) + '</b><br>family: ' + familyLabel(S.family[i]) + ', ' + energyText(i); }),
       hoverinfo: 'text',
       marker: {
         size: 7, color: D.kept.map(function (i) { return familyColour(S.family[i]); }),
@@ -546,19 +695,33 @@
     var cv = D.convergence;
     if (!cv || cv.points.length === 0) return;
     document.getElementById('convergence-section').hidden = false;
-    document.getElementById('convergence-statement').textContent = cv.statement;
+    var st = document.getElementById('convergence-statement');
+    st.textContent = cv.statement;
+    st.className = 'ps-statement ps-verdict-' + (cv.verdict || (cv.stillGrowing ? 'growing' : 'levelled-off'));
+    var t = cv.tail;
+    if (D.convergenceRule) document.getElementById('convergence-rule').textContent = D.convergenceRule + ' The shaded band is that last part.';
     var xs = cv.points.map(function (p) { return p.processed; });
     var palette = ['#440154', '#31688e', '#35b779', '#e69f00', '#cc79a7', '#0072b2'];
     var traces = cv.windows.map(function (w, k) {
       return {
         type: 'scatter', mode: 'lines', x: xs, y: cv.points.map(function (p) { return p.counts[k]; }),
-        name: 'within ' + w + ' ' + unit, line: { width: 2, color: palette[k % palette.length], shape: 'hv' },
+        name: 'within ' + w + ' ' + unit, line: { width: k === 0 ? 3 : 2, color: palette[k % palette.length], shape: 'hv' },
       };
     });
+    var n = xs[xs.length - 1];
+    var shapes = [];
+    if (t) {
+      var from = n - t.candidates;
+      shapes.push({ type: 'rect', xref: 'x', yref: 'paper', x0: from, x1: n, y0: 0, y1: 1, fillcolor: '#e0b24a', opacity: 0.15, line: { width: 0 }, layer: 'below' });
+    }
     Plotly.newPlot(document.getElementById('convergence-plot'), traces, P.baseLayout({
       showlegend: true, legend: { orientation: 'h', y: 1.08 },
       xaxis: { title: { text: 'candidates processed (input order)' }, gridcolor: '#e6eaee' },
       yaxis: { title: { text: 'distinct kept structures' }, gridcolor: '#e6eaee', rangemode: 'tozero' },
+      shapes: shapes,
+      annotations: t ? [{ x: n, xanchor: 'right', xref: 'x', yref: 'paper', y: 0.02, yanchor: 'bottom', showarrow: false,
+        text: 'last ' + Math.round(t.fraction * 100) + '%: ' + t.newWithinLowest + ' of ' + t.withinLowest + ' new within ' + cv.windows[0] + ' ' + unit,
+        font: { size: 11, color: '#5b4a1a' } }] : [],
     }), P.plotConfig);
   }
 

@@ -6,7 +6,11 @@ import {
   convergenceCsv,
   convergenceCsvHeader,
   convergenceCurve,
+  convergenceVerdict,
   defaultWindows,
+  GROWING_SHARE,
+  LEVELLED_SHARE,
+  MIN_NEW_GROWING,
   fromKjPerMol,
 } from '../src/landscape/convergence.js';
 import type { ConvergenceCurve, StructureRow } from '../src/landscape/schema.js';
@@ -61,6 +65,37 @@ function generatedRun(n: number, lastNew: number, seed: number): StructureRow[] 
   return rows;
 }
 
+/** `count` candidate numbers (1-based) spread evenly over [from, to]. */
+function spread(count: number, from: number, to: number): number[] {
+  if (count === 1) return [from];
+  return Array.from({ length: count }, (_x, i) => Math.round(from + ((to - from) * i) / (count - 1)));
+}
+
+/**
+ * An invented run of `n` candidates in which the distinct structures within 5 kJ/mol are first met at the candidate
+ * numbers `lowFirst`, plus the lowest one (energy 0) at candidate `lowestAt` (default 1); others (at 15 kJ/mol) at
+ * `highFirst`, moved to the next free candidate when taken. Every other candidate re-finds the structure met at
+ * candidate 1, which must be one of the first finds.
+ */
+function runWithFirstFinds(n: number, lowFirst: number[], highFirst: number[], lowestAt = 1): StructureRow[] {
+  const rows: StructureRow[] = [];
+  const firsts = new Map<number, number>();
+  firsts.set(lowestAt, 0);
+  lowFirst.forEach((c, g) => firsts.set(c, 1 + (g % 40) * 0.1));
+  if (firsts.size !== 1 + lowFirst.length) throw new Error('runWithFirstFinds: two low-energy groups share a first candidate');
+  for (let c of highFirst) {
+    while (firsts.has(c)) c++;
+    if (c > n) throw new Error('runWithFirstFinds: no free candidate left for a higher group');
+    firsts.set(c, 15);
+  }
+  if (!firsts.has(1)) throw new Error('runWithFirstFinds: candidate 1 must be a first find');
+  for (let i = 0; i < n; i++) {
+    const e = firsts.get(i + 1);
+    rows.push(e === undefined ? row(i, 'duplicate', 0, firsts.get(1)! + 0.01) : row(i, 'kept', i, e));
+  }
+  return rows;
+}
+
 /** Brute-force count after `processed` candidates: groups with a member among them, kept energy within w. */
 function bruteCounts(rows: StructureRow[], processed: number, windows: number[]): number[] {
   const groups = new Set<number>();
@@ -109,8 +144,10 @@ describe('convergenceCurve', () => {
     // Last 25% of 6 candidates: candidates floor(6*0.75)+1 = 5 to 6; nothing within 5 kJ/mol appeared there,
     // the only such structure (index 0) was first met at candidate 1.
     expect(c.stillGrowing).toBe(false);
-    expect(c.statement).toMatch(/^Not growing/);
-    expect(c.statement).toContain('candidate 1');
+    expect(c.verdict).toBe('levelled-off');
+    expect(c.tail).toEqual({ fraction: 0.25, candidates: 2, withinLowest: 1, newWithinLowest: 0, lowestFirstFoundAt: 1 });
+    expect(c.statement).toMatch(/^Levelled off: none of the 1 distinct structures within 5 kJ\/mol/);
+    expect(c.statement).toContain('first found at candidate 1.');
   });
 
   it('agrees with a brute-force recount at every candidate of a generated run', () => {
@@ -130,7 +167,8 @@ describe('convergenceCurve', () => {
     // and not flat in the first half: the generator adds distinct minima there
     expect(curveAt(curve, 150)[2]).toBeLessThan(atHalf[2]);
     expect(curve.stillGrowing).toBe(false);
-    expect(curve.statement).toMatch(/^Not growing: no new distinct structure within 5 kJ\/mol .* last 150 of 600 candidates/);
+    expect(curve.verdict).toBe('levelled-off');
+    expect(curve.statement).toMatch(/^Levelled off: none of the \d+ distinct structures within 5 kJ\/mol .* last 150 of 600 candidates/);
   });
 
   it('says a run still finding new low-energy structures near its end is growing', () => {
@@ -138,8 +176,68 @@ describe('convergenceCurve', () => {
     const curve = convergenceCurve(rows, [5, 10, 20]) as ConvergenceCurve;
     const lowNewInTail = bruteCounts(rows, 600, [5])[0] - bruteCounts(rows, 450, [5])[0];
     expect(lowNewInTail).toBeGreaterThan(0);
+    const lowTotal = bruteCounts(rows, 600, [5])[0];
+    // a steady run meets about a quarter of them in its last quarter: well above the 10% and 3 the rule asks
+    expect(lowNewInTail).toBeGreaterThanOrEqual(3);
+    expect(lowNewInTail / lowTotal).toBeGreaterThanOrEqual(0.1);
     expect(curve.stillGrowing).toBe(true);
-    expect(curve.statement).toContain(`Still growing: ${lowNewInTail} of the ${bruteCounts(rows, 600, [5])[0]}`);
+    expect(curve.verdict).toBe('growing');
+    expect(curve.statement).toContain(`Still growing: ${lowNewInTail} of the ${lowTotal} distinct structures within 5 kJ/mol`);
+  });
+
+  describe('the verdict rule (README, "Convergence")', () => {
+    // The two cases issue 14 names: a 10,000-structure search with 1 of 107 low-energy structures new in its last
+    // quarter (a practitioner calls it converged), and the old demo with 27 of 164 new there (still growing).
+    it('calls 1 new of 107 within 5 kJ/mol in the last quarter of 10,000 candidates levelled off', () => {
+      const rows = runWithFirstFinds(10000, [...spread(105, 2, 7400), 9000], spread(900, 3, 9990));
+      const c = convergenceCurve(rows, [5, 10, 20]) as ConvergenceCurve;
+      expect(c.tail).toEqual({ fraction: 0.25, candidates: 2500, withinLowest: 107, newWithinLowest: 1, lowestFirstFoundAt: 1 });
+      expect(c.verdict).toBe('levelled-off');
+      expect(c.stillGrowing).toBe(false);
+      expect(c.statement).toBe(
+        'Levelled off: 1 of the 107 distinct structures within 5 kJ/mol of the lowest energy was first found in the last 2,500 ' +
+          'of 10,000 candidates (the last 25%), 1% of them where a search still finding them at a steady rate would give about 25%. ' +
+          "More starts of the same kind would likely add few low-energy structures (this says nothing about space groups, Z' or " +
+          'conformers the search did not try).',
+      );
+    });
+
+    it('calls 27 new of 164 within 5 kJ/mol in the last 72 of 285 candidates still growing', () => {
+      const rows = runWithFirstFinds(285, [...spread(136, 2, 212), ...spread(27, 215, 284)], spread(22, 3, 280));
+      const c = convergenceCurve(rows, [5, 10, 20]) as ConvergenceCurve;
+      expect(c.tail).toMatchObject({ candidates: 72, withinLowest: 164, newWithinLowest: 27 });
+      expect(c.verdict).toBe('growing');
+      expect(c.statement).toMatch(/^Still growing: 27 of the 164 distinct structures .* last 72 of 285 candidates \(the last 25%\), 16% of them/);
+    });
+
+    it('calls a few late finds below the growth thresholds slowing, and the lowest found late growing', () => {
+      // 2 of 18 new in the tail: 11%, but fewer than 3.
+      const slow = convergenceCurve(runWithFirstFinds(380, [...spread(15, 2, 240), 300, 350], spread(100, 3, 370)), [5, 10, 20]) as ConvergenceCurve;
+      expect(slow.tail.newWithinLowest).toBe(2);
+      expect(slow.verdict).toBe('slowing');
+      expect(slow.statement).toMatch(/^Slowing: 2 of the 18 /);
+      // 3 of 60 new: at least 3 but 5%: slowing, not growing (the share rule).
+      const share = convergenceCurve(runWithFirstFinds(400, [...spread(56, 2, 290), 310, 330, 390], []), [5]) as ConvergenceCurve;
+      expect(share.tail.newWithinLowest).toBe(3);
+      expect(share.verdict).toBe('slowing');
+      // The lowest-energy structure itself first met in the tail: growing whatever the counts.
+      const lowestLate = runWithFirstFinds(400, spread(40, 1, 200), [], 390);
+      const c = convergenceCurve(lowestLate, [5]) as ConvergenceCurve;
+      expect(c.tail.lowestFirstFoundAt).toBe(390);
+      expect(c.verdict).toBe('growing');
+      expect(c.statement).toMatch(/^Still growing: the lowest-energy structure itself was first found at candidate 390/);
+      expect(convergenceVerdict(0, 40, true)).toBe('growing');
+    });
+
+    it('puts the thresholds where the README says', () => {
+      expect([MIN_NEW_GROWING, GROWING_SHARE, LEVELLED_SHARE]).toEqual([3, 0.1, 0.05]);
+      expect(convergenceVerdict(3, 30, false)).toBe('growing');
+      expect(convergenceVerdict(2, 10, false)).toBe('slowing');
+      expect(convergenceVerdict(3, 31, false)).toBe('slowing');
+      expect(convergenceVerdict(1, 20, false)).toBe('slowing');
+      expect(convergenceVerdict(1, 21, false)).toBe('levelled-off');
+      expect(convergenceVerdict(0, 5, false)).toBe('levelled-off');
+    });
   });
 
   it('returns null when no kept structure has an energy', () => {

@@ -1,7 +1,8 @@
 // The convergence curve sift stores in landscape.json, on generated runs (src/demo/landscape.ts) whose input order
 // is arranged from the generator's truth: (1) every packing first appears in the first half, the second half only
 // re-finds them, so the curve must be flat over the second half and say "Not growing"; (2) the lowest-energy
-// packing first appears in the last quarter, so the statement must say the low-energy part is still growing.
+// packing first appears in the last quarter, so the statement must say the low-energy part is still growing
+// (the verdict rule of src/landscape/convergence.ts; the statements' wording changed with issue 14).
 import { mkdtempSync, writeFileSync } from 'node:fs';
 import { tmpdir } from 'node:os';
 import { join } from 'node:path';
@@ -50,7 +51,8 @@ describe('convergence curve of sifted generated runs', () => {
     expect(countsAt(c, n)).toEqual(c.windows.map((w) => l.kept.filter((i) => (l.structures[i].energyRel as number) <= w).length));
     expect(half[2]).toBe(8);
     expect(c.stillGrowing).toBe(false);
-    expect(c.statement).toMatch(/^Not growing: no new distinct structure within 5 kJ\/mol of the lowest energy was found in the last 12 of 48 candidates/);
+    expect(c.verdict).toBe('levelled-off');
+    expect(c.statement).toMatch(/^Levelled off: none of the \d+ distinct structures within 5 kJ\/mol of the lowest energy was first found in the last 12 of 48 candidates/);
   });
 
   it('says the low-energy part is still growing when the lowest packing first appears in the last quarter', async () => {
@@ -60,7 +62,10 @@ describe('convergence curve of sifted generated runs', () => {
     const l = await siftInOrder([...others, ...mine]);
     const c = l.convergence as ConvergenceCurve;
     expect(c.stillGrowing).toBe(true);
-    expect(c.statement).toMatch(/^Still growing: \d+ of the \d+ distinct structures within 5 kJ\/mol/);
+    expect(c.verdict).toBe('growing');
+    // the lowest structure itself found only in the last quarter: growing, whatever the counts (the rule's first clause)
+    expect(c.statement).toMatch(/^Still growing: the lowest-energy structure itself was first found at candidate \d+, in the last 12 of 48 candidates/);
+    expect(c.tail.lowestFirstFoundAt).toBe(others.length + 1);
     // the step happens exactly where the lowest packing's first copy sits
     expect(countsAt(c, others.length + 1)[0] - countsAt(c, others.length)[0]).toBe(1);
   });

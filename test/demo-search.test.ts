@@ -9,10 +9,10 @@ import { spawnSync } from 'node:child_process';
 import { mkdtempSync, writeFileSync } from 'node:fs';
 import { tmpdir } from 'node:os';
 import { join } from 'node:path';
-import { runMiniSearch, startFrom, type MiniSearchResult } from '../src/demo/search/search.js';
+import { runMiniSearch, runMiniSearchInWorkers, startFrom, startSeed, type MiniSearchResult } from '../src/demo/search/search.js';
 import { energyAt, makeRelaxModel, reduceCell, stateEnergy, variablesOf, GRADIENT_TOLERANCE } from '../src/demo/search/relax.js';
 import { energyOfAtoms } from '../src/demo/search/lattice-energy.js';
-import { pairEnergy, pairTable, CUTOFF_ANGSTROM } from '../src/demo/search/potential.js';
+import { atomPairEnergy, pairTable, COULOMB_KJ_A_PER_MOL, CUTOFF_ANGSTROM } from '../src/demo/search/potential.js';
 import { orvazinone } from '../src/demo/molecule.js';
 import { makeRng } from '../src/demo/prng.js';
 import { basisFromCell, cellFromBasis, inverse, vecMat } from '../src/demo/mat3.js';
@@ -23,7 +23,7 @@ import { sift } from '../src/landscape/sift.js';
 import type { RigidState } from '../src/demo/search/relax.js';
 
 const mol = orvazinone();
-const table = pairTable(mol.elements);
+const table = pairTable(mol);
 
 /** Molecule 0 of a state as CIF-like data: basis, the group's operations and the atoms' fractional coordinates. */
 function expressed(s: RigidState): Expressed {
@@ -73,6 +73,26 @@ describe('demo mini search', () => {
     expect(new Set(r.groups)).toEqual(new Set(['P21/c', 'P-1', 'P212121', 'C2/c', 'P21']));
     expect(r.cif.match(/^data_/gm)?.length).toBe(r.ids.length);
     expect(r.energiesCsv.trim().split('\n')).toEqual(['id,energy', ...r.ids.map((id, i) => `${id},${r.energiesKjPerMol[i].toFixed(4)}`)]);
+  });
+
+  it('gives the same CIF when its starts are relaxed in two worker threads (each start has its own seeded stream)', async () => {
+    const inWorkers = await runMiniSearchInWorkers({ seed: 5, starts: 24, threads: 2 });
+    const here = runMiniSearch({ seed: 5, starts: 24 });
+    expect(inWorkers.cif).toBe(here.cif);
+    expect(inWorkers.energiesCsv).toBe(here.energiesCsv);
+    expect(inWorkers.rejected).toEqual(here.rejected);
+    // neighbouring starts draw from unrelated streams
+    expect(new Set(Array.from({ length: 1000 }, (_x, s) => startSeed(5, s))).size).toBe(1000);
+  }, 120_000);
+
+  it('the molecule is neutral and the Coulomb constant is e^2 N_A / (4 pi eps0) from CODATA 2018 constants', () => {
+    // A neutral molecule keeps the shifted-force charge sum from depending on how the cutoff cuts molecules.
+    expect(Math.abs(mol.charges.reduce((a, q) => a + q, 0))).toBeLessThan(1e-12);
+    expect(mol.charges.length).toBe(mol.elements.length);
+    // CODATA 2018: e = 1.602176634e-19 C (exact), N_A = 6.02214076e23 /mol (exact), eps0 = 8.8541878128e-12 F/m.
+    const e = 1.602176634e-19;
+    const kJPerMolAngstrom = ((e * e) / (4 * Math.PI * 8.8541878128e-12)) * 6.02214076e23 * 1e10 / 1000;
+    expect(Math.abs(COULOMB_KJ_A_PER_MOL - kJPerMolAngstrom) / kJPerMolAngstrom).toBeLessThan(1e-8);
   });
 
   it('every relaxed structure ends lower than its start (a descent method)', () => {
@@ -135,7 +155,7 @@ describe('demo mini search', () => {
               const d = [0, 1, 2].map((c) => p1.frac[3 * j + c] - p1.frac[3 * i + c] + [u, v, w][c]);
               const x = vecMat(d, b);
               const dist = Math.hypot(x[0], x[1], x[2]);
-              if (dist < CUTOFF_ANGSTROM) sum += 0.5 * pairEnergy(table, table.typeOf[i], table.typeOf[j % n], dist);
+              if (dist < CUTOFF_ANGSTROM) sum += 0.5 * atomPairEnergy(table, i, j % n, dist);
             }
     expect(Math.abs(sum - s.energyKjPerMol)).toBeLessThan(1e-8);
   });
@@ -146,7 +166,10 @@ describe('demo mini search', () => {
       const e = expressed(s.state);
       const e0 = energyOfAtoms(table, e.ops!, e.basis, e.frac);
       expect(Math.abs(e0 - s.energyKjPerMol)).toBeLessThan(1e-8);
-      const other = shiftOrigin(changeBasis(e, randomUnimodular(rng, e.basis)), [rng.int(12) / 12, rng.int(12) / 12, rng.int(12) / 12]);
+      // A random unimodular matrix can be the identity; draw again until the cell really changes.
+      let p = randomUnimodular(rng, e.basis);
+      for (let tries = 0; tries < 20 && p.every((v, k) => v === (k % 4 === 0 ? 1 : 0)); tries++) p = randomUnimodular(rng, e.basis);
+      const other = shiftOrigin(changeBasis(e, p), [rng.int(12) / 12, rng.int(12) / 12, rng.int(12) / 12]);
       expect(other.basis).not.toEqual(e.basis);
       expect(Math.abs(energyOfAtoms(table, other.ops!, other.basis, other.frac) - e0)).toBeLessThan(1e-8);
       // In the optimiser's own variables: a monoclinic cell sheared to c' = c + 2a (a, b and the Cartesian frame

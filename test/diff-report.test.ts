@@ -5,6 +5,7 @@ import { tmpdir } from 'node:os';
 import { join } from 'node:path';
 import { afterAll, beforeAll, describe, expect, it } from 'vitest';
 import type { Browser } from 'playwright-core';
+import { mkdirSync } from 'node:fs';
 import { launchChromium, openFile } from './helpers/browser.js';
 import { diffLandscapes } from '../src/landscape/diff.js';
 import { writeDiffOutputs, DIFF_PAIR_COLUMNS, DIFF_STRUCTURE_COLUMNS } from '../src/landscape/diff-files.js';
@@ -63,6 +64,54 @@ describe('diff report', () => {
     expect(hidden).toBe(true);
     // The hostile id is shown as text.
     expect(await page.locator('img').count()).toBe(0);
+    await w.context.close();
+  });
+
+  it('a diff whose matched pairs all share one energy shift gets a readable shift axis (issue 14)', async () => {
+    // Run A holds one extra structure 0.2693 kJ/mol below every shared one; the shared structures have the same
+    // energies in both runs, so every matched pair's energy above its run's lowest shifts by exactly -0.2693
+    // (up to floating-point rounding, which is what used to fill the axis), and densities by -0.00001 g/cm3.
+    const { A, B } = pairedRuns(21, 10, 9, 1, 0, 0.004, 0.2);
+    const shared = A.filter((s) => s.id.startsWith('a-shared-'));
+    const lowest = Math.min(...shared.map((s) => s.energy as number));
+    A.find((s) => s.id.startsWith('a-only-'))!.energy = lowest - 0.2693;
+    for (const b of B) {
+      const a = A.find((s) => s.id === b.id.replace('b-', 'a-'))!;
+      b.energy = (a.energy as number) + 1e-13;
+      b.densityGPerCm3 = a.densityGPerCm3 - 0.00001;
+    }
+    const d = await diffLandscapes(landscapeOf(A, 10), landscapeOf(B, 10), 'runs/a', 'runs/b', { threads: 1 });
+    expect(d.counts.both).toBe(9);
+    for (const p of d.pairs) expect(p.energyRelShift!).toBeCloseTo(-0.2693, 9);
+    const dir = mkdtempSync(join(tmpdir(), 'polysift-diff-shift-'));
+    writeDiffOutputs(dir, d, 'Constant shift');
+    const w = await openFile(browser, join(dir, 'report.html'));
+    expect(w.consoleErrors).toEqual([]);
+    expect(w.pageErrors).toEqual([]);
+    const page = w.page;
+    // Tick labels of the shift axis: short, rounded numbers (at most 2 decimals), spanning the shift and zero.
+    const ticks = await page.$$eval('#shift-plot .ytick text', (t) => t.map((x) => x.textContent ?? ''));
+    expect(ticks.length).toBeGreaterThanOrEqual(3);
+    for (const t of ticks) expect(t.replace('\u2212', '-')).toMatch(/^-?\d+(\.\d{1,2})?$/);
+    const values = ticks.map((t) => Number(t.replace('\u2212', '-')));
+    expect(Math.min(...values)).toBeLessThanOrEqual(-0.2);
+    expect(Math.max(...values)).toBeGreaterThanOrEqual(0);
+    // The labels do not overlap each other or the axis title.
+    const boxes = await page.$$eval('#shift-plot .ytick text, #shift-plot .ytitle', (t) => t.map((x) => x.getBoundingClientRect().toJSON() as DOMRect));
+    for (let i = 0; i < boxes.length; i++)
+      for (let j = i + 1; j < boxes.length; j++) {
+        const a = boxes[i]!, b = boxes[j]!;
+        const overlap = a.left < b.right && b.left < a.right && a.top < b.bottom && b.top < a.bottom;
+        expect(overlap, `labels ${i} and ${j} overlap`).toBe(false);
+      }
+    expect(await page.textContent('#shift-note')).toContain('Every matched pair shifted by the same -0.27 kJ/mol');
+    // The density shift of -0.00001 g/cm3 prints as 0.0000, without a sign.
+    const densityCells = await page.$$eval('#pairs-table tbody tr td:nth-child(9)', (c) => c.map((x) => x.textContent));
+    expect(densityCells.length).toBe(9);
+    for (const c of densityCells) expect(c).toBe('0.0000');
+    const screens = join(process.cwd(), 'reports', 'test-screens');
+    mkdirSync(screens, { recursive: true });
+    await (await page.$('#shift-section'))!.screenshot({ path: join(screens, 'diff-constant-shift.png') });
     await w.context.close();
   });
 });

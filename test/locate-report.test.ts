@@ -57,6 +57,9 @@ describe('locate report', () => {
     });
     expect(plot).toEqual({ stars: [1], shapes: 2 });
     expect(await page.$$eval('#reference-tables table tbody tr', (rows) => rows.length)).toBe(6);
+    // These kept structures are in no family: the Family column says "none", as the sift report does (issue 14).
+    const families = await page.$$eval('#reference-tables table tbody tr td:nth-child(9)', (c) => c.map((x) => x.textContent));
+    expect(families).toEqual(Array(6).fill('none'));
     await w.context.close();
   });
 });

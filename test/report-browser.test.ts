@@ -6,13 +6,21 @@ import { afterAll, beforeAll, describe, expect, it } from 'vitest';
 import { mkdirSync, mkdtempSync, writeFileSync } from 'node:fs';
 import { tmpdir } from 'node:os';
 import { join } from 'node:path';
-import type { Browser } from 'playwright-core';
+import type { Browser, Page } from 'playwright-core';
 import { renderSiftReport } from '../src/report/sift-report.js';
 import type { Landscape } from '../src/landscape/schema.js';
 import { syntheticLandscape } from './helpers/synthetic-landscape.js';
 import { clickIsolatedKeptMarker, launchChromium, openFile, type PageWatch } from './helpers/browser.js';
 
 const SCREENS = join(process.cwd(), 'reports', 'test-screens');
+
+/** The structure panel's facts, name to text. */
+async function panelFacts(page: Page): Promise<Map<string, string>> {
+  const cells = await page.$$eval('#panel-facts dt, #panel-facts dd', (n) => n.map((x) => x.textContent ?? ''));
+  const facts = new Map<string, string>();
+  for (let i = 0; i + 1 < cells.length; i += 2) facts.set(cells[i]!, cells[i + 1]!);
+  return facts;
+}
 
 interface ReportGlobals {
   polysiftReport: { traces: { kept: number; duplicates: number }; selected: number | null };
@@ -72,6 +80,16 @@ describe('the sift report in a browser', () => {
     expect(await w.page.textContent('#panel-facts')).toContain(land.structures[idx]!.source);
     const selectedRow = await w.page.locator('#kept-table tbody tr[aria-selected="true"]').getAttribute('data-item');
     expect(Number(selectedRow)).toBe(idx);
+    // The hover label under the mouse and the panel both give its cell and volume (issue 14).
+    const cell = land.structures[idx]!.cell!;
+    const cellLine = `a, b, c ${cell.a.toFixed(3)}, ${cell.b.toFixed(3)}, ${cell.c.toFixed(3)} Å; ` +
+      `α, β, γ ${cell.alpha.toFixed(2)}, ${cell.beta.toFixed(2)}, ${cell.gamma.toFixed(2)}°`;
+    const hover = (await w.page.locator('#landscape-plot .hoverlayer .hovertext').first().textContent())!;
+    expect(hover).toContain(id);
+    expect(hover).toContain(`${cellLine}; V ${cell.volume!.toFixed(1)} Å³`);
+    const facts = await panelFacts(w.page);
+    expect(facts.get('Cell')).toBe(cellLine);
+    expect(facts.get('Volume')).toBe(`${cell.volume!.toFixed(1)} Å³`);
     // Its members: every duplicate collapsed into it is listed.
     const dupIds = land.structures.filter((r) => r.status === 'duplicate' && r.keptIndex === idx).map((r) => r.id).sort();
     const listed = (await w.page.locator('#members-table tbody tr td:first-child').allTextContents()).sort();
@@ -133,11 +151,12 @@ describe('the sift report in a browser', () => {
     expect(next).not.toBe(idx);
     await w.page.keyboard.press('Enter');
     await w.page.waitForFunction((want) => document.getElementById('panel-id')?.textContent === want, land.structures[next]!.id);
-    // The marker is ringed: one shape anchored at the structure's density and relative energy.
+    // The marker is ringed: one circle anchored at the structure's density and relative energy.
     const hl = await w.page.evaluate(() => {
       const g = window as unknown as ReportGlobals;
-      const gd = document.getElementById('landscape-plot') as unknown as { layout: { shapes: Array<{ xanchor: number; yanchor: number }> } };
-      return { shapes: gd.layout.shapes, selected: g.polysiftReport.selected };
+      const gd = document.getElementById('landscape-plot') as unknown as { layout: { shapes: Array<{ type: string; xanchor: number; yanchor: number }> } };
+      // The ring is the one circle; the other shape marks the pair energy/density windows would merge (issue 14).
+      return { shapes: gd.layout.shapes.filter((x) => x.type === 'circle'), selected: g.polysiftReport.selected };
     });
     expect(hl.selected).toBe(next);
     expect(hl.shapes.length).toBe(1);
@@ -232,6 +251,7 @@ describe('the sift report in a browser', () => {
       r.energyRel = null;
     }
     tiny.lowestEnergy = null;
+    tiny.structures[tiny.kept[0]!]!.cell = null;
     tiny.embedding = null;
     const dir = mkdtempSync(join(tmpdir(), 'polysift-report-tiny-'));
     const file = join(dir, 'report.html');
@@ -251,6 +271,10 @@ describe('the sift report in a browser', () => {
       await t.page.keyboard.press('Enter');
       await t.page.waitForFunction((want) => document.getElementById('panel-id')?.textContent === want, tiny.structures[tiny.kept[0]!]!.id);
       expect(await t.page.locator('#members-table tbody tr').count()).toBe(2);
+      // No cell known: the panel says so with a dash rather than a made-up value.
+      const facts = await panelFacts(t.page);
+      expect(facts.get('Cell')).toBe('–');
+      expect(facts.get('Volume')).toBe('–');
       expect(t.consoleErrors).toEqual([]);
       expect(t.pageErrors).toEqual([]);
     } finally {

@@ -9,6 +9,7 @@ import type { Family, KeptInvariants, Landscape, RowSymmetry, StructureRow } fro
 import { writtenInByKept } from '../landscape/written-in.js';
 import { defaultSetting, groupSymbol } from '../geometry/space-group-table.js';
 import { seededUniform } from '../demo/prng.js';
+import { convergenceCurve } from '../landscape/convergence.js';
 
 export interface SyntheticOptions {
   /** Number of kept structures. */
@@ -124,6 +125,16 @@ export function syntheticLandscape(opts: SyntheticOptions): Landscape {
   for (let d = 0; d < nDup; d++) closestDup[dupOwner[d]!] = Math.min(closestDup[dupOwner[d]!]!, dupDist[d]!);
 
   const sg = (g: number) => SPACE_GROUPS[g % SPACE_GROUPS.length] as string;
+  /**
+   * A cell that holds Z molecules of C7H6N2O (134.14 g/mol) at the given density: a and b from fixed fractions of
+   * g (the random stream is left as it was), beta from 90 to 115 degrees, c from the volume (Z M / (rho N_A)).
+   */
+  const cellFor = (g: number, densityGPerCm3: number): StructureRow['cell'] => {
+    const volume = (Z_OF[sg(g)]! * 134.14) / (densityGPerCm3 * 0.602214076);
+    const a = 5 + ((g * 0.618034) % 1) * 6, b = 6 + ((g * 0.414214) % 1) * 8, beta = 90 + ((g * 0.732051) % 1) * 25;
+    const c = volume / (a * b * Math.sin((beta * Math.PI) / 180));
+    return { a, b, c, alpha: 90, beta, gamma: 90, volume };
+  };
   const rows: StructureRow[] = [];
   for (let i = 0; i < total; i++) {
     const w = which[i]!;
@@ -140,7 +151,8 @@ export function syntheticLandscape(opts: SyntheticOptions): Landscape {
       const nb0 = nbIdx[g * nbK]!;
       Object.assign(base, {
         status: 'kept', energy: -95 + eRel[g]!, energyRel: eRel[g]!, densityGPerCm3: dens[g]!, atoms: 16 * Z_OF[sg(g)]!,
-        spaceGroup: sg(g), symmetry: detected(sg(g), sg(g)), z: Z_OF[sg(g)]!, zPrime: 1, keptIndex: i, distanceToKept: 0, family: fam[g]!,
+        spaceGroup: sg(g), symmetry: detected(sg(g), sg(g)), cell: cellFor(g, dens[g]!), z: Z_OF[sg(g)]!, zPrime: 1, keptIndex: i,
+        distanceToKept: 0, family: fam[g]!,
         nearestIndex: nb0 >= 0 ? keptAt[nb0]! : null, nearestDistance: nb0 >= 0 ? nbDist[g * nbK]! : null,
         nnDistance: Math.min(closestDup[g]!, nb0 >= 0 ? nbDist[g * nbK]! : Infinity),
         members: members[g]!,
@@ -156,6 +168,7 @@ export function syntheticLandscape(opts: SyntheticOptions): Landscape {
         nnDistance: dupDist[w]!,
       });
       base.energyRel = (base.energy as number) + 95;
+      base.cell = cellFor(g, base.densityGPerCm3 as number);
     } else if (kind[i] === 2) {
       Object.assign(base, { status: 'rejected', reason: REASONS[w % REASONS.length]! });
       base.formulas = [];
@@ -204,24 +217,8 @@ export function syntheticLandscape(opts: SyntheticOptions): Landscape {
     return { index: keptAt[g]!, amd, pddWeights: [], pddRows: [] };
   });
 
-  // Convergence: distinct kept structures within each window after each prefix of the input order.
-  const windows = [5, 10, 20];
-  const points: Array<{ processed: number; counts: number[] }> = [];
-  const found = new Set<number>();
-  const counts = [0, 0, 0];
-  const step = Math.max(1, Math.floor(total / 200));
-  for (let i = 0; i < total; i++) {
-    const r = rows[i]!;
-    const g = r.keptIndex;
-    if (g !== null && !found.has(g)) {
-      found.add(g);
-      const e = rows[g]!.energyRel as number;
-      windows.forEach((w, c) => { if (e <= w) counts[c] = counts[c]! + 1; });
-    }
-    if ((i + 1) % step === 0 || i === total - 1) points.push({ processed: i + 1, counts: counts.slice() });
-  }
-  const half = points[Math.floor(points.length / 2)]!.counts[0]!;
-  const stillGrowing = counts[0]! > half;
+  // Convergence: the curve and verdict sift itself would store for this input order.
+  const convergence = opts.noConvergence ? null : convergenceCurve(rows, [5, 10, 20]);
 
   const land: Landscape = {
     format: 'polysift-landscape',
@@ -249,16 +246,7 @@ export function syntheticLandscape(opts: SyntheticOptions): Landscape {
       }),
     },
     invariants: { k, hydrogens: 'keep', kept: inv },
-    convergence: opts.noConvergence
-      ? null
-      : {
-          windows,
-          points,
-          statement: stillGrowing
-            ? 'Still growing: new structures within 5 kJ/mol kept appearing in the second half of the run.'
-            : 'Flat: no new structure within 5 kJ/mol appeared in the second half of the run.',
-          stillGrowing,
-        },
+    convergence,
   };
   return land;
 }

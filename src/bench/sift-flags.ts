@@ -1,7 +1,8 @@
 // The measurements behind sift's flag thresholds and the auto tolerance (src/landscape/flags.ts,
 // src/landscape/auto-tolerance.ts, README "Flags"):
-//  1. the demo's relaxed search: energies of copies of one minimum against their group's median, the flat minimum
-//     (three kept structures at one energy), and how closely distinct kept structures can agree by chance;
+//  1. the demo's relaxed search, and the same search with seed 4 (which leaves a flat minimum: two kept structures
+//     at one energy): energies of copies of one minimum against their group's median, kept pairs within the flat
+//     window, and how closely distinct kept structures can agree by chance;
 //  2. generated landscapes (0.02 kJ/mol energy noise per copy): copies against their group's median, and the
 //     energy difference of the distinct close partners (the hard pairs) where they lie within the flat window;
 //  3. the auto tolerance against the true gap of each generated landscape and of the demo;
@@ -11,7 +12,7 @@
 import { mkdtempSync, readFileSync, readdirSync, rmSync, writeFileSync } from 'node:fs';
 import { tmpdir } from 'node:os';
 import { join } from 'node:path';
-import { runMiniSearch } from '../demo/search/search.js';
+import { runMiniSearchInWorkers, type MiniSearchOptions } from '../demo/search/search.js';
 import { DEMO_SEARCH } from '../demo/run-demo.js';
 import { generateLandscape, type GeneratorOptions } from '../demo/landscape.js';
 import { sift } from '../landscape/sift.js';
@@ -31,7 +32,8 @@ const out = (s: string) => process.stdout.write(`${s}\n`);
 export async function run(): Promise<void> {
   const dir = mkdtempSync(join(tmpdir(), 'polysift-bench-flags-'));
   try {
-    await demoSearch(dir);
+    await demoSearch(dir, 'demo search', DEMO_SEARCH);
+    await demoSearch(dir, 'demo search with seed 4', { ...DEMO_SEARCH, seed: 4 });
     await generated(dir);
     elements();
     await pairCost();
@@ -51,11 +53,14 @@ function maxOffset(l: Landscape): number {
   return Math.max(0, ...l.structures.filter((r) => r.energyOffset !== null).map((r) => Math.abs(r.energyOffset!)));
 }
 
-async function demoSearch(dir: string): Promise<void> {
-  const found = runMiniSearch(DEMO_SEARCH);
+export async function demoSearch(dir: string, label: string, search: MiniSearchOptions): Promise<void> {
+  const found = await runMiniSearchInWorkers(search);
   const l = await siftText(dir, 'demo', found.cif, found.energiesCsv);
   const tc = l.toleranceChoice!;
-  out(`demo search (${l.counts.input} relaxed starts): auto tolerance ${tc.chosenAngstrom} Å in the gap ${tc.gapLowAngstrom}-${tc.gapHighAngstrom} Å; ${l.counts.kept} kept`);
+  const noise = Math.max(...l.structures.filter((r) => r.status === 'duplicate').map((r) => r.distanceToKept!));
+  const distinct = Math.min(...l.kept.map((k) => l.structures[k].nearestDistance!));
+  out(`${label}: copies within ${noise} Å of their kept structure, kept structures >= ${distinct} Å apart`);
+  out(`${label} (${l.counts.input} relaxed starts): auto tolerance ${tc.chosenAngstrom} Å in the gap ${tc.gapLowAngstrom}-${tc.gapHighAngstrom} Å; ${l.counts.kept} kept`);
   const dens = l.structures.filter((r) => r.status === 'duplicate').map((r) => Math.abs(r.densityGPerCm3! - l.structures[r.keptIndex!].densityGPerCm3!));
   out(`  copies of one minimum: energy at most ${maxOffset(l).toFixed(4)} kJ/mol from their group's median, density at most ${Math.max(...dens).toFixed(5)} g/cm3 from the kept one`);
   // Every pair of kept structures: EMD, energy and density differences.
@@ -83,7 +88,7 @@ async function demoSearch(dir: string): Promise<void> {
         if (score < coincidence.score) coincidence = { score, d, dE, dR };
       }
     }
-  out(`  ${inWindow} kept pairs within ${window} Å; beyond it the closest agreement is ${coincidence.dE.toFixed(4)} kJ/mol and ${coincidence.dR.toFixed(5)} g/cm3 (at ${coincidence.d.toFixed(3)} Å)`);
+  out(`  ${inWindow} of ${(l.kept.length * (l.kept.length - 1)) / 2} kept pairs within ${window} Å; beyond it the closest agreement is ${coincidence.dE.toFixed(4)} kJ/mol and ${coincidence.dR.toFixed(5)} g/cm3 (at ${coincidence.d.toFixed(3)} Å)`);
   out(`  flags: ${JSON.stringify(l.flagCounts)}`);
 }
 

@@ -26,8 +26,8 @@ export function registerDemo(program: Command): void {
             ]
           : [
               `relaxed ${r.starts} random starts: ${r.structures} minima written, ${r.rejectedStarts} starts rejected as unphysical ` +
-                `(demo-rejected-starts.csv); sift kept ${r.kept} distinct structures and collapsed ${r.structures - r.kept} duplicates.`,
-              `energy/density windows (0.5 kJ/mol, 0.02 g/cm3) would give ${r.binGroups} groups.`,
+                `(demo-rejected-starts.csv).`,
+              ...r.summary,
             ];
       if (!o.quiet) process.stdout.write(`${lines.join('\n')}\nreport: ${join(o.out, 'report.html')}\n`);
     });

@@ -2,6 +2,9 @@
 // A planar six-membered ring O1–C2–N3–C4–C5–N6 with an exocyclic C2=O7 and hydrogens on N3, C4, C5 and N6.
 // Bond lengths are typical values (ring ~1.39 Å, C=O 1.22 Å, N–H 1.01 Å, C–H 1.08 Å; common practice,
 // from memory). It is an invented compound for invented data, not a model of any real substance.
+// Its point charges (for the demo search's potential) are invented too, in the usual pattern of fitted charges of
+// amides and lactones: negative carbonyl and ring heteroatoms, a positive carbonyl carbon, positive N–H hydrogens
+// (common practice, from memory); they sum to zero.
 
 export const MOLECULE_NAME = 'orvazinone';
 
@@ -14,7 +17,15 @@ export interface MoleculeTemplate {
   /** Cartesian Å, 3 per atom, centred on the centroid of the atoms. */
   xyz: Float64Array;
   massGPerMol: number;
+  /** Point charge of each atom (e); sums to zero. */
+  charges: number[];
 }
+
+/**
+ * Invented point charges (e) in atom order: ring O1, C2, N3, C4, C5, N6, then O7 (on C2), H (on N3), H (on C4),
+ * H (on C5), H (on N6).
+ */
+const CHARGES = [-0.3, 0.7, -0.45, 0.1, -0.01, -0.45, -0.55, 0.38, 0.1, 0.1, 0.38];
 
 export function orvazinone(): MoleculeTemplate {
   const ringRadius = 1.39;
@@ -60,5 +71,5 @@ export function orvazinone(): MoleculeTemplate {
     return `${el}${counts[el]}`;
   });
   const massGPerMol = elements.reduce((s, el) => s + ATOMIC_MASS[el], 0);
-  return { elements, labels, xyz, massGPerMol };
+  return { elements, labels, xyz, massGPerMol, charges: CHARGES.slice() };
 }

@@ -176,10 +176,26 @@ export interface ConvergenceCurve {
   windows: number[];
   /** After `processed` candidates in input order: distinct kept structures found within each window. */
   points: Array<{ processed: number; counts: number[] }>;
-  /** A plain sentence on whether the low-energy part is still growing. */
+  /** A plain sentence on whether the low-energy part is still growing, with the numbers behind the verdict. */
   statement: string;
+  /** verdict === 'growing'. */
   stillGrowing: boolean;
+  /** The verdict of the rule in src/landscape/convergence.ts (README: "Convergence"). */
+  verdict: ConvergenceVerdict;
+  /** The numbers the verdict is drawn from: the last `fraction` of candidates and the lowest window. */
+  tail: {
+    fraction: number;
+    candidates: number;
+    /** Distinct structures within the lowest window, and those first met in the tail. */
+    withinLowest: number;
+    newWithinLowest: number;
+    /** Candidate number (1-based) at which the lowest-energy structure was first met. */
+    lowestFirstFoundAt: number | null;
+  };
 }
+
+/** Whether a search still finds new low-energy structures near its end. */
+export type ConvergenceVerdict = 'growing' | 'slowing' | 'levelled-off';
 
 /** How many rows carry each flag, and how many pairs stand behind the pair flags (src/landscape/flags.ts). */
 export interface FlagCounts {

@@ -134,6 +134,9 @@ export function latticeEnergy(
   const C = table.c;
   const vCut = table.vCut;
   const dvCut = table.dvCut;
+  const qq = table.qq;
+  const irc = 1 / rc;
+  const irc2 = irc * irc;
   const o = ws.o;
   const aSum = ws.aSum;
   const bSum = ws.bSum;
@@ -169,6 +172,7 @@ export function latticeEnergy(
             const bz = dz - offsets[3 * i + 2];
             if (bx * bx + by * by + bz * bz > atomReach2) continue;
             const ti = typeOf[i] * nt;
+            const qi = i * n;
             for (let j = 0; j < n; j++) {
               const jx = bx + o[og + 3 * j];
               const jy = by + o[og + 3 * j + 1];
@@ -180,10 +184,12 @@ export function latticeEnergy(
               const r = Math.sqrt(r2);
               const rep = A[k] * Math.exp(-B[k] * r);
               const inv6 = 1 / (r2 * r2 * r2);
-              energy += 0.5 * (rep - C[k] * inv6 - vCut[k] - (r - rc) * dvCut[k]);
+              const q2 = qq[qi + j];
+              const ir = 1 / r;
+              energy += 0.5 * (rep - C[k] * inv6 - vCut[k] - (r - rc) * dvCut[k] + q2 * (ir - irc + (r - rc) * irc2));
               if (!withGrad) continue;
               // h = dE/d(x_j - x_i) for this pair.
-              const dv = -B[k] * rep + 6 * C[k] * inv6 / r - dvCut[k];
+              const dv = -B[k] * rep + 6 * C[k] * inv6 * ir - dvCut[k] + q2 * (irc2 - ir * ir);
               const s = (0.5 * dv) / r;
               const px = s * jx;
               const py = s * jy;

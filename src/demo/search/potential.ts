@@ -1,12 +1,19 @@
-// The demo search's pair potential between atoms of different molecules: Buckingham exp-6,
-//   V(r) = A exp(-B r) - C / r^6   (kJ/mol, r in Å),
+// The demo search's pair potential between atoms of different molecules: Buckingham exp-6 plus point charges,
+//   V(r) = A exp(-B r) - C / r^6 + k q_i q_j / r   (kJ/mol, r in Å, q in e),
 // cut at CUTOFF_ANGSTROM with a shifted-force correction so that energy and force both go to zero at the cutoff
-// (V_sf(r) = V(r) - V(rc) - (r - rc) V'(rc); common practice for smooth truncation). No point charges.
-// Like-atom parameters are in the style of the published exp-6 sets for organic crystals (from memory, rounded;
+// (V_sf(r) = V(r) - V(rc) - (r - rc) V'(rc); common practice for smooth truncation, "Computer Simulation of
+// Liquids", Allen & Tildesley, Oxford 1987; for the Coulomb term of neutral molecules the undamped shifted-force
+// sum is the simplest of the pairwise alternatives to Ewald sums compared in "Is the Ewald summation still
+// necessary?", Fennell & Gezelter, J. Chem. Phys. 2006; both from memory). The charges are what makes the
+// landscape look like a real one: hydrogen-bonded packings sit well below the rest, so a handful of low-energy
+// minima with large basins are found again and again, and energies spread over tens of kJ/mol.
+// Like-atom exp-6 parameters are in the style of the published exp-6 sets for organic crystals (from memory, rounded;
 // they are the demo's own numbers and model no real substance). Unlike pairs use the usual combining rules:
 // A and C geometric means, B arithmetic mean (common practice).
 
 export const CUTOFF_ANGSTROM = 12;
+/** e^2 / (4 pi eps0) in kJ/mol Å per e^2 (CODATA 2018 constants; 1389.35 kJ/mol Å). */
+export const COULOMB_KJ_A_PER_MOL = 1389.35458;
 /** Two atoms of different molecules closer than this mean the packing has collapsed (exp-6 turns over below ~0.8 Å). */
 export const COLLAPSE_ANGSTROM = 1.1;
 
@@ -18,7 +25,7 @@ const LIKE: Record<string, { a: number; b: number; c: number }> = {
   O: { a: 230064, b: 3.96, c: 1123.6 },
 };
 
-/** Pair parameters for the elements of one molecule, indexed by atom type (one type per element present). */
+/** Pair parameters for one molecule: exp-6 by atom type (one type per element present), charges per atom. */
 export interface PairTable {
   /** Type index per atom of the molecule. */
   typeOf: Int32Array;
@@ -31,9 +38,14 @@ export interface PairTable {
   vCut: Float64Array;
   dvCut: Float64Array;
   cutoffAngstrom: number;
+  /** Per atom pair of the molecule (n x n): COULOMB_KJ_A_PER_MOL * q_i * q_j; all zero without charges. */
+  qq: Float64Array;
 }
 
-export function pairTable(elements: readonly string[], cutoffAngstrom = CUTOFF_ANGSTROM): PairTable {
+/** The pair table of a molecule: its elements and point charges (e, one per atom, summing to zero). */
+export function pairTable(mol: { elements: readonly string[]; charges: readonly number[] }, cutoffAngstrom = CUTOFF_ANGSTROM): PairTable {
+  const { elements, charges } = mol;
+  if (charges.length !== elements.length) throw new Error(`the demo potential needs one charge per atom: ${charges.length} charges for ${elements.length} atoms`);
   const kinds: string[] = [];
   const typeOf = new Int32Array(elements.length);
   elements.forEach((el, i) => {
@@ -60,13 +72,18 @@ export function pairTable(elements: readonly string[], cutoffAngstrom = CUTOFF_A
       vCut[k] = a[k] * Math.exp(-b[k] * rc) - c[k] / rc ** 6;
       dvCut[k] = -a[k] * b[k] * Math.exp(-b[k] * rc) + (6 * c[k]) / rc ** 7;
     }
-  return { typeOf, nTypes: n, a, b, c, vCut, dvCut, cutoffAngstrom };
+  const m = elements.length;
+  const qq = new Float64Array(m * m);
+  for (let i = 0; i < m; i++) for (let j = 0; j < m; j++) qq[i * m + j] = COULOMB_KJ_A_PER_MOL * charges[i] * charges[j];
+  return { typeOf, nTypes: n, a, b, c, vCut, dvCut, cutoffAngstrom, qq };
 }
 
-/** Shifted-force exp-6 energy of one pair at distance r < rc (kJ/mol), for checks and tests. */
-export function pairEnergy(table: PairTable, typeI: number, typeJ: number, r: number): number {
-  if (r >= table.cutoffAngstrom) return 0;
-  const k = typeI * table.nTypes + typeJ;
+/** Shifted-force energy (exp-6 plus charges) of atom i of one molecule and atom j of another at distance r (kJ/mol), for checks and tests. */
+export function atomPairEnergy(table: PairTable, i: number, j: number, r: number): number {
+  const rc = table.cutoffAngstrom;
+  if (r >= rc) return 0;
+  const k = table.typeOf[i] * table.nTypes + table.typeOf[j];
   const v = table.a[k] * Math.exp(-table.b[k] * r) - table.c[k] / r ** 6;
-  return v - table.vCut[k] - (r - table.cutoffAngstrom) * table.dvCut[k];
+  const q2 = table.qq[i * table.typeOf.length + j];
+  return v - table.vCut[k] - (r - rc) * table.dvCut[k] + q2 * (1 / r - 1 / rc + (r - rc) / (rc * rc));
 }

@@ -61,7 +61,7 @@ export interface RelaxModel {
   pressure: number;
 }
 
-export function makeRelaxModel(group: GeneratedGroup, mol: MoleculeTemplate, table: PairTable = pairTable(mol.elements)): RelaxModel {
+export function makeRelaxModel(group: GeneratedGroup, mol: MoleculeTemplate, table: PairTable = pairTable(mol)): RelaxModel {
   const ops = groupOps(group);
   const system = GROUPS[group].system;
   const freeCell = system === 'triclinic' ? [0, 1, 2, 3, 4, 5] : system === 'monoclinic' ? [0, 1, 2, 4] : [0, 1, 2];

@@ -1,8 +1,9 @@
 // A real mini crystal structure search for the demo: random packings of the invented rigid molecule in common
-// space groups (Z' = 1), each relaxed under the exp-6 pair potential of ./potential.ts (./relax.ts), so that
+// space groups (Z' = 1), each relaxed under the pair potential of ./potential.ts (./relax.ts), so that
 // different starts fall into the same lattice-energy minimum and differ only by the optimiser's stopping noise,
 // in whatever cell and origin each run ended in. Deterministic from the seed (apart from the measured seconds).
 import { makeRng } from '../prng.js';
+import { mapInWorkers } from '../../parallel/pool.js';
 import { MOLECULE_NAME, orvazinone, type MoleculeTemplate } from '../molecule.js';
 import { GROUPS, IT_NUMBER, type GeneratedGroup } from '../space-groups.js';
 import { contactRatio, drawPacking, groupOps } from '../packing.js';
@@ -35,7 +36,7 @@ export interface MiniSearchOptions {
   starts: number;
   /** Space groups (names of src/demo/space-groups.ts); default SEARCH_GROUPS. */
   groups?: string[];
-  /** Called after every start with the number done and the total. */
+  /** Called after every start (in order, or per finished chunk with worker threads) with the number done and the total. */
   onProgress?: (done: number, total: number) => void;
   /** Block id prefix; default "start" (ids are prefix-NNNN with the start's number, so rejected starts leave gaps). */
   idPrefix?: string;
@@ -80,73 +81,155 @@ export interface MiniSearchResult {
   seconds: number;
 }
 
+/** What one start produced: a relaxed structure and its CIF block, or the reason it was rejected. */
+export type StartOutcome = { kind: 'relaxed'; structure: SearchStructure; block: string } | { kind: 'rejected'; rejected: RejectedStart };
+
+/** A contiguous range of starts [from, to) of one search, the unit of work sent to a worker thread. */
+export interface StartRange {
+  seed: number;
+  starts: number;
+  from: number;
+  to: number;
+  groups: GeneratedGroup[];
+  idPrefix: string;
+}
+
+/** Starts per chunk sent to a worker: small enough to balance two threads, large enough to keep messages rare. */
+const STARTS_PER_CHUNK = 10;
+
+/**
+ * The search on the calling thread. Every start draws from its own seeded stream (startSeed), so a start's outcome
+ * depends only on the seed and its number: the same search split over worker threads (runMiniSearchInWorkers)
+ * writes the same CIF byte for byte.
+ */
 export function runMiniSearch(options: MiniSearchOptions): MiniSearchResult {
   const t0 = performance.now();
+  const range = fullRange(options);
+  const outcomes: StartOutcome[] = [];
+  const work = new StartWork();
+  for (let s = 0; s < options.starts; s++) {
+    outcomes.push(work.run(range, s));
+    options.onProgress?.(s + 1, options.starts);
+  }
+  return assemble(range, outcomes, (performance.now() - t0) / 1000);
+}
+
+/** The same search with its starts relaxed in worker threads (src/parallel/pool.ts); identical output. */
+export async function runMiniSearchInWorkers(options: MiniSearchOptions & { threads?: number }): Promise<MiniSearchResult> {
+  const t0 = performance.now();
+  const range = fullRange(options);
+  const chunks: StartRange[] = [];
+  for (let from = 0; from < options.starts; from += STARTS_PER_CHUNK) chunks.push({ ...range, from, to: Math.min(options.starts, from + STARTS_PER_CHUNK) });
+  const ext = import.meta.url.endsWith('.ts') ? '.ts' : '.js';
+  let done = 0;
+  const parts = await mapInWorkers<StartRange, StartOutcome[]>(new URL(`./search${ext}`, import.meta.url).href, 'relaxStartRange', chunks, {
+    threads: options.threads,
+    onProgress: (finished) => {
+      done = Math.min(options.starts, finished * STARTS_PER_CHUNK);
+      options.onProgress?.(done, options.starts);
+    },
+  });
+  return assemble(range, parts.flat(), (performance.now() - t0) / 1000);
+}
+
+/** Worker entry point: relax starts [from, to) of a search. */
+export function relaxStartRange(range: StartRange): StartOutcome[] {
+  const work = new StartWork();
+  const out: StartOutcome[] = [];
+  for (let s = range.from; s < range.to; s++) out.push(work.run(range, s));
+  return out;
+}
+
+/**
+ * The seed of start s's own random stream: the search seed and the start number mixed by the 32-bit finaliser of
+ * MurmurHash3 (public domain; common practice), so neighbouring starts get unrelated streams.
+ */
+export function startSeed(seed: number, start: number): number {
+  let h = (Math.imul(seed >>> 0, 0x9e3779b1) ^ Math.imul(start + 1, 0x85ebca6b)) >>> 0;
+  h ^= h >>> 16;
+  h = Math.imul(h, 0x85ebca6b);
+  h ^= h >>> 13;
+  h = Math.imul(h, 0xc2b2ae35);
+  h ^= h >>> 16;
+  return h >>> 0;
+}
+
+function fullRange(options: MiniSearchOptions): StartRange {
   if (!(Number.isInteger(options.starts) && options.starts >= 1)) throw new Error(`starts must be a whole number >= 1, not ${options.starts}`);
   const groups = (options.groups ?? SEARCH_GROUPS).map((g) => {
     if (!(g in GROUPS)) throw new Error(`the demo search knows no space group '${g}' (it knows ${Object.keys(GROUPS).join(', ')})`);
     return g as GeneratedGroup;
   });
   if (groups.length === 0) throw new Error('the demo search needs at least one space group');
-  const rng = makeRng(options.seed);
-  const mol = orvazinone();
-  const table = pairTable(mol.elements);
-  const models = new Map<GeneratedGroup, RelaxModel>();
-  const prefix = options.idPrefix ?? 'start';
-  const width = Math.max(4, String(options.starts).length);
+  return { seed: options.seed, starts: options.starts, from: 0, to: options.starts, groups, idPrefix: options.idPrefix ?? 'start' };
+}
+
+/** The molecule, its pair table and one relaxation model per group, built once per thread and reused by every start. */
+class StartWork {
+  readonly mol = orvazinone();
+  readonly table = pairTable(this.mol);
+  private readonly models = new Map<GeneratedGroup, RelaxModel>();
+
+  run(range: StartRange, s: number): StartOutcome {
+    const group = range.groups[s % range.groups.length];
+    const mol = this.mol;
+    let model = this.models.get(group);
+    if (!model) {
+      model = makeRelaxModel(group, mol, this.table);
+      this.models.set(group, model);
+    }
+    const rng = makeRng(startSeed(range.seed, s));
+    const start = startFrom(group, mol, rng);
+    if (!start) return { kind: 'rejected', rejected: { start: s, group, reason: 'the start clashes even when loosened' } };
+    const out = relaxState(model, start);
+    const relaxed = out.state;
+    const basis = basisFromCell(...relaxed.cell);
+    const frac = placeAtoms(model, relaxed);
+    const density = densityOf(group, mol, basis);
+    let reason = '';
+    if (!Number.isFinite(out.energyKjPerMol)) reason = 'the packing collapsed during relaxation';
+    else if (!out.lbfgs.converged) reason = `not converged (${out.lbfgs.stop})`;
+    else if (contactRatio(basis, model.ops, frac, mol.elements) < MIN_CONTACT_RATIO) reason = 'an unphysically short contact after relaxation';
+    else if (density < MIN_DENSITY_G_PER_CM3) reason = `the packing came apart (density ${density.toFixed(3)} g/cm3)`;
+    else if (!(out.energyKjPerMol < 0)) reason = 'a non-negative lattice energy after relaxation';
+    if (reason) return { kind: 'rejected', rejected: { start: s, group, reason } };
+    const width = Math.max(4, String(range.starts).length);
+    const id = `${range.idPrefix}-${String(s + 1).padStart(width, '0')}`;
+    const structure: SearchStructure = {
+      id,
+      start: s,
+      group,
+      startEnergyKjPerMol: out.startEnergyKjPerMol,
+      energyKjPerMol: out.energyKjPerMol,
+      densityGPerCm3: density,
+      iterations: out.lbfgs.iterations,
+      gradientMax: out.lbfgs.gradientMax,
+      state: relaxed,
+    };
+    // Written as the run ended: its own cell and origin, molecule moved into the cell, atoms in the order the
+    // writer lists them (shuffled here, as searches that rebuild molecules from a connectivity table do).
+    let e: Expressed = { basis, ops: model.ops, frac, elements: mol.elements.slice(), atomsPerMolecule: mol.elements.length };
+    e = wrapMolecules(shuffleAtoms(e, rng));
+    const block = writeCifBlock(e, { id, symbol: GROUPS[group].symbol, itNumber: IT_NUMBER[group], listOps: true });
+    return { kind: 'relaxed', structure, block };
+  }
+}
+
+/** The search's outputs from its starts' outcomes, in start order. */
+function assemble(range: StartRange, outcomes: StartOutcome[], seconds: number): MiniSearchResult {
   const structures: SearchStructure[] = [];
   const rejected: RejectedStart[] = [];
   const blocks: string[] = [];
-
-  for (let s = 0; s < options.starts; s++) {
-    const group = groups[s % groups.length];
-    let model = models.get(group);
-    if (!model) {
-      model = makeRelaxModel(group, mol, table);
-      models.set(group, model);
+  for (const o of outcomes) {
+    if (o.kind === 'rejected') rejected.push(o.rejected);
+    else {
+      structures.push(o.structure);
+      blocks.push(o.block);
     }
-    const start = startFrom(group, mol, rng);
-    if (!start) {
-      rejected.push({ start: s, group, reason: 'the start clashes even when loosened' });
-    } else {
-      const out = relaxState(model, start);
-      const relaxed = out.state;
-      const basis = basisFromCell(...relaxed.cell);
-      const frac = placeAtoms(model, relaxed);
-      const density = densityOf(group, mol, basis);
-      let reason = '';
-      if (!Number.isFinite(out.energyKjPerMol)) reason = 'the packing collapsed during relaxation';
-      else if (!out.lbfgs.converged) reason = `not converged (${out.lbfgs.stop})`;
-      else if (contactRatio(basis, model.ops, frac, mol.elements) < MIN_CONTACT_RATIO) reason = 'an unphysically short contact after relaxation';
-      else if (density < MIN_DENSITY_G_PER_CM3) reason = `the packing came apart (density ${density.toFixed(3)} g/cm3)`;
-      else if (!(out.energyKjPerMol < 0)) reason = 'a non-negative lattice energy after relaxation';
-      if (reason) rejected.push({ start: s, group, reason });
-      else {
-        const id = `${prefix}-${String(s + 1).padStart(width, '0')}`;
-        structures.push({
-          id,
-          start: s,
-          group,
-          startEnergyKjPerMol: out.startEnergyKjPerMol,
-          energyKjPerMol: out.energyKjPerMol,
-          densityGPerCm3: density,
-          iterations: out.lbfgs.iterations,
-          gradientMax: out.lbfgs.gradientMax,
-          state: relaxed,
-        });
-        // Written as the run ended: its own cell and origin, molecule moved into the cell, atoms in the order the
-        // writer lists them (shuffled here, as searches that rebuild molecules from a connectivity table do).
-        let e: Expressed = { basis, ops: model.ops, frac, elements: mol.elements.slice(), atomsPerMolecule: mol.elements.length };
-        e = wrapMolecules(shuffleAtoms(e, rng));
-        blocks.push(writeCifBlock(e, { id, symbol: GROUPS[group].symbol, itNumber: IT_NUMBER[group], listOps: true }));
-      }
-    }
-    options.onProgress?.(s + 1, options.starts);
   }
-
   const header =
-    `# Invented search: ${options.starts} random starts of the invented rigid molecule ${MOLECULE_NAME} in ${groups.join(', ')}, ` +
-    `relaxed under an exp-6 pair potential (cutoff ${CUTOFF_ANGSTROM} A), seed ${options.seed}\n`;
+    `# Invented search: ${range.starts} random starts of the invented rigid molecule ${MOLECULE_NAME} in ${range.groups.join(', ')}, ` +
+    `relaxed under an exp-6 plus point-charge pair potential (cutoff ${CUTOFF_ANGSTROM} A), seed ${range.seed}\n`;
   return {
     moleculeName: MOLECULE_NAME,
     cif: header + blocks.join('\n'),
@@ -157,8 +240,8 @@ export function runMiniSearch(options: MiniSearchOptions): MiniSearchResult {
     groups: structures.map((x) => x.group),
     structures,
     rejected,
-    starts: options.starts,
-    seconds: (performance.now() - t0) / 1000,
+    starts: range.starts,
+    seconds,
   };
 }
 
