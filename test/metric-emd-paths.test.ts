@@ -5,15 +5,11 @@
 // network simplex of Bonneel et al., ACM TOG 2011) and the LP optimum of glpk.js, on PDDs shaped like those of
 // crystals written in P1 or in supercells with an optimiser's noise (one row per atom, the rows of
 // symmetry-equivalent atoms equal up to noise), including cases built to defeat the shortcuts.
-import { spawnSync } from 'node:child_process';
-import { mkdtempSync, readFileSync, rmSync, writeFileSync } from 'node:fs';
-import { tmpdir } from 'node:os';
-import { join } from 'node:path';
 import { describe, expect, it } from 'vitest';
 import GLPKFactory from 'glpk.js/node';
 import { emd, lastSolve } from '../src/metric/emd.js';
 import type { Pdd } from '../src/types.js';
-import { makePdd, pddToJson, rng } from './metric-random.js';
+import { makePdd, potReference, rng } from './metric-random.js';
 
 const K = 24;
 
@@ -45,20 +41,6 @@ function written(rand: () => number, base: number[][], z: number, noise: number,
   return makePdd(rows, w.map(() => 1 / s));
 }
 
-function potReference(instances: Array<{ a: Pdd; b: Pdd }>): number[] {
-  const dir = mkdtempSync(join(tmpdir(), 'polysift-emd-paths-'));
-  try {
-    const input = join(dir, 'in.json');
-    const output = join(dir, 'out.json');
-    writeFileSync(input, JSON.stringify({ instances: instances.map(({ a, b }) => ({ k: a.k, a: pddToJson(a), b: pddToJson(b) })) }));
-    const script = new URL('../scripts/emd-reference.py', import.meta.url).pathname;
-    const run = spawnSync('python3', [script, input, output], { encoding: 'utf8', timeout: 120_000 });
-    if (run.error || run.status !== 0) throw new Error(`python3 with POT (pip install POT numpy) is needed for this check: ${run.error?.message ?? run.stderr}`);
-    return (JSON.parse(readFileSync(output, 'utf8')) as { emd: number[] }).emd;
-  } finally {
-    rmSync(dir, { recursive: true, force: true });
-  }
-}
 
 async function lpEmd(a: Pdd, b: Pdd): Promise<number> {
   const glpk = await GLPKFactory();

@@ -1,12 +1,8 @@
 // EMD between PDDs (Rubner, Tomasi & Guibas, IJCV 2000) with the L-infinity ground distance between rows.
-import { spawnSync } from 'node:child_process';
-import { mkdtempSync, readFileSync, rmSync, writeFileSync } from 'node:fs';
-import { tmpdir } from 'node:os';
-import { join } from 'node:path';
 import { describe, expect, it } from 'vitest';
 import { amdDistance, emd, rowMinBound } from '../src/metric/emd.js';
 import type { Pdd } from '../src/types.js';
-import { amdOf, makePdd, pddToJson, randomPdd, rng } from './metric-random.js';
+import { amdOf, makePdd, potReference, randomPdd, rng } from './metric-random.js';
 
 /** Sizes 1..200 rows, skewed towards small ones, with the extremes always present. */
 function size(rand: () => number, t: number): number {
@@ -67,23 +63,6 @@ function instance(rand: () => number, t: number): { a: Pdd; b: Pdd } {
   }
 }
 
-/** One python3 call for all instances (scripts/emd-reference.py, POT's ot.emd2). */
-function potReference(instances: Array<{ a: Pdd; b: Pdd }>): number[] {
-  const dir = mkdtempSync(join(tmpdir(), 'polysift-emd-'));
-  try {
-    const input = join(dir, 'in.json');
-    const output = join(dir, 'out.json');
-    writeFileSync(input, JSON.stringify({ instances: instances.map(({ a, b }) => ({ k: a.k, a: pddToJson(a), b: pddToJson(b) })) }));
-    const script = new URL('../scripts/emd-reference.py', import.meta.url).pathname;
-    const run = spawnSync('python3', [script, input, output], { encoding: 'utf8', timeout: 120_000 });
-    if (run.error || run.status !== 0) {
-      throw new Error(`python3 with POT (pip install POT numpy) is needed for this check: ${run.error?.message ?? run.stderr}`);
-    }
-    return (JSON.parse(readFileSync(output, 'utf8')) as { emd: number[] }).emd;
-  } finally {
-    rmSync(dir, { recursive: true, force: true });
-  }
-}
 
 /** Wasserstein-1 on the line equals the integral of |F_a - F_b| (Vallender, Theory Probab. Appl. 1974). */
 function lineW1(a: Pdd, b: Pdd): number {

@@ -1,5 +1,9 @@
 // Random PDDs for the metric tests: seeded, so every run checks the same instances.
 // A PDD here follows the data contract in src/types.ts: each row ascending, rows in lexicographic order.
+import { spawnSync } from 'node:child_process';
+import { mkdtempSync, readFileSync, rmSync, writeFileSync } from 'node:fs';
+import { tmpdir } from 'node:os';
+import { join } from 'node:path';
 import type { Pdd } from '../src/types.js';
 import { seededUniform } from '../src/demo/prng.js';
 
@@ -43,4 +47,22 @@ export function amdOf(p: Pdd): Float64Array {
 
 export function pddToJson(p: Pdd): { k: number; rows: number[]; weights: number[] } {
   return { k: p.k, rows: Array.from(p.rows), weights: Array.from(p.weights) };
+}
+
+/** EMDs of many PDD pairs in one python3 call (scripts/emd-reference.py: POT's ot.emd2 with a Chebyshev ot.dist matrix). */
+export function potReference(instances: Array<{ a: Pdd; b: Pdd }>): number[] {
+  const dir = mkdtempSync(join(tmpdir(), 'polysift-emd-'));
+  try {
+    const input = join(dir, 'in.json');
+    const output = join(dir, 'out.json');
+    writeFileSync(input, JSON.stringify({ instances: instances.map(({ a, b }) => ({ k: a.k, a: pddToJson(a), b: pddToJson(b) })) }));
+    const script = new URL('../scripts/emd-reference.py', import.meta.url).pathname;
+    const run = spawnSync('python3', [script, input, output], { encoding: 'utf8', timeout: 120_000 });
+    if (run.error || run.status !== 0) {
+      throw new Error(`python3 with POT (pip install POT numpy) is needed for this check: ${run.error?.message ?? run.stderr}`);
+    }
+    return (JSON.parse(readFileSync(output, 'utf8')) as { emd: number[] }).emd;
+  } finally {
+    rmSync(dir, { recursive: true, force: true });
+  }
 }

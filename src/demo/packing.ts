@@ -36,23 +36,7 @@ export function packingDensity(p: Packing, mol: MoleculeTemplate): number {
  * molecule under a lattice translation. A value of at least 1 means no contact is too short.
  */
 export function contactRatio(basis: Mat3, ops: readonly Op[], frac: Float64Array, elements: readonly string[]): number {
-  const nMol = elements.length;
-  const n = ops.length * nMol;
-  const f = new Float64Array(3 * n);
-  const radius = new Float64Array(n);
-  const molOf = new Int32Array(n);
-  for (let g = 0; g < ops.length; g++) {
-    const { rot, trans } = ops[g];
-    for (let i = 0; i < nMol; i++) {
-      const x = frac[3 * i];
-      const y = frac[3 * i + 1];
-      const zf = frac[3 * i + 2];
-      const o = g * nMol + i;
-      for (let r = 0; r < 3; r++) f[3 * o + r] = rot[3 * r] * x + rot[3 * r + 1] * y + rot[3 * r + 2] * zf + trans[r];
-      radius[o] = VDW_RADIUS[elements[i]];
-      molOf[o] = g;
-    }
-  }
+  const { n, f, radius, molOf } = expandMolecules(ops, frac, elements);
   let best = Infinity;
   const b = basis;
   // Distance between lattice planes along each axis: a point whose fractional coordinate along axis r differs
@@ -99,23 +83,7 @@ export function contactRatio(basis: Mat3, ops: readonly Op[], frac: Float64Array
  * (where rounding could differ) is settled by `contactRatio`'s own arithmetic. Returns at the first short contact.
  */
 export function contactsClear(basis: Mat3, ops: readonly Op[], frac: Float64Array, elements: readonly string[]): boolean {
-  const nMol = elements.length;
-  const n = ops.length * nMol;
-  const f = new Float64Array(3 * n);
-  const radius = new Float64Array(n);
-  const molOf = new Int32Array(n);
-  for (let g = 0; g < ops.length; g++) {
-    const { rot, trans } = ops[g];
-    for (let i = 0; i < nMol; i++) {
-      const x = frac[3 * i];
-      const y = frac[3 * i + 1];
-      const zf = frac[3 * i + 2];
-      const o = g * nMol + i;
-      for (let r = 0; r < 3; r++) f[3 * o + r] = rot[3 * r] * x + rot[3 * r + 1] * y + rot[3 * r + 2] * zf + trans[r];
-      radius[o] = VDW_RADIUS[elements[i]];
-      molOf[o] = g;
-    }
-  }
+  const { n, f, radius, molOf } = expandMolecules(ops, frac, elements);
   const b = basis;
   // Cartesian offsets of the 27 images a, b, c in {-1, 0, 1}, in the loop order of contactRatio.
   const image = new Float64Array(81);
@@ -348,4 +316,26 @@ export function closePartner(base: Packing, mol: MoleculeTemplate, rng: Rng, ang
     return p;
   }
   return null;
+}
+
+/** Every molecule of the cell: fractional coordinates of each atom under each operation, its radius and molecule. */
+function expandMolecules(ops: readonly Op[], frac: Float64Array, elements: readonly string[]) {
+  const nMol = elements.length;
+  const n = ops.length * nMol;
+  const f = new Float64Array(3 * n);
+  const radius = new Float64Array(n);
+  const molOf = new Int32Array(n);
+  for (let g = 0; g < ops.length; g++) {
+    const { rot, trans } = ops[g];
+    for (let i = 0; i < nMol; i++) {
+      const x = frac[3 * i];
+      const y = frac[3 * i + 1];
+      const zf = frac[3 * i + 2];
+      const o = g * nMol + i;
+      for (let r = 0; r < 3; r++) f[3 * o + r] = rot[3 * r] * x + rot[3 * r + 1] * y + rot[3 * r + 2] * zf + trans[r];
+      radius[o] = VDW_RADIUS[elements[i]];
+      molOf[o] = g;
+    }
+  }
+  return { n, f, radius, molOf };
 }
